@@ -1,0 +1,79 @@
+#!/usr/bin/python3
+"""Write BCF 2.2 twins (with .csi indexes) of the VCF fixtures in testdata/.
+
+Needs the Debian package python3-pysam (0.20.0 was used). Run from the
+repository root:
+
+    /usr/bin/python3 testdata/tools/make_bcf_twins.py
+
+Each twin is written record by record through pysam.VariantFile, which
+re-encodes the VCF text as BCF 2.2 (htslib adds IDX= attributes to the
+header). The CSI index is built by pysam.tabix_index (htslib
+bcf_index_build2, min_shift 14).
+"""
+import gzip
+import os
+import tempfile
+
+import pysam
+
+TWINS = [
+    ("testdata/chr22_1000g.vcf.gz", "testdata/bcf/chr22_1000g.bcf"),
+    ("testdata/cohort189.vcf.gz", "testdata/bcf/cohort189.bcf"),
+    ("testdata/annotated_small.vcf", "testdata/bcf/annotated_small.bcf"),
+    # haploid calls on chrX
+    ("testdata/edge/test-haploidX.vcf", "testdata/bcf/test-haploidX.bcf"),
+    # GL without PL; no ##contig lines (htslib adds them while writing)
+    ("testdata/edge/gl_chr1.vcf", "testdata/bcf/gl_chr1.bcf"),
+    # six contigs, MNPs: region queries over several contigs
+    ("testdata/edge/test.mnp.vcf", "testdata/bcf/test.mnp.bcf"),
+]
+
+
+def open_text(path):
+    if path.endswith(".gz"):
+        return gzip.open(path, "rt")
+    return open(path)
+
+
+def undeclared_contigs(path):
+    declared, used = set(), []
+    with open_text(path) as f:
+        for line in f:
+            if line.startswith("##contig=<ID="):
+                declared.add(line[len("##contig=<ID="):].split(",")[0].rstrip(">\n"))
+            elif not line.startswith("#"):
+                c = line.split("\t", 1)[0]
+                if c not in declared and c not in used:
+                    used.append(c)
+    return used
+
+
+def main():
+    os.makedirs("testdata/bcf", exist_ok=True)
+    for src, dst in TWINS:
+        # Contigs used by records but not declared in the header are
+        # declared (without length) in a temporary copy of the text, so
+        # that BCF can number them; the records are unchanged.
+        text = src
+        missing = undeclared_contigs(src)
+        if missing:
+            text = os.path.join(tempfile.mkdtemp(), "in.vcf")
+            with open_text(src) as f, open(text, "w") as out:
+                for line in f:
+                    if line.startswith("#CHROM"):
+                        for c in missing:
+                            out.write("##contig=<ID=%s>\n" % c)
+                    out.write(line)
+        with pysam.VariantFile(text) as vin:
+            with pysam.VariantFile(dst, "wb", header=vin.header) as vout:
+                n = 0
+                for rec in vin:
+                    vout.write(rec)
+                    n += 1
+        pysam.tabix_index(dst, preset="vcf", csi=True, force=True)
+        print(dst, n, "records")
+
+
+if __name__ == "__main__":
+    main()
