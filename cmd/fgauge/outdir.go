@@ -1,0 +1,113 @@
+package main
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+)
+
+// outputNames are the files a scan or merge may write into OUTDIR; an
+// OUTDIR holding any of them is not overwritten without --force.
+var outputNames = []string{
+	"sites.tsv.gz", "sites_by_population.tsv.gz", "samples.tsv", "runs.tsv",
+	"populations.tsv", "populations_pairwise.tsv", "run.json", "report.html",
+}
+
+// stagedDir collects the outputs of one run in a hidden temporary folder
+// inside OUTDIR and moves them into place only when the whole run has
+// succeeded, so a failed or interrupted run leaves no half-written result.
+type stagedDir struct {
+	final   string // OUTDIR
+	tmp     string // OUTDIR/.fgauge-tmp-*
+	created bool   // OUTDIR did not exist before the run
+	files   []string
+}
+
+// newStagedDir prepares OUTDIR. It refuses an OUTDIR that already holds
+// results unless force is set.
+func newStagedDir(dir string, force bool) (*stagedDir, error) {
+	if dir == "" {
+		return nil, usagef("an output folder is required (-o OUTDIR)")
+	}
+	s := &stagedDir{final: dir}
+	st, err := os.Stat(dir)
+	switch {
+	case os.IsNotExist(err):
+		if err := os.MkdirAll(dir, 0o755); err != nil {
+			return nil, fmt.Errorf("creating output folder: %w", err)
+		}
+		s.created = true
+	case err != nil:
+		return nil, fmt.Errorf("output folder: %w", err)
+	case !st.IsDir():
+		return nil, usagef("%s exists and is not a folder", dir)
+	default:
+		if !force {
+			for _, n := range outputNames {
+				if _, err := os.Stat(filepath.Join(dir, n)); err == nil {
+					return nil, usagef("%s already holds results (%s); choose another folder or add --force to overwrite", dir, n)
+				}
+			}
+		}
+	}
+	tmp, err := os.MkdirTemp(dir, ".fgauge-tmp-")
+	if err != nil {
+		return nil, fmt.Errorf("creating temporary folder in %s: %w", dir, err)
+	}
+	s.tmp = tmp
+	return s, nil
+}
+
+// Create opens a staged output file by its final base name.
+func (s *stagedDir) Create(name string) (*os.File, error) {
+	s.files = append(s.files, name)
+	return os.Create(filepath.Join(s.tmp, name))
+}
+
+// Path is where a staged file is written before Commit.
+func (s *stagedDir) Path(name string) string { return filepath.Join(s.tmp, name) }
+
+// Commit moves every staged file into OUTDIR and removes the temporary
+// folder. Files are moved in a fixed order, run.json last, so a reader that
+// waits for run.json sees a complete set.
+func (s *stagedDir) Commit() error {
+	entries, err := os.ReadDir(s.tmp)
+	if err != nil {
+		return err
+	}
+	names := make([]string, 0, len(entries))
+	for _, e := range entries {
+		names = append(names, e.Name())
+	}
+	sort.Slice(names, func(i, j int) bool {
+		if (names[i] == "run.json") != (names[j] == "run.json") {
+			return names[j] == "run.json"
+		}
+		return names[i] < names[j]
+	})
+	for _, n := range names {
+		dst := filepath.Join(s.final, n)
+		if st, err := os.Stat(dst); err == nil && st.IsDir() {
+			if err := os.RemoveAll(dst); err != nil {
+				return err
+			}
+		}
+		if err := os.Rename(filepath.Join(s.tmp, n), dst); err != nil {
+			return fmt.Errorf("moving %s into place: %w", n, err)
+		}
+	}
+	return os.RemoveAll(s.tmp)
+}
+
+// Abort removes the temporary folder, and OUTDIR itself when this run
+// created it and it is empty.
+func (s *stagedDir) Abort() {
+	if s == nil {
+		return
+	}
+	os.RemoveAll(s.tmp)
+	if s.created {
+		os.Remove(s.final) // only succeeds when empty
+	}
+}
