@@ -1,0 +1,342 @@
+package stats
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+	"strings"
+)
+
+// SampleAcc is one sample's accumulated counts and fixed-point sums.
+type SampleAcc struct {
+	Counts         [6]int64 // by vcfscan.Geno code
+	Informative    int64    // called diploid at sites with 0 < p < 1
+	HomInformative int64    // of those, homozygous
+	Sums           [nSums]Sum128
+}
+
+// GroupAcc accumulates one population's (or the pooled sample's)
+// heterozygosities and HWE tests over sites.
+type GroupAcc struct {
+	Sites        int64 // sites where the group has at least one diploid call
+	HoSum, HeSum Sum128
+	Tested       int64 // sites where the group's HWE test was defined
+	BelowE6      int64 // of those, hwe_p < 1e-6
+}
+
+// BlockKey names a jackknife block: a genomic window of
+// Config.JackknifeBlockBP bases, (pos-1)/block_bp, on a chromosome.
+type BlockKey struct {
+	Chrom string
+	Index int64
+}
+
+// BlockAcc holds the Weir & Cockerham sums of one block: over all
+// populations, and per pair (index as in pair order i<j).
+type BlockAcc struct {
+	All   WCSums
+	Pairs []WCSums
+}
+
+// HWESummary accumulates the cohort-level HWE tests for run.json.
+// Histograms are sparse maps so that they merge by key exactly.
+type HWESummary struct {
+	Tested  int64
+	Below   [3]int64 // hwe_p < 1e-3, 1e-6, 1e-10
+	FSite   Sum128   // sum of defined f_site
+	FSiteN  int64
+	ChiHist map[int32]int64 // chi-square statistic, 1000 bins per decade
+	PHist   map[int32]int64 // -log10 hwe_p, bins of 0.01
+}
+
+const (
+	pBinsPerUnit   = 100
+	pMaxBin        = 330 * pBinsPerUnit // -log10 p >= 330 (and p = 0) share this bin
+	chiBinsPerDec  = 1000
+	chiMinLog10    = -12
+	chiZeroBin     = math.MinInt32
+	lambdaDivisor  = 0.4549364 // median of chi-square(1), common practice
+	defaultQQPoint = 300
+)
+
+func (h *HWESummary) add(r *HWEResult) {
+	h.Tested++
+	p := r.P
+	if p < 1e-3 {
+		h.Below[0]++
+	}
+	if p < 1e-6 {
+		h.Below[1]++
+	}
+	if p < 1e-10 {
+		h.Below[2]++
+	}
+	pb := int32(pMaxBin)
+	if p > 0 {
+		pb = int32(math.Min(math.Floor(-math.Log10(p)*pBinsPerUnit), pMaxBin))
+		if pb < 0 {
+			pb = 0
+		}
+	}
+	h.PHist[pb]++
+	cb := int32(chiZeroBin)
+	if x := r.ChiSq; x > 0 {
+		cb = int32(math.Max(math.Floor((math.Log10(x)-chiMinLog10)*chiBinsPerDec), 0))
+	}
+	if !math.IsNaN(r.ChiSq) {
+		h.ChiHist[cb]++
+	}
+}
+
+// FreqCounts records how the estimator frequencies were found.
+type FreqCounts struct {
+	InfoMissing   int64    // sites without the INFO value
+	PanelAbsent   int64    // data sites absent from the panel
+	PanelMismatch int64    // data sites whose alleles differ from the panel's
+	PanelMet      []uint64 // bitset over panel sites met in the data
+	PanelSize     int64
+}
+
+func (f *FreqCounts) markMet(i, n int) {
+	if f.PanelMet == nil {
+		f.PanelMet = make([]uint64, (n+63)/64)
+		f.PanelSize = int64(n)
+	}
+	f.PanelMet[i/64] |= 1 << (i % 64)
+}
+
+// Totals is the mergeable state of one or more Workers. Fields are
+// exported so that it can be encoded with encoding/gob for shard states.
+type Totals struct {
+	Samples          []string
+	PopOf            []int
+	PopNames         []string
+	HWEMethod        string
+	Freqs            FreqSource
+	JackknifeBlockBP int64
+	MinCallRate      float64
+
+	Sites     int64 // kept records
+	PerSample []SampleAcc
+	Groups    []GroupAcc // per population, then the pooled sample
+	Blocks    map[BlockKey]*BlockAcc
+	HWE       HWESummary
+	Freq      FreqCounts
+}
+
+func newTotals(cfg *Config) *Totals {
+	t := &Totals{
+		Samples: cfg.Samples, PopOf: cfg.PopOf, PopNames: cfg.PopNames,
+		HWEMethod: cfg.HWEMethod, Freqs: cfg.Freqs, JackknifeBlockBP: cfg.JackknifeBlockBP,
+		MinCallRate: cfg.MinCallRate,
+		PerSample:   make([]SampleAcc, len(cfg.Samples)),
+		Blocks:      map[BlockKey]*BlockAcc{},
+		HWE:         HWESummary{ChiHist: map[int32]int64{}, PHist: map[int32]int64{}},
+	}
+	if t.HWEMethod == "" {
+		t.HWEMethod = "exact"
+	}
+	if t.JackknifeBlockBP <= 0 {
+		t.JackknifeBlockBP = DefaultJackknifeBlockBP
+	}
+	if cfg.PopOf != nil {
+		t.Groups = make([]GroupAcc, len(cfg.PopNames)+1)
+	}
+	if cfg.Panel != nil {
+		t.Freq.PanelSize = int64(cfg.Panel.Len())
+	}
+	return t
+}
+
+// NewTotals returns empty totals for cfg (the identity of Merge).
+func NewTotals(cfg *Config) *Totals { return newTotals(cfg) }
+
+// ErrIncompatible is returned by Merge for totals of different runs.
+var ErrIncompatible = errors.New("totals from incompatible configurations")
+
+// Merge adds o into t. Merging is exact: associative and commutative bit
+// for bit, so any split of the input merges to identical output.
+func (t *Totals) Merge(o *Totals) error {
+	switch {
+	case !slices.Equal(t.Samples, o.Samples):
+		return fmt.Errorf("stats: merge: sample lists differ: %w", ErrIncompatible)
+	case !slices.Equal(t.PopOf, o.PopOf) || !slices.Equal(t.PopNames, o.PopNames):
+		return fmt.Errorf("stats: merge: populations differ: %w", ErrIncompatible)
+	case t.HWEMethod != o.HWEMethod || t.Freqs != o.Freqs || t.JackknifeBlockBP != o.JackknifeBlockBP:
+		return fmt.Errorf("stats: merge: HWE method, frequency source or jackknife block differ: %w", ErrIncompatible)
+	case len(t.Groups) != len(o.Groups):
+		return fmt.Errorf("stats: merge: population groups differ: %w", ErrIncompatible)
+	}
+	t.Sites += o.Sites
+	for i := range t.PerSample {
+		a, b := &t.PerSample[i], &o.PerSample[i]
+		for k := range a.Counts {
+			a.Counts[k] += b.Counts[k]
+		}
+		a.Informative += b.Informative
+		a.HomInformative += b.HomInformative
+		for k := range a.Sums {
+			a.Sums[k].AddSum(b.Sums[k])
+		}
+	}
+	for i := range t.Groups {
+		a, b := &t.Groups[i], &o.Groups[i]
+		a.Sites += b.Sites
+		a.HoSum.AddSum(b.HoSum)
+		a.HeSum.AddSum(b.HeSum)
+		a.Tested += b.Tested
+		a.BelowE6 += b.BelowE6
+	}
+	if t.Blocks == nil {
+		t.Blocks = map[BlockKey]*BlockAcc{}
+	}
+	for k, ob := range o.Blocks {
+		tb := t.Blocks[k]
+		if tb == nil {
+			tb = &BlockAcc{Pairs: make([]WCSums, len(ob.Pairs))}
+			t.Blocks[k] = tb
+		}
+		if len(tb.Pairs) != len(ob.Pairs) {
+			return fmt.Errorf("stats: merge: block %s:%d has %d pairs, other %d: %w", k.Chrom, k.Index, len(tb.Pairs), len(ob.Pairs), ErrIncompatible)
+		}
+		tb.All.merge(&ob.All)
+		for j := range tb.Pairs {
+			tb.Pairs[j].merge(&ob.Pairs[j])
+		}
+	}
+	h, oh := &t.HWE, &o.HWE
+	h.Tested += oh.Tested
+	for k := range h.Below {
+		h.Below[k] += oh.Below[k]
+	}
+	h.FSite.AddSum(oh.FSite)
+	h.FSiteN += oh.FSiteN
+	if h.ChiHist == nil {
+		h.ChiHist = map[int32]int64{}
+	}
+	if h.PHist == nil {
+		h.PHist = map[int32]int64{}
+	}
+	for k, v := range oh.ChiHist {
+		h.ChiHist[k] += v
+	}
+	for k, v := range oh.PHist {
+		h.PHist[k] += v
+	}
+	f, of := &t.Freq, &o.Freq
+	f.InfoMissing += of.InfoMissing
+	f.PanelAbsent += of.PanelAbsent
+	f.PanelMismatch += of.PanelMismatch
+	if of.PanelSize > f.PanelSize {
+		f.PanelSize = of.PanelSize
+	}
+	if len(of.PanelMet) > len(f.PanelMet) {
+		f.PanelMet = append(f.PanelMet, make([]uint64, len(of.PanelMet)-len(f.PanelMet))...)
+	}
+	for i, v := range of.PanelMet {
+		f.PanelMet[i] |= v
+	}
+	return nil
+}
+
+// sampleEstimates are one sample's derived values.
+type sampleEstimates struct {
+	called                                 int64
+	callRate, hetRate, homExp              float64
+	fHom, fGRM, fExcess, fUniting, fVanRad float64
+}
+
+func (t *Totals) estimates(a *SampleAcc) sampleEstimates {
+	var e sampleEstimates
+	e.called = a.Counts[0] + a.Counts[1] + a.Counts[2]
+	e.callRate = ratio(float64(e.called), float64(t.Sites))
+	e.hetRate = ratio(float64(a.Counts[1]), float64(e.called))
+	n := float64(a.Informative)
+	e.homExp = a.Sums[sumHomExpected].Float64()
+	e.fHom, e.fGRM, e.fExcess, e.fUniting, e.fVanRad = nan, nan, nan, nan, nan
+	if a.Informative > 0 {
+		e.fHom = ratio(float64(a.HomInformative)-e.homExp, n-e.homExp)
+		e.fGRM = a.Sums[sumGRM].Float64() / n
+		e.fExcess = a.Sums[sumExcessHom].Float64() / n
+		e.fUniting = a.Sums[sumUniting].Float64() / n
+		if d := a.Sums[sumVRDen].Float64(); d > 0 {
+			e.fVanRad = a.Sums[sumVRNum].Float64()/d - 1
+		}
+	} else {
+		e.homExp = nan
+	}
+	return e
+}
+
+// SampleTable returns the samples.tsv columns produced by this package and
+// one row per selected sample, in order. The population column is present
+// only with populations ("NA" for unlisted samples).
+func (t *Totals) SampleTable() (header []string, rows [][]string) {
+	header = []string{"sample"}
+	if t.PopOf != nil {
+		header = append(header, "population")
+	}
+	header = append(header, "sites_called", "n_hom_ref", "n_het", "n_hom_alt", "n_missing", "n_haploid",
+		"call_rate", "het_rate", "hom_observed", "hom_expected", "sites_informative",
+		"f_hom", "f_grm", "f_excess_hom", "f_uniting_gametes", "f_vanraden", "flags")
+	est := make([]sampleEstimates, len(t.PerSample))
+	// Cohort mean and SD of het_rate for het_rate_outlier (fixed order).
+	var sum, sum2, m float64
+	for i := range t.PerSample {
+		est[i] = t.estimates(&t.PerSample[i])
+		if h := est[i].hetRate; !math.IsNaN(h) {
+			sum += h
+			m++
+		}
+	}
+	mean := sum / m
+	for i := range est {
+		if h := est[i].hetRate; !math.IsNaN(h) {
+			sum2 += (h - mean) * (h - mean)
+		}
+	}
+	sd := nan
+	if m >= 3 {
+		sd = math.Sqrt(sum2 / (m - 1))
+	}
+	for i := range t.PerSample {
+		a := &t.PerSample[i]
+		e := &est[i]
+		row := []string{t.Samples[i]}
+		if t.PopOf != nil {
+			pop := "NA"
+			if p := t.PopOf[i]; p >= 0 {
+				pop = t.PopNames[p]
+			}
+			row = append(row, pop)
+		}
+		homObs := "NA"
+		if a.Informative > 0 {
+			homObs = itoa(a.HomInformative)
+		}
+		row = append(row, itoa(e.called), itoa(a.Counts[0]), itoa(a.Counts[1]), itoa(a.Counts[2]),
+			itoa(a.Counts[3]), itoa(a.Counts[4]+a.Counts[5]),
+			ftoa(e.callRate), ftoa(e.hetRate), homObs, ftoa(e.homExp), itoa(a.Informative),
+			ftoa(e.fHom), ftoa(e.fGRM), ftoa(e.fExcess), ftoa(e.fUniting), ftoa(e.fVanRad))
+		var flags []string
+		if e.called == 0 {
+			flags = append(flags, "no_calls")
+		} else if e.callRate < t.MinCallRate {
+			flags = append(flags, "low_call_rate")
+		}
+		if sd > 0 && !math.IsNaN(e.hetRate) && math.Abs(e.hetRate-mean) > 3*sd {
+			flags = append(flags, "het_rate_outlier")
+		}
+		if (e.fHom > 0.1 && e.fUniting < 0) || (e.fUniting > 0.1 && e.fHom < 0) {
+			flags = append(flags, "estimators_disagree")
+		}
+		if len(flags) == 0 {
+			row = append(row, ".")
+		} else {
+			row = append(row, strings.Join(flags, ","))
+		}
+		rows = append(rows, row)
+	}
+	return header, rows
+}

@@ -1,0 +1,438 @@
+package stats
+
+import (
+	"bytes"
+	"math"
+	"strconv"
+
+	"fgauge/vcfscan"
+)
+
+var nan = math.NaN()
+
+// Per-sample fixed-point sums, indexes into SampleAcc.Sums.
+const (
+	sumHomExpected = iota // E of f_hom: sum of 1 - 2pq*2n/(2n-1)
+	sumGRM                // Yang et al. F-hat-I terms
+	sumExcessHom          // Yang et al. F-hat-II terms
+	sumUniting            // Yang et al. F-hat-III terms
+	sumVRNum              // VanRaden (x-2p)^2
+	sumVRDen              // VanRaden 2p(1-p)
+	nSums
+)
+
+// siteTab is the per-site, per-frequency-group table of contributions of
+// each diploid genotype code, precomputed so that per-sample work is one
+// table look-up and a few 128-bit adds.
+type siteTab struct {
+	informative bool
+	v           [3][nSums]Sum128
+}
+
+// fill computes the table for alternate-allele frequency p; corr is the
+// sample-size factor 2n/(2n-1) applied to the expected heterozygosity of
+// f_hom (1 for external frequencies).
+func (t *siteTab) fill(p, corr float64) {
+	t.informative = p > 0 && p < 1
+	if !t.informative {
+		return
+	}
+	d := 2 * p * (1 - p)
+	e := fixed(1 - d*corr)
+	den := fixed(d)
+	for g := 0; g < 3; g++ {
+		x := float64(g)
+		t.v[g][sumHomExpected] = e
+		t.v[g][sumGRM] = fixed((x-2*p)*(x-2*p)/d - 1)
+		t.v[g][sumExcessHom] = fixed(1 - x*(2-x)/d)
+		t.v[g][sumUniting] = fixed((x*x - (1+2*p)*x + 2*p*p) / d)
+		t.v[g][sumVRNum] = fixed((x - 2*p) * (x - 2*p))
+		t.v[g][sumVRDen] = den
+	}
+}
+
+// Worker computes statistics batch by batch on one goroutine. It is not
+// safe for concurrent use; run one per goroutine and merge their Totals.
+type Worker struct {
+	cfg        *Config
+	contigName func(id int) string
+	t          *Totals
+	cache      *hweCache
+	nPop       int
+	tabOf      []int32 // per sample: index into tabs
+	tabs       []siteTab
+	popCnt     [][4]int64 // per population + pooled: hom_ref, het, hom_alt, called
+	nBuf       []int64    // scratch for WC
+	altBuf     []int64
+	hetBuf     []int64
+	pairIdx    [][2]int
+	scratch    []byte
+	lastChrom  int
+	chromName  string
+	chromBytes []byte
+	lastBlock  BlockKey
+	block      *BlockAcc
+}
+
+// NewWorker returns a Worker for cfg; contigName maps vcfscan chromosome
+// ids to names. cfg must have been validated and must not change.
+func NewWorker(cfg *Config, contigName func(id int) string) *Worker {
+	w := &Worker{cfg: cfg, contigName: contigName, t: newTotals(cfg), lastChrom: -1}
+	w.cache = newHWECache(cfg.HWEMethod == "chisq", 1<<14)
+	w.nPop = len(cfg.PopNames)
+	if cfg.PopOf == nil {
+		w.nPop = 0
+	}
+	ns := len(cfg.Samples)
+	w.tabOf = make([]int32, ns)
+	nt := 1
+	if cfg.Freqs == FreqPopulation {
+		nt = w.nPop + 1 // last: cohort table for unassigned samples
+		for s := range w.tabOf {
+			if p := cfg.PopOf[s]; p >= 0 {
+				w.tabOf[s] = int32(p)
+			} else {
+				w.tabOf[s] = int32(w.nPop)
+			}
+		}
+	}
+	w.tabs = make([]siteTab, nt)
+	if w.nPop > 0 {
+		w.popCnt = make([][4]int64, w.nPop+1)
+		w.nBuf = make([]int64, w.nPop)
+		w.altBuf = make([]int64, w.nPop)
+		w.hetBuf = make([]int64, w.nPop)
+		for i := 0; i < w.nPop; i++ {
+			for j := i + 1; j < w.nPop; j++ {
+				w.pairIdx = append(w.pairIdx, [2]int{i, j})
+			}
+		}
+	}
+	return w
+}
+
+// Totals returns the worker's accumulated state (not a copy: stop calling
+// ProcessBatch before using it).
+func (w *Worker) Totals() *Totals { return w.t }
+
+// ProcessBatch computes the statistics of every record of b in order. For
+// each record it appends its sites.tsv row to sites and its
+// sites_by_population rows to popSites (may be nil; unused without
+// populations), sets freqs[i] to the alternate-allele frequency used for
+// record i (NaN when none), and adds the record's per-sample and
+// per-population contributions to the worker's totals. freqs must have
+// room for len(b.Records) values.
+func (w *Worker) ProcessBatch(b *vcfscan.Batch, sites, popSites *bytes.Buffer, freqs []float64) {
+	for i := range b.Records {
+		freqs[i] = w.record(&b.Records[i], b.Calls(i), sites, popSites)
+	}
+}
+
+func (w *Worker) chrom(id int) {
+	if id != w.lastChrom {
+		w.lastChrom = id
+		w.chromName = w.contigName(id)
+		w.chromBytes = append(w.chromBytes[:0], w.chromName...)
+	}
+}
+
+func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSites *bytes.Buffer) float64 {
+	t := w.t
+	cfg := w.cfg
+	w.chrom(rec.ChromID)
+	t.Sites++
+
+	// Cohort genotype counts, and per population when asked.
+	var cnt [6]int64
+	if w.nPop > 0 {
+		for k := range w.popCnt {
+			w.popCnt[k] = [4]int64{}
+		}
+		popOf := cfg.PopOf
+		for s, g := range calls {
+			cnt[g]++
+			if g <= vcfscan.HomAlt {
+				if p := popOf[s]; p >= 0 {
+					w.popCnt[p][g]++
+					w.popCnt[w.nPop][g]++
+				}
+			}
+		}
+	} else {
+		for _, g := range calls {
+			cnt[g]++
+		}
+	}
+	n0, n1, n2 := cnt[vcfscan.HomRef], cnt[vcfscan.Het], cnt[vcfscan.HomAlt]
+	nCalled := n0 + n1 + n2
+	cohortP := nan
+	if nCalled > 0 {
+		cohortP = float64(n1+2*n2) / float64(2*nCalled)
+	}
+
+	// Site statistics and row.
+	ho, he, fsite, hwe := siteStats(n0, n1, n2, w.cache)
+	if hwe.Computed {
+		t.HWE.add(&hwe)
+	}
+	if !math.IsNaN(fsite) {
+		t.HWE.FSite.Add(fsite)
+		t.HWE.FSiteN++
+	}
+	w.siteRow(sites, rec, &cnt, len(calls), cohortP, ho, he, fsite, &hwe)
+
+	// Populations: per-population rows and sums, WC components.
+	if w.nPop > 0 {
+		w.populations(rec, popSites)
+	}
+
+	// Frequencies for the per-sample estimators.
+	used := cohortP
+	switch cfg.Freqs {
+	case FreqCohort:
+		w.tabs[0].fill(cohortP, nCorr(nCalled))
+	case FreqPopulation:
+		for k := 0; k < w.nPop; k++ {
+			c := &w.popCnt[k]
+			nk := c[0] + c[1] + c[2]
+			pk := nan
+			if nk > 0 {
+				pk = float64(c[1]+2*c[2]) / float64(2*nk)
+			}
+			w.tabs[k].fill(pk, nCorr(nk))
+		}
+		w.tabs[w.nPop].fill(cohortP, nCorr(nCalled))
+	case FreqInfo:
+		used = rec.InfoValue
+		if math.IsNaN(used) {
+			t.Freq.InfoMissing++
+		}
+		w.tabs[0].fill(used, 1)
+	case FreqPanel:
+		p, idx, m := cfg.Panel.lookup(w.chromName, rec.Pos, upper(first(rec.Ref)), upper(first(rec.Alt)))
+		switch m {
+		case panelFound:
+			used = p
+			t.Freq.markMet(idx, cfg.Panel.Len())
+		case panelAbsent:
+			used = nan
+			t.Freq.PanelAbsent++
+		case panelMismatch:
+			used = nan
+			t.Freq.PanelMismatch++
+		}
+		w.tabs[0].fill(used, 1)
+	}
+
+	// Per-sample accumulation.
+	accs := t.PerSample
+	if len(w.tabs) == 1 {
+		tab := &w.tabs[0]
+		if tab.informative {
+			for s, g := range calls {
+				acc := &accs[s]
+				acc.Counts[g]++
+				if g <= vcfscan.HomAlt {
+					acc.addInformative(g, &tab.v[g])
+				}
+			}
+		} else {
+			for s, g := range calls {
+				accs[s].Counts[g]++
+			}
+		}
+	} else {
+		for s, g := range calls {
+			acc := &accs[s]
+			acc.Counts[g]++
+			if g <= vcfscan.HomAlt {
+				if tab := &w.tabs[w.tabOf[s]]; tab.informative {
+					acc.addInformative(g, &tab.v[g])
+				}
+			}
+		}
+	}
+	return used
+}
+
+func first(b []byte) byte {
+	if len(b) == 0 {
+		return 0
+	}
+	return b[0]
+}
+
+// nCorr is Nei's (1978) small-sample factor 2n/(2n-1) for n individuals.
+func nCorr(n int64) float64 {
+	if n <= 0 {
+		return 1
+	}
+	return float64(2*n) / float64(2*n-1)
+}
+
+func (a *SampleAcc) addInformative(g vcfscan.Geno, v *[nSums]Sum128) {
+	a.Informative++
+	if g != vcfscan.Het {
+		a.HomInformative++
+	}
+	for k := range a.Sums {
+		a.Sums[k].AddSum(v[k])
+	}
+}
+
+// siteStats returns observed and expected heterozygosity, f_site and the
+// HWE test for diploid counts. He carries Nei's (1978, Genetics
+// 89:583-590) small-sample correction 2n/(2n-1)*2pq; f_site = 1 - Ho/He.
+func siteStats(n0, n1, n2 int64, cache *hweCache) (ho, he, fsite float64, hwe HWEResult) {
+	n := n0 + n1 + n2
+	if n == 0 {
+		return nan, nan, nan, HWEResult{P: nan, MidP: nan, Deficit: nan, Excess: nan, PObs: nan, ChiSq: nan}
+	}
+	p := float64(n1+2*n2) / float64(2*n)
+	ho = float64(n1) / float64(n)
+	he = nCorr(n) * 2 * p * (1 - p)
+	fsite = nan
+	if he > 0 {
+		fsite = 1 - ho/he
+	}
+	hwe = cache.test(n0, n1, n2)
+	return
+}
+
+func (w *Worker) populations(rec *vcfscan.Record, popSites *bytes.Buffer) {
+	t := w.t
+	for k := 0; k <= w.nPop; k++ {
+		c := &w.popCnt[k]
+		c[3] = c[0] + c[1] + c[2]
+		ho, he, fsite, hwe := siteStats(c[0], c[1], c[2], w.cache)
+		g := &t.Groups[k]
+		if c[3] > 0 {
+			g.Sites++
+			g.HoSum.Add(ho)
+			g.HeSum.Add(he)
+		}
+		if hwe.Computed {
+			g.Tested++
+			if hwe.P < 1e-6 {
+				g.BelowE6++
+			}
+		}
+		if k < w.nPop && popSites != nil {
+			b := w.scratch[:0]
+			b = append(b, w.chromBytes...)
+			b = append(b, '\t')
+			b = strconv.AppendInt(b, rec.Pos, 10)
+			b = append(b, '\t')
+			b = append(b, w.cfg.PopNames[k]...)
+			b = append(b, '\t')
+			b = strconv.AppendInt(b, c[3], 10)
+			b = appendFloat(b, ho)
+			b = appendFloat(b, he)
+			b = appendFloat(b, fsite)
+			b = appendFloat(b, hwe.P)
+			b = append(b, '\n')
+			popSites.Write(b)
+			w.scratch = b
+		}
+	}
+	// Weir & Cockerham components over all populations and per pair.
+	for k := 0; k < w.nPop; k++ {
+		c := &w.popCnt[k]
+		w.nBuf[k], w.altBuf[k], w.hetBuf[k] = c[3], c[1]+2*c[2], c[1]
+	}
+	blk := w.blockFor(rec.Pos)
+	if a, b, c, ok := WeirCockerham(w.nBuf, w.altBuf, w.hetBuf); ok {
+		blk.All.add(a, b, c)
+	}
+	for j, pr := range w.pairIdx {
+		i0, i1 := pr[0], pr[1]
+		n := [2]int64{w.nBuf[i0], w.nBuf[i1]}
+		al := [2]int64{w.altBuf[i0], w.altBuf[i1]}
+		h := [2]int64{w.hetBuf[i0], w.hetBuf[i1]}
+		if n[0] == 0 || n[1] == 0 {
+			continue
+		}
+		if a, b, c, ok := WeirCockerham(n[:], al[:], h[:]); ok {
+			blk.Pairs[j].add(a, b, c)
+		}
+	}
+}
+
+func (w *Worker) blockFor(pos int64) *BlockAcc {
+	bp := w.cfg.JackknifeBlockBP
+	if bp <= 0 {
+		bp = DefaultJackknifeBlockBP
+	}
+	k := BlockKey{Chrom: w.chromName, Index: (pos - 1) / bp}
+	if w.block != nil && k == w.lastBlock {
+		return w.block
+	}
+	b := w.t.Blocks[k]
+	if b == nil {
+		b = &BlockAcc{Pairs: make([]WCSums, len(w.pairIdx))}
+		w.t.Blocks[k] = b
+	}
+	w.lastBlock, w.block = k, b
+	return b
+}
+
+func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64, nSel int, p, ho, he, fsite float64, hwe *HWEResult) {
+	if sites == nil {
+		return
+	}
+	b := w.scratch[:0]
+	b = append(b, w.chromBytes...)
+	b = append(b, '\t')
+	b = strconv.AppendInt(b, rec.Pos, 10)
+	b = append(b, '\t')
+	b = append(b, rec.Ref...)
+	b = append(b, '\t')
+	b = append(b, rec.Alt...)
+	for _, g := range [...]vcfscan.Geno{vcfscan.HomRef, vcfscan.Het, vcfscan.HomAlt, vcfscan.Missing} {
+		b = append(b, '\t')
+		b = strconv.AppendInt(b, cnt[g], 10)
+	}
+	b = append(b, '\t')
+	b = strconv.AppendInt(b, cnt[vcfscan.HaploidRef]+cnt[vcfscan.HaploidAlt], 10)
+	called := cnt[0] + cnt[1] + cnt[2]
+	b = appendFloat(b, p)
+	maf := nan
+	if !math.IsNaN(p) {
+		maf = math.Min(p, 1-p)
+	}
+	b = appendFloat(b, maf)
+	cr := nan
+	if nSel > 0 {
+		cr = float64(called) / float64(nSel)
+	}
+	b = appendFloat(b, cr)
+	b = appendFloat(b, ho)
+	b = appendFloat(b, he)
+	b = appendFloat(b, fsite)
+	b = appendFloat(b, hwe.P)
+	b = appendFloat(b, hwe.MidP)
+	b = appendFloat(b, hwe.Deficit)
+	b = appendFloat(b, hwe.Excess)
+	b = append(b, '\n')
+	sites.Write(b)
+	w.scratch = b
+}
+
+// appendFloat appends a tab and x in shortest round-trip form, or NA.
+func appendFloat(b []byte, x float64) []byte {
+	b = append(b, '\t')
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return append(b, "NA"...)
+	}
+	return strconv.AppendFloat(b, x, 'g', -1, 64)
+}
+
+// SitesHeader is the header line of sites.tsv (no trailing newline).
+func SitesHeader() string {
+	return "chrom\tpos\tref\talt\tn_hom_ref\tn_het\tn_hom_alt\tn_missing\tn_haploid\talt_freq\tmaf\tcall_rate\thet_observed\thet_expected\tf_site\thwe_p\thwe_midp\thwe_p_deficit\thwe_p_excess"
+}
+
+// PopSitesHeader is the header line of sites_by_population.tsv.
+func PopSitesHeader() string {
+	return "chrom\tpos\tpopulation\tn_called\thet_observed\thet_expected\tf_site\thwe_p"
+}
