@@ -1,0 +1,52 @@
+package roh
+
+// chromData holds what detection needs of one chromosome: per-site
+// positions and allele frequencies, and per-sample genotypes packed 2 bits
+// per call (32 calls per uint64), sample-major so that a worker walks one
+// sample's calls contiguously. Phred likelihoods, where present, take 3
+// bytes per call (capped at 255) in a per-sample slice indexed by
+// plSite.
+//
+// Memory bound for one chromosome of S sites and N samples while it is
+// collected: N*S/4 bytes of genotypes + 3*N*(sites with likelihoods) bytes
+// + 28*S bytes of per-site data; while it is detected, another 96*S bytes
+// of shared tables and 41*S bytes per worker (73*S with Fit). At most two
+// chromosomes are held at once: the one being read and the one being
+// detected. BenchmarkCollect reports the measured bytes per sample-site.
+type chromData struct {
+	id     int
+	name   string
+	length int64
+	pos    []int64
+	freq   []float64
+	cm     []float64
+	geno   [][]uint64
+	plSite []int32
+	pl     [][]uint8 // nil until a site with likelihoods is seen
+	nPL    int32
+
+	// built before detection, shared read-only by workers
+	emit  []float64 // 8 per site: see emissionRow
+	trans []float64 // 4 per site: see transitions
+}
+
+func newChromData(id int, name string, length int64, nSamples int) *chromData {
+	return &chromData{id: id, name: name, length: length, geno: make([][]uint64, nSamples)}
+}
+
+// unpack writes sample s's genotype codes (0..3) into dst.
+func (ch *chromData) unpack(s int, dst []uint8) {
+	words := ch.geno[s]
+	n := len(dst)
+	for w, v := range words {
+		base := w * 32
+		end := base + 32
+		if end > n {
+			end = n
+		}
+		for t := base; t < end; t++ {
+			dst[t] = uint8(v & 3)
+			v >>= 2
+		}
+	}
+}

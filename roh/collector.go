@@ -1,0 +1,464 @@
+package roh
+
+import (
+	"fmt"
+	"math"
+	"sync"
+
+	"fgauge/vcfscan"
+)
+
+// Collector receives batches in input order, keeps the genotypes of the
+// current chromosome and hands each finished chromosome to a pool of
+// detection workers while reading continues. At most two chromosomes are
+// held: the one being read and the one being detected (a third waits for
+// the detection before it is queued).
+//
+// A Collector is used from one goroutine (AddBatch, Finish); its workers
+// are internal.
+type Collector struct {
+	cfg     Config
+	source  string
+	samples []string
+	contigs []vcfscan.Contig
+	auto    autosomeSet
+	autoOf  []int8 // per contig id: 0 unknown, 1 autosome, 2 other
+
+	cur      *chromData
+	curSkip  int // contig id of the excluded contig being read, or -1
+	done     map[int]bool
+	lastSeq  int64
+	excluded map[string]int64
+	chroms   []*chromWork
+
+	jobs    chan job
+	workers sync.WaitGroup
+	pending *sync.WaitGroup
+
+	errMu sync.Mutex
+	err   error
+
+	finished bool
+}
+
+// chromWork is one chromosome sent to detection.
+type chromWork struct {
+	data      *chromData
+	perSample [][]Run
+	fitF      []float64
+	fitRate   []float64
+	mapSource string
+}
+
+type job struct {
+	w      *chromWork
+	s0, s1 int
+	done   *sync.WaitGroup
+}
+
+// NewCollector starts cfg.Threads detection workers for the given samples
+// (in the order of the batches' calls) and header contigs. cfg is
+// validated (and completed) with Config.Validate; it is copied.
+func NewCollector(cfg *Config, samples []string, contigs []vcfscan.Contig) (*Collector, error) {
+	if cfg == nil {
+		cfg = DefaultConfig()
+	}
+	c := *cfg
+	if err := c.Validate(); err != nil {
+		return nil, err
+	}
+	col := &Collector{
+		cfg:      c,
+		source:   "input",
+		samples:  append([]string(nil), samples...),
+		auto:     c.autosomes(),
+		curSkip:  -1,
+		done:     map[int]bool{},
+		lastSeq:  -1,
+		excluded: map[string]int64{},
+		jobs:     make(chan job, 4*c.Threads),
+	}
+	col.UpdateContigs(contigs)
+	for i := 0; i < c.Threads; i++ {
+		col.workers.Add(1)
+		go col.worker()
+	}
+	return col, nil
+}
+
+// SetSource names the input in error messages (default "input").
+func (c *Collector) SetSource(name string) { c.source = name }
+
+// UpdateContigs replaces the contig list, for readers that append contigs
+// first met in records. Earlier entries must not change.
+func (c *Collector) UpdateContigs(contigs []vcfscan.Contig) {
+	c.contigs = append(c.contigs[:0:0], contigs...)
+	for len(c.autoOf) < len(c.contigs) {
+		c.autoOf = append(c.autoOf, 0)
+	}
+}
+
+func (c *Collector) contigName(id int) string {
+	if id >= 0 && id < len(c.contigs) {
+		return c.contigs[id].Name
+	}
+	return fmt.Sprintf("contig_%d", id)
+}
+
+func (c *Collector) isAutosome(id int) bool {
+	if id < 0 || id >= len(c.autoOf) {
+		return false
+	}
+	if c.autoOf[id] == 0 {
+		c.autoOf[id] = 2
+		if c.auto.is(c.contigs[id].Name) {
+			c.autoOf[id] = 1
+		}
+	}
+	return c.autoOf[id] == 1
+}
+
+func (c *Collector) parseErr(line int64, field, what string, err error) error {
+	return &vcfscan.ParseError{File: c.source, Line: line, Offset: -1, Record: -1, Field: field,
+		Err: fmt.Errorf("%s: %w", what, err)}
+}
+
+// AddBatch adds a batch. Batches must come in input order (Seq
+// increasing) with each chromosome in one stretch and positions not
+// decreasing within it. freqs[i] is the alternate-allele frequency of
+// record i (for example the cohort frequency from the stats layer); freqs
+// may be nil, and a NaN entry means unknown: then the frequency is
+// estimated from the calls of this batch's record (all samples), and a
+// site with no diploid calls at all is uninformative. Calls that are
+// haploid are treated as missing.
+func (c *Collector) AddBatch(b *vcfscan.Batch, freqs []float64) error {
+	if c.finished {
+		return fmt.Errorf("roh: AddBatch after Finish")
+	}
+	if err := c.workerErr(); err != nil {
+		return err
+	}
+	if b.Seq <= c.lastSeq {
+		return fmt.Errorf("roh: batch %d after batch %d: %w", b.Seq, c.lastSeq, vcfscan.ErrUnsorted)
+	}
+	c.lastSeq = b.Seq
+	if b.NSamples != len(c.samples) {
+		return fmt.Errorf("roh: batch has %d samples, collector %d: %w", b.NSamples, len(c.samples), vcfscan.ErrSampleCount)
+	}
+	if freqs != nil && len(freqs) != len(b.Records) {
+		return fmt.Errorf("roh: %d frequencies for %d records", len(freqs), len(b.Records))
+	}
+	ns := b.NSamples
+	for i := range b.Records {
+		rec := &b.Records[i]
+		id := rec.ChromID
+		if c.cur == nil || c.cur.id != id {
+			if c.curSkip != id {
+				if err := c.switchChrom(id, rec.Line); err != nil {
+					return err
+				}
+			}
+		}
+		if c.cur == nil {
+			c.excluded[c.contigName(id)]++
+			continue
+		}
+		ch := c.cur
+		if n := len(ch.pos); n > 0 && rec.Pos < ch.pos[n-1] {
+			return c.parseErr(rec.Line, "POS", fmt.Sprintf("position %d after %d on %s", rec.Pos, ch.pos[n-1], ch.name), vcfscan.ErrUnsorted)
+		}
+		calls := b.GT[i*ns : (i+1)*ns]
+		p := math.NaN()
+		if freqs != nil {
+			p = freqs[i]
+		}
+		if p != p {
+			p = cohortFreq(calls)
+		}
+		t := len(ch.pos)
+		ch.pos = append(ch.pos, rec.Pos)
+		ch.freq = append(ch.freq, p)
+		sh := uint(t&31) * 2
+		if sh == 0 {
+			for s := range ch.geno {
+				ch.geno[s] = append(ch.geno[s], 0)
+			}
+		}
+		w := t >> 5
+		for s, g := range calls {
+			if g > 3 {
+				g = 3
+			}
+			ch.geno[s][w] |= uint64(g) << sh
+		}
+		if b.PL != nil && i < len(b.HasPL) && b.HasPL[i] {
+			if ch.pl == nil {
+				ch.pl = make([][]uint8, ns)
+			}
+			pl := b.PL[3*i*ns : 3*(i+1)*ns]
+			for s := 0; s < ns; s++ {
+				ch.pl[s] = append(ch.pl[s], cap255(pl[3*s]), cap255(pl[3*s+1]), cap255(pl[3*s+2]))
+			}
+			ch.plSite = append(ch.plSite, ch.nPL)
+			ch.nPL++
+		} else {
+			ch.plSite = append(ch.plSite, -1)
+		}
+	}
+	return nil
+}
+
+func cap255(v uint16) uint8 {
+	if v > 255 {
+		return 255
+	}
+	return uint8(v)
+}
+
+// cohortFreq is the alternate-allele frequency among the diploid calls,
+// NaN when there are none.
+func cohortFreq(calls []vcfscan.Geno) float64 {
+	var n, alt int
+	for _, g := range calls {
+		if g <= vcfscan.HomAlt {
+			n += 2
+			alt += int(g)
+		}
+	}
+	if n == 0 {
+		return math.NaN()
+	}
+	return float64(alt) / float64(n)
+}
+
+// switchChrom closes the current chromosome and opens id.
+func (c *Collector) switchChrom(id int, line int64) error {
+	if c.cur != nil {
+		c.done[c.cur.id] = true
+		c.dispatch(c.cur)
+		c.cur = nil
+	}
+	if c.curSkip >= 0 {
+		c.done[c.curSkip] = true
+		c.curSkip = -1
+	}
+	if c.done[id] {
+		return c.parseErr(line, "CHROM", fmt.Sprintf("chromosome %s seen again after another", c.contigName(id)), vcfscan.ErrUnsorted)
+	}
+	if !c.isAutosome(id) {
+		c.curSkip = id
+		return nil
+	}
+	c.cur = newChromData(id, c.contigs[id].Name, c.contigs[id].Length, len(c.samples))
+	return nil
+}
+
+// prepare computes genetic positions and the shared emission and
+// transition tables of a finished chromosome.
+func (c *Collector) prepare(ch *chromData, w *chromWork) {
+	n := len(ch.pos)
+	ch.cm = make([]float64, n)
+	w.mapSource = "cm_per_mb"
+	if m := c.cfg.Map.chrom(ch.name); m != nil && len(m.Pos) > 0 {
+		w.mapSource = "genetic_map"
+		for i, p := range ch.pos {
+			ch.cm[i] = m.At(p, c.cfg.CMPerMB)
+		}
+	} else {
+		for i, p := range ch.pos {
+			ch.cm[i] = float64(p) * c.cfg.CMPerMB / 1e6
+		}
+	}
+	if c.cfg.Method != MethodHMM {
+		return
+	}
+	ch.emit = make([]float64, 8*n)
+	for t := 0; t < n; t++ {
+		emissionRow(ch.emit[8*t:8*t+8], ch.freq[t], c.cfg.GenotypeError)
+	}
+	if !c.cfg.Fit {
+		ch.trans = make([]float64, 4*n)
+		transitions(ch.trans, ch.cm, c.cfg.AutozygousPrior, c.cfg.Rate)
+	}
+}
+
+// dispatch queues a finished chromosome for detection, after the previous
+// one is done (bounding memory).
+func (c *Collector) dispatch(ch *chromData) {
+	w := &chromWork{data: ch, perSample: make([][]Run, len(c.samples))}
+	c.chroms = append(c.chroms, w)
+	if c.pending != nil {
+		c.pending.Wait()
+	}
+	if len(ch.pos) == 0 || len(c.samples) == 0 {
+		c.pending = nil
+		return
+	}
+	c.prepare(ch, w)
+	if c.cfg.Fit && c.cfg.Method == MethodHMM {
+		w.fitF = make([]float64, len(c.samples))
+		w.fitRate = make([]float64, len(c.samples))
+	}
+	ns := len(c.samples)
+	chunk := (ns + 4*c.cfg.Threads - 1) / (4 * c.cfg.Threads)
+	if chunk < 1 {
+		chunk = 1
+	}
+	wg := &sync.WaitGroup{}
+	var js []job
+	for s0 := 0; s0 < ns; s0 += chunk {
+		s1 := min(s0+chunk, ns)
+		wg.Add(1)
+		js = append(js, job{w: w, s0: s0, s1: s1, done: wg})
+	}
+	c.pending = wg
+	go func() {
+		for _, j := range js {
+			c.jobs <- j
+		}
+	}()
+}
+
+func (c *Collector) worker() {
+	defer c.workers.Done()
+	var sc hmmScratch
+	for j := range c.jobs {
+		c.detect(&sc, j)
+		j.done.Done()
+	}
+}
+
+func (c *Collector) setErr(err error) {
+	c.errMu.Lock()
+	if c.err == nil {
+		c.err = err
+	}
+	c.errMu.Unlock()
+}
+
+func (c *Collector) workerErr() error {
+	c.errMu.Lock()
+	defer c.errMu.Unlock()
+	return c.err
+}
+
+// detect finds the runs of samples j.s0..j.s1-1 on one chromosome.
+func (c *Collector) detect(sc *hmmScratch, j job) {
+	defer func() {
+		if r := recover(); r != nil {
+			c.setErr(fmt.Errorf("roh: detection on %s failed: %v", j.w.data.name, r))
+		}
+	}()
+	ch := j.w.data
+	maxGap := int64(c.cfg.MaxGapKB * 1000)
+	for s := j.s0; s < j.s1; s++ {
+		if c.cfg.Method == MethodRules {
+			sc.code = grow(sc.code, len(ch.pos))
+			ch.unpack(s, sc.code)
+			j.w.perSample[s] = rulesRuns(ch, s, sc.code, &c.cfg.Rules, maxGap)
+			continue
+		}
+		sc.fillEmissions(ch, s)
+		tr := ch.trans
+		if c.cfg.Fit {
+			f, a := sc.fitSample(ch.cm, c.cfg.AutozygousPrior, c.cfg.Rate, c.cfg.FitIterations)
+			j.w.fitF[s], j.w.fitRate[s] = f, a
+			transitions(sc.tr, ch.cm, f, a)
+			tr = sc.tr
+		}
+		sc.forward(tr)
+		sc.backward(tr, ch.cm, nil)
+		sc.viterbi(tr)
+		j.w.perSample[s] = hmmRuns(ch, s, sc.code, sc.path, sc.post, maxGap)
+	}
+}
+
+// hmmRuns turns the Viterbi path into runs: maximal stretches in the
+// autozygous state, split where consecutive sites are more than maxGap bp
+// apart, trimmed to start and end on called sites.
+func hmmRuns(ch *chromData, s int, code, path []uint8, post []float64, maxGap int64) []Run {
+	var runs []Run
+	n := len(path)
+	t := 0
+	for t < n {
+		if path[t] != stA {
+			t++
+			continue
+		}
+		u := t
+		for u+1 < n && path[u+1] == stA && ch.pos[u+1]-ch.pos[u] <= maxGap {
+			u++
+		}
+		// trim missing ends
+		a, b := t, u
+		for a <= b && code[a] == 3 {
+			a++
+		}
+		for b >= a && code[b] == 3 {
+			b--
+		}
+		if a <= b {
+			r := Run{Sample: s, Start: ch.pos[a], End: ch.pos[b], StartCM: ch.cm[a], EndCM: ch.cm[b], NSites: b - a + 1}
+			var q float64
+			for k := a; k <= b; k++ {
+				switch code[k] {
+				case 1:
+					r.NHet++
+				case 3:
+					r.NMissing++
+				}
+				q += post[k]
+			}
+			r.Quality = q / float64(r.NSites)
+			runs = append(runs, r)
+		}
+		t = u + 1
+	}
+	return runs
+}
+
+// Finish waits for detection and returns the result. The Collector must
+// not be used afterwards.
+func (c *Collector) Finish() (*Result, error) {
+	if c.finished {
+		return nil, fmt.Errorf("roh: Finish called twice")
+	}
+	if c.cur != nil {
+		c.done[c.cur.id] = true
+		c.dispatch(c.cur)
+		c.cur = nil
+	}
+	if c.pending != nil {
+		c.pending.Wait()
+	}
+	c.finished = true
+	close(c.jobs)
+	c.workers.Wait()
+	if err := c.workerErr(); err != nil {
+		return nil, err
+	}
+	r := &Result{
+		Method:        c.cfg.Method,
+		Samples:       c.samples,
+		Classes:       append([]float64(nil), c.cfg.Classes...),
+		GenotypeError: c.cfg.GenotypeError,
+		CMPerMB:       c.cfg.CMPerMB,
+		Fit:           c.cfg.Fit,
+		Excluded:      c.excluded,
+	}
+	for _, w := range c.chroms {
+		ch := w.data
+		cr := ChromResult{Name: ch.name, Length: ch.length, NSites: len(ch.pos), MapSource: w.mapSource,
+			FitF: w.fitF, FitRate: w.fitRate}
+		if len(ch.pos) > 0 {
+			cr.FirstPos, cr.LastPos = ch.pos[0], ch.pos[len(ch.pos)-1]
+		}
+		for _, rs := range w.perSample {
+			cr.Runs = append(cr.Runs, rs...)
+		}
+		r.Chroms = append(r.Chroms, cr)
+		w.data, w.perSample = nil, nil
+	}
+	c.chroms = nil
+	return r, nil
+}

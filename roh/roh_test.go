@@ -1,0 +1,589 @@
+package roh
+
+import (
+	"bytes"
+	"errors"
+	"math"
+	"math/rand/v2"
+	"strings"
+	"testing"
+
+	"fgauge/vcfscan"
+)
+
+// site is one hand-built record: position, frequency and calls.
+type site struct {
+	chrom int
+	pos   int64
+	p     float64
+	gt    []vcfscan.Geno
+}
+
+// batches packs sites into batches of at most size records.
+func batches(sites []site, nSamples, size int) ([]*vcfscan.Batch, [][]float64) {
+	var bs []*vcfscan.Batch
+	var fs [][]float64
+	for i := 0; i < len(sites); i += size {
+		j := min(i+size, len(sites))
+		b := &vcfscan.Batch{Seq: int64(len(bs)), NSamples: nSamples}
+		var f []float64
+		for _, s := range sites[i:j] {
+			b.Records = append(b.Records, vcfscan.Record{ChromID: s.chrom, Pos: s.pos, Line: int64(len(b.Records) + 1)})
+			b.GT = append(b.GT, s.gt...)
+			f = append(f, s.p)
+		}
+		bs = append(bs, b)
+		fs = append(fs, f)
+	}
+	return bs, fs
+}
+
+func collect(t testing.TB, cfg *Config, samples []string, contigs []vcfscan.Contig, sites []site) *Result {
+	t.Helper()
+	c, err := NewCollector(cfg, samples, contigs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	bs, fs := batches(sites, len(samples), 333)
+	for i, b := range bs {
+		if err := c.AddBatch(b, fs[i]); err != nil {
+			t.Fatal(err)
+		}
+	}
+	r, err := c.Finish()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
+// hwe draws a genotype in Hardy-Weinberg proportions.
+func hwe(rng *rand.Rand, p float64) vcfscan.Geno {
+	var g vcfscan.Geno
+	if rng.Float64() < p {
+		g++
+	}
+	if rng.Float64() < p {
+		g++
+	}
+	return g
+}
+
+// plantedChrom builds one chromosome of n sites every step bp for one
+// sample: Hardy-Weinberg calls at p=0.5 except homozygous in
+// [from, to) bp, then applies edits.
+func plantedChrom(seed uint64, n int, step int64, from, to int64, edit func(pos int64, g vcfscan.Geno) vcfscan.Geno) []site {
+	rng := rand.New(rand.NewPCG(seed, 1))
+	var out []site
+	for i := 0; i < n; i++ {
+		pos := int64(i+1) * step
+		g := hwe(rng, 0.5)
+		if pos >= from && pos < to {
+			g = vcfscan.Geno(2 * rng.IntN(2))
+		}
+		if edit != nil {
+			g = edit(pos, g)
+		}
+		out = append(out, site{0, pos, 0.5, []vcfscan.Geno{g}})
+	}
+	return out
+}
+
+// Hand-built sequences with a known answer: the planted stretch is found;
+// an isolated heterozygous call (a genotyping error) and missing calls
+// inside it do not break it. Expected values follow from the construction.
+func TestHMMHandBuilt(t *testing.T) {
+	contigs := []vcfscan.Contig{{Name: "1", Length: 20_000_000}}
+	tests := []struct {
+		name             string
+		edit             func(pos int64, g vcfscan.Geno) vcfscan.Geno
+		wantHet, wantMis int
+	}{
+		{"clean", nil, 0, 0},
+		{"one het inside", func(pos int64, g vcfscan.Geno) vcfscan.Geno {
+			if pos == 7_000_000 {
+				return vcfscan.Het
+			}
+			return g
+		}, 1, 0},
+		{"missing block inside", func(pos int64, g vcfscan.Geno) vcfscan.Geno {
+			if pos >= 8_000_000 && pos < 8_200_000 {
+				return vcfscan.Missing
+			}
+			return g
+		}, 0, 20},
+		{"missing everywhere else", func(pos int64, g vcfscan.Geno) vcfscan.Geno {
+			if pos%30_000 == 0 {
+				return vcfscan.Missing
+			}
+			return g
+		}, 0, -1},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			sites := plantedChrom(7, 2000, 10_000, 5_000_000, 10_000_000, tc.edit)
+			r := collect(t, DefaultConfig(), []string{"a1"}, contigs, sites)
+			var long []Run
+			for _, run := range r.Chroms[0].Runs {
+				if run.LengthBP() >= 1_000_000 {
+					long = append(long, run)
+				}
+			}
+			if len(long) != 1 {
+				t.Fatalf("want 1 run >= 1 Mb, got %d: %+v", len(long), r.Chroms[0].Runs)
+			}
+			run := long[0]
+			// Boundaries within a few sites of the planted ones: outside the
+			// stretch a site is homozygous with probability 1/2, so the run
+			// may extend by a few sites.
+			if d := run.Start - 5_000_000; d > 0 || d < -80_000 {
+				t.Errorf("start %d, want near 5000000", run.Start)
+			}
+			if d := run.End - 9_990_000; d < 0 || d > 80_000 {
+				t.Errorf("end %d, want near 9990000", run.End)
+			}
+			if run.NHet != tc.wantHet {
+				t.Errorf("n_het %d, want %d", run.NHet, tc.wantHet)
+			}
+			if tc.wantMis >= 0 && run.NMissing != tc.wantMis {
+				t.Errorf("n_missing %d, want %d", run.NMissing, tc.wantMis)
+			}
+			if !(run.Quality > 0.9 && run.Quality <= 1) {
+				t.Errorf("quality %g, want > 0.9", run.Quality)
+			}
+		})
+	}
+}
+
+// Unknown frequency (NaN) with a single sample makes every site
+// uninformative: no run is called. Missing calls are uninformative too.
+func TestHMMUninformative(t *testing.T) {
+	contigs := []vcfscan.Contig{{Name: "1"}}
+	var sites []site
+	for i := 0; i < 500; i++ {
+		sites = append(sites, site{0, int64(i+1) * 10_000, math.NaN(), []vcfscan.Geno{vcfscan.Missing}})
+	}
+	r := collect(t, DefaultConfig(), []string{"a1"}, contigs, sites)
+	if n := len(r.Chroms[0].Runs); n != 0 {
+		t.Fatalf("all-missing chromosome: %d runs, want 0", n)
+	}
+	_, src := r.Covered()
+	if src != "site_span" {
+		t.Errorf("covered source %q, want site_span (no header length)", src)
+	}
+}
+
+func TestRulesHandBuilt(t *testing.T) {
+	contigs := []vcfscan.Contig{{Name: "chr1", Length: 20_000_000}}
+	cfg := DefaultConfig()
+	cfg.Method = MethodRules
+	tests := []struct {
+		name    string
+		edit    func(pos int64, g vcfscan.Geno) vcfscan.Geno
+		want    [][2]int64 // runs >= 1 Mb, approximately
+		wantHet []int
+	}{
+		// may extend past the planted end through one chance het
+		{"clean", nil, [][2]int64{{5_000_000, 9_990_000}}, []int{-1}},
+		{"one het tolerated", func(pos int64, g vcfscan.Geno) vcfscan.Geno {
+			if pos == 7_000_000 {
+				return vcfscan.Het
+			}
+			return g
+		}, [][2]int64{{5_000_000, 9_990_000}}, []int{1}},
+		// With this seed 4.99 Mb and 10.03 Mb are chance hets, so the
+		// candidates are 5.00-8.99 Mb (3.99 Mb, het at 6.0) and
+		// 6.01-10.02 Mb (4.01 Mb, het at 9.0): the longer wins, and what is
+		// left of the other, 4.94-5.99 Mb (het at 4.99), is a second run
+		// (worked by hand from the printed sequence).
+		{"two hets split", func(pos int64, g vcfscan.Geno) vcfscan.Geno {
+			if pos == 6_000_000 || pos == 9_000_000 {
+				return vcfscan.Het
+			}
+			return g
+		}, [][2]int64{{4_940_000, 5_990_000}, {6_010_000, 10_020_000}}, []int{1, 1}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			sites := plantedChrom(7, 2000, 10_000, 5_000_000, 10_000_000, tc.edit)
+			r := collect(t, cfg, []string{"a1"}, contigs, sites)
+			runs := r.Chroms[0].Runs
+			if len(runs) != len(tc.want) {
+				t.Fatalf("got %d runs %+v, want %d", len(runs), runs, len(tc.want))
+			}
+			for i, w := range tc.want {
+				if d := runs[i].Start - w[0]; d > 0 || d < -80_000 {
+					t.Errorf("run %d start %d, want near %d", i, runs[i].Start, w[0])
+				}
+				if d := runs[i].End - w[1]; d < 0 || d > 80_000 {
+					t.Errorf("run %d end %d, want near %d", i, runs[i].End, w[1])
+				}
+				if tc.wantHet[i] >= 0 && runs[i].NHet != tc.wantHet[i] {
+					t.Errorf("run %d n_het %d, want %d", i, runs[i].NHet, tc.wantHet[i])
+				}
+				if !math.IsNaN(runs[i].Quality) {
+					t.Errorf("rules quality %g, want NaN", runs[i].Quality)
+				}
+			}
+		})
+	}
+}
+
+// randomCohort draws nSamples genotypes on two chromosomes with planted
+// homozygous stretches of random length.
+func randomCohort(seed uint64, nSamples int) ([]vcfscan.Contig, []site) {
+	rng := rand.New(rand.NewPCG(seed, 2))
+	contigs := []vcfscan.Contig{{Name: "1", Length: 30_000_000}, {Name: "2", Length: 20_000_000}, {Name: "X", Length: 10_000_000}}
+	var sites []site
+	for c, ct := range contigs {
+		// planted stretches per sample
+		type iv struct{ a, b int64 }
+		plant := make([]iv, nSamples)
+		for s := range plant {
+			a := rng.Int64N(ct.Length / 2)
+			plant[s] = iv{a, a + 1_000_000 + rng.Int64N(ct.Length/3)}
+		}
+		pos := int64(0)
+		for {
+			pos += 5_000 + rng.Int64N(40_000)
+			if pos > ct.Length {
+				break
+			}
+			if rng.IntN(200) == 0 {
+				pos += 1_500_000 // an occasional large gap
+			}
+			p := 0.05 + 0.9*rng.Float64()
+			gt := make([]vcfscan.Geno, nSamples)
+			for s := range gt {
+				gt[s] = hwe(rng, p)
+				if pos >= plant[s].a && pos < plant[s].b {
+					gt[s] = vcfscan.Geno(2 * rng.IntN(2))
+				}
+				if rng.IntN(500) == 0 {
+					gt[s] = vcfscan.Missing
+				}
+				if rng.IntN(1000) == 0 {
+					gt[s] = vcfscan.Het
+				}
+			}
+			sites = append(sites, site{c, pos, p, gt})
+		}
+	}
+	return contigs, sites
+}
+
+func sampleNames(n int) []string {
+	s := make([]string, n)
+	for i := range s {
+		s[i] = "calf_" + string(rune('a'+i%26)) + string(rune('a'+i/26))
+	}
+	return s
+}
+
+// Reversing the order of the sites of a chromosome (mirroring positions)
+// gives the same runs, mirrored, for both detectors: neither depends on a
+// scan direction.
+func TestReversalInvariance(t *testing.T) {
+	const ns = 8
+	contigs, sites := randomCohort(11, ns)
+	for _, method := range []string{MethodHMM, MethodRules} {
+		t.Run(method, func(t *testing.T) {
+			cfg := DefaultConfig()
+			cfg.Method = method
+			fwd := collect(t, cfg, sampleNames(ns), contigs, sites)
+			// mirror each chromosome: pos -> L+1-pos, order reversed
+			var rev []site
+			for c, ct := range contigs {
+				var one []site
+				for _, s := range sites {
+					if s.chrom == c {
+						one = append(one, site{c, ct.Length + 1 - s.pos, s.p, s.gt})
+					}
+				}
+				for i := len(one) - 1; i >= 0; i-- {
+					rev = append(rev, one[i])
+				}
+			}
+			bwd := collect(t, cfg, sampleNames(ns), contigs, rev)
+			total := 0
+			for ci, cr := range fwd.Chroms {
+				L := cr.Length
+				want := map[[3]int64]Run{}
+				for _, r := range cr.Runs {
+					want[[3]int64{int64(r.Sample), r.Start, r.End}] = r
+				}
+				got := bwd.Chroms[ci].Runs
+				if len(got) != len(cr.Runs) {
+					t.Errorf("%s: %d runs forward, %d reversed", cr.Name, len(cr.Runs), len(got))
+				}
+				for _, r := range got {
+					k := [3]int64{int64(r.Sample), L + 1 - r.End, L + 1 - r.Start}
+					w, ok := want[k]
+					if !ok {
+						t.Errorf("%s: reversed run %+v has no forward twin", cr.Name, r)
+						continue
+					}
+					if w.NSites != r.NSites || w.NHet != r.NHet || w.NMissing != r.NMissing {
+						t.Errorf("%s: counts differ: %+v vs %+v", cr.Name, w, r)
+					}
+					if method == MethodHMM && math.Abs(w.Quality-r.Quality) > 1e-9 {
+						t.Errorf("%s: quality %g vs %g", cr.Name, w.Quality, r.Quality)
+					}
+					total++
+				}
+			}
+			if total < ns {
+				t.Errorf("only %d runs matched; the planted stretches should give at least %d", total, ns)
+			}
+		})
+	}
+}
+
+// Splitting the input at a chromosome boundary and merging the two
+// results gives the same tables as one pass.
+func TestShardMerge(t *testing.T) {
+	const ns = 6
+	contigs, sites := randomCohort(5, ns)
+	for _, method := range []string{MethodHMM, MethodRules} {
+		cfg := DefaultConfig()
+		cfg.Method = method
+		cfg.Threads = 2
+		whole := collect(t, cfg, sampleNames(ns), contigs, sites)
+		var a, b []site
+		for _, s := range sites {
+			if s.chrom == 0 {
+				a = append(a, s)
+			} else {
+				b = append(b, s)
+			}
+		}
+		ra := collect(t, cfg, sampleNames(ns), contigs, a)
+		rb := collect(t, cfg, sampleNames(ns), contigs, b)
+		if err := ra.Merge(rb); err != nil {
+			t.Fatal(err)
+		}
+		var w1, w2 bytes.Buffer
+		whole.WriteRuns(&w1)
+		ra.WriteRuns(&w2)
+		if w1.String() != w2.String() {
+			t.Errorf("%s: runs.tsv differs after merge", method)
+		}
+		if strings.Count(w1.String(), "\n") < ns {
+			t.Errorf("%s: too few runs: %q", method, w1.String())
+		}
+		h1, r1 := whole.SampleTable()
+		h2, r2 := ra.SampleTable()
+		if strings.Join(h1, ",") != strings.Join(h2, ",") {
+			t.Errorf("header differs")
+		}
+		for i := range r1 {
+			if strings.Join(r1[i], ",") != strings.Join(r2[i], ",") {
+				t.Errorf("%s: sample row %d differs: %v vs %v", method, i, r1[i], r2[i])
+			}
+		}
+		if whole.Excluded["X"] == 0 || ra.Excluded["X"] != whole.Excluded["X"] {
+			t.Errorf("excluded X: whole %d merged %d", whole.Excluded["X"], ra.Excluded["X"])
+		}
+		if err := ra.Merge(rb); err == nil {
+			t.Errorf("merging the same chromosome twice: want error")
+		}
+	}
+}
+
+// Runs never cross a gap larger than MaxGapKB and never extend beyond the
+// sites of their chromosome.
+func TestGapsAndBounds(t *testing.T) {
+	const ns = 10
+	contigs, sites := randomCohort(3, ns)
+	for _, method := range []string{MethodHMM, MethodRules} {
+		cfg := DefaultConfig()
+		cfg.Method = method
+		r := collect(t, cfg, sampleNames(ns), contigs, sites)
+		checkRuns(t, r, sites, contigs, 1_000_000)
+	}
+}
+
+// checkRuns asserts that no run spans a gap > maxGap between consecutive
+// sites, and runs lie within their chromosome's sites.
+func checkRuns(t *testing.T, r *Result, sites []site, contigs []vcfscan.Contig, maxGap int64) {
+	t.Helper()
+	byName := map[string]int{}
+	for i, c := range contigs {
+		byName[c.Name] = i
+	}
+	for _, cr := range r.Chroms {
+		ci := byName[cr.Name]
+		var pos []int64
+		for _, s := range sites {
+			if s.chrom == ci {
+				pos = append(pos, s.pos)
+			}
+		}
+		for _, run := range cr.Runs {
+			if run.Start < cr.FirstPos || run.End > cr.LastPos || run.End < run.Start {
+				t.Errorf("%s: run %d-%d outside sites %d-%d", cr.Name, run.Start, run.End, cr.FirstPos, cr.LastPos)
+			}
+			for i := 1; i < len(pos); i++ {
+				if pos[i-1] >= run.Start && pos[i] <= run.End && pos[i]-pos[i-1] > maxGap {
+					t.Errorf("%s: run %d-%d crosses gap %d-%d", cr.Name, run.Start, run.End, pos[i-1], pos[i])
+				}
+			}
+		}
+	}
+}
+
+func TestUnsorted(t *testing.T) {
+	contigs := []vcfscan.Contig{{Name: "1"}, {Name: "2"}}
+	g := []vcfscan.Geno{0}
+	tests := []struct {
+		name  string
+		sites []site
+	}{
+		{"position decreases", []site{{0, 100, 0.5, g}, {0, 50, 0.5, g}}},
+		{"chromosome comes back", []site{{0, 100, 0.5, g}, {1, 50, 0.5, g}, {0, 200, 0.5, g}}},
+	}
+	for _, tc := range tests {
+		c, err := NewCollector(DefaultConfig(), []string{"a"}, contigs)
+		if err != nil {
+			t.Fatal(err)
+		}
+		bs, fs := batches(tc.sites, 1, 10)
+		err = c.AddBatch(bs[0], fs[0])
+		if !errors.Is(err, vcfscan.ErrUnsorted) {
+			t.Errorf("%s: got %v, want ErrUnsorted", tc.name, err)
+		}
+		var pe *vcfscan.ParseError
+		if !errors.As(err, &pe) || pe.Line == 0 {
+			t.Errorf("%s: want a ParseError with a line, got %v", tc.name, err)
+		}
+		c.Finish()
+	}
+}
+
+func TestConfigValidate(t *testing.T) {
+	tests := []struct {
+		name string
+		edit func(*Config)
+		ok   bool
+	}{
+		{"default", func(*Config) {}, true},
+		{"bad method", func(c *Config) { c.Method = "magic" }, false},
+		{"zero error", func(c *Config) { c.GenotypeError = 0 }, false},
+		{"negative cM", func(c *Config) { c.CMPerMB = -1 }, false},
+		{"no classes", func(c *Config) { c.Classes = nil }, false},
+		{"duplicate class", func(c *Config) { c.Classes = []float64{1, 1} }, false},
+		{"unknown species", func(c *Config) { c.Species = "unicorn" }, false},
+		{"species", func(c *Config) { c.Species = "cattle" }, true},
+	}
+	for _, tc := range tests {
+		c := DefaultConfig()
+		tc.edit(c)
+		err := c.Validate()
+		if (err == nil) != tc.ok {
+			t.Errorf("%s: err = %v", tc.name, err)
+		}
+		if err != nil && !errors.Is(err, ErrConfig) {
+			t.Errorf("%s: error does not wrap ErrConfig", tc.name)
+		}
+	}
+}
+
+func TestAutosomes(t *testing.T) {
+	tests := []struct {
+		species string
+		list    []string
+		name    string
+		want    bool
+	}{
+		{"", nil, "1", true},
+		{"", nil, "chr22", true},
+		{"", nil, "X", false},
+		{"", nil, "chrUn_gl000220", false},
+		{"", nil, "MT", false},
+		{"", nil, "01", false},
+		{"cattle", nil, "chr29", true},
+		{"cattle", nil, "30", false},
+		{"chicken", nil, "29", false},
+		{"chicken", nil, "Z", false},
+		{"human", []string{"chrX"}, "X", true},
+		{"human", []string{"chrX"}, "1", false},
+	}
+	for _, tc := range tests {
+		c := DefaultConfig()
+		c.Species, c.Autosomes = tc.species, tc.list
+		if got := c.autosomes().is(tc.name); got != tc.want {
+			t.Errorf("species %q list %v name %q: got %v", tc.species, tc.list, tc.name, got)
+		}
+	}
+}
+
+func TestGeneticMap(t *testing.T) {
+	const in = "chrom pos cm\n# comment\nchr1 1000000 0.5\n1 2000000 2.5\n1 4000000 3.5\n2 500 1\n"
+	m, err := ReadGeneticMap(strings.NewReader(in), "map.txt")
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := m.chrom("chr1")
+	// linear interpolation and end extrapolation by the nearest slope,
+	// worked by hand from the three points above.
+	for _, tc := range []struct {
+		pos  int64
+		want float64
+	}{{1_000_000, 0.5}, {1_500_000, 1.5}, {3_000_000, 3.0}, {5_000_000, 4.0}, {0, -1.5}} {
+		if got := c.At(tc.pos, 1); math.Abs(got-tc.want) > 1e-12 {
+			t.Errorf("At(%d) = %g, want %g", tc.pos, got, tc.want)
+		}
+	}
+	if got := m.chrom("2").At(1_000_500, 2); math.Abs(got-3) > 1e-12 {
+		t.Errorf("single point map: got %g, want 3", got)
+	}
+	for _, bad := range []string{"1 100 1\n1 50 2\n", "1 100 2\n1 200 1\n", "1 100\n", "1 100 1\n1 x 2\n", ""} {
+		_, err := ReadGeneticMap(strings.NewReader(bad), "bad.txt")
+		if !errors.Is(err, ErrMap) {
+			t.Errorf("%q: got %v, want ErrMap", bad, err)
+		}
+	}
+}
+
+// Emission rows are probability distributions over the three genotypes.
+func TestEmissionRowSums(t *testing.T) {
+	row := make([]float64, 8)
+	for _, p := range []float64{0, 0.01, 0.3, 0.5, 0.99, 1} {
+		for _, e := range []float64{0.001, 0.05} {
+			emissionRow(row, p, e)
+			for st := 0; st < 2; st++ {
+				s := row[4*st] + row[4*st+1] + row[4*st+2]
+				if math.Abs(s-1) > 1e-12 {
+					t.Errorf("p=%g e=%g state %d: sum %g", p, e, st, s)
+				}
+			}
+		}
+	}
+}
+
+func TestSampleTableAndSummary(t *testing.T) {
+	r := &Result{Method: MethodHMM, Samples: []string{"a", "b"}, Classes: []float64{1, 2, 4},
+		Chroms: []ChromResult{{Name: "1", Length: 10_000_000, FirstPos: 1, LastPos: 9_000_000, NSites: 100,
+			Runs: []Run{{Sample: 0, Start: 1, End: 3_000_000, EndCM: 3}, {Sample: 0, Start: 4_000_001, End: 4_500_000, EndCM: 4.5}}}}}
+	h, rows := r.SampleTable()
+	if strings.Join(h, " ") != "n_runs roh_total_bp f_roh f_roh_gt_1mb f_roh_gt_2mb f_roh_gt_4mb" {
+		t.Errorf("header %v", h)
+	}
+	// hand-computed: one run of 3 Mb counted, 0.5 Mb run below 1 Mb
+	if got := strings.Join(rows[0], " "); got != "1 3000000 0.3 0.3 0.3 0" {
+		t.Errorf("row a = %q", got)
+	}
+	if got := strings.Join(rows[1], " "); got != "0 0 0 0 0 0" {
+		t.Errorf("row b = %q", got)
+	}
+	s := r.Summary()
+	if s["covered_bp"] != int64(10_000_000) || s["covered_source"] != "contig_lengths" {
+		t.Errorf("summary %v", s)
+	}
+	var buf bytes.Buffer
+	r.WriteRuns(&buf)
+	lines := strings.Split(strings.TrimSpace(buf.String()), "\n")
+	if len(lines) != 3 || lines[1] != "a\t1\t1\t3000000\t3000000\t3\t0\t0\t0\t0\t16.666666666666668" {
+		t.Errorf("runs.tsv:\n%s", buf.String())
+	}
+}
