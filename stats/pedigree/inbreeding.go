@@ -1,0 +1,160 @@
+package pedigree
+
+import "fmt"
+
+// tracer holds the work space of the Meuwissen & Luo (1992) ancestor trace:
+// a dense L row, and a max-heap of the ancestors still to visit (animals are
+// sorted parents-first, so the largest index is always the youngest).
+type tracer struct {
+	l    []float64
+	heap []int32
+}
+
+func newTracer(n int) *tracer { return &tracer{l: make([]float64, n)} }
+
+func (t *tracer) push(j int32, w float64) {
+	if t.l[j] == 0 {
+		t.heap = append(t.heap, j)
+		// sift up
+		h := t.heap
+		k := len(h) - 1
+		for k > 0 {
+			par := (k - 1) / 2
+			if h[par] >= h[k] {
+				break
+			}
+			h[par], h[k] = h[k], h[par]
+			k = par
+		}
+	}
+	t.l[j] += w
+}
+
+func (t *tracer) pop() int32 {
+	h := t.heap
+	top := h[0]
+	last := len(h) - 1
+	h[0] = h[last]
+	h = h[:last]
+	k := 0
+	for {
+		c := 2*k + 1
+		if c >= len(h) {
+			break
+		}
+		if c+1 < len(h) && h[c+1] > h[c] {
+			c++
+		}
+		if h[k] >= h[c] {
+			break
+		}
+		h[k], h[c] = h[c], h[k]
+		k = c
+	}
+	t.heap = h
+	return top
+}
+
+// sumLD empties the heap and returns sum over traced animals j of L_j^2 D_j,
+// where the L row was seeded by push calls.
+func (t *tracer) sumLD(p *Pedigree, d []float64) float64 {
+	var s float64
+	for len(t.heap) > 0 {
+		j := t.pop()
+		lj := t.l[j]
+		t.l[j] = 0
+		if sj := p.sire[j]; sj >= 0 {
+			t.push(sj, 0.5*lj)
+		}
+		if dj := p.dam[j]; dj >= 0 {
+			t.push(dj, 0.5*lj)
+		}
+		s += lj * lj * d[j]
+	}
+	return s
+}
+
+// Inbreeding returns the pedigree inbreeding coefficient of every animal,
+// indexed like ID(i), by the algorithm of Meuwissen & Luo (1992, Genetics
+// Selection Evolution 24:305-313): with A = L D L', F_i = sum_j L_ij^2 D_j - 1
+// over the ancestors j of i, and D_i = 1/2 - (F_sire + F_dam)/4 (with F = -1
+// for an unknown parent). Animals with an unknown parent have F = 0, and an
+// animal whose parents are those of the animal before it copies its F.
+func (p *Pedigree) Inbreeding() []float64 {
+	f, _ := p.inbreedingD()
+	return f
+}
+
+func (p *Pedigree) inbreedingD() (f, d []float64) {
+	n := len(p.ids)
+	f = make([]float64, n)
+	d = make([]float64, n)
+	t := newTracer(n)
+	for i := 0; i < n; i++ {
+		s, m := p.sire[i], p.dam[i]
+		fs, fd := -1.0, -1.0
+		if s >= 0 {
+			fs = f[s]
+		}
+		if m >= 0 {
+			fd = f[m]
+		}
+		d[i] = 0.5 - 0.25*(fs+fd)
+		if s < 0 || m < 0 {
+			continue // f[i] = 0
+		}
+		if i > 0 && p.sire[i-1] == s && p.dam[i-1] == m {
+			f[i] = f[i-1]
+			continue
+		}
+		// The L row of i: 1 on i itself, 1/2 on each parent, and so on.
+		// Seed with the parents and add D_i for i itself.
+		t.push(s, 0.5)
+		t.push(m, 0.5)
+		f[i] = t.sumLD(p, d) + d[i] - 1
+	}
+	return f, d
+}
+
+// Coancestry returns the coefficient of coancestry (kinship) of each pair
+// of animals, indexed like ID(i): the probability that alleles drawn at
+// random from each are identical by descent, which is the inbreeding
+// coefficient their offspring would have. f is the result of Inbreeding
+// (pass nil to have it computed). It uses the same ancestor trace as
+// Inbreeding on a virtual offspring of the pair; a pair of an animal with
+// itself gives (1 + F)/2.
+func (p *Pedigree) Coancestry(pairs [][2]int, f []float64) ([]float64, error) {
+	var d []float64
+	if f == nil {
+		f, d = p.inbreedingD()
+	} else {
+		if len(f) != len(p.ids) {
+			return nil, fmt.Errorf("pedigree: Coancestry: %d inbreeding values for %d animals", len(f), len(p.ids))
+		}
+		d = make([]float64, len(p.ids))
+		for i := range d {
+			fs, fd := -1.0, -1.0
+			if s := p.sire[i]; s >= 0 {
+				fs = f[s]
+			}
+			if m := p.dam[i]; m >= 0 {
+				fd = f[m]
+			}
+			d[i] = 0.5 - 0.25*(fs+fd)
+		}
+	}
+	t := newTracer(len(p.ids))
+	out := make([]float64, len(pairs))
+	for k, pr := range pairs {
+		a, b := pr[0], pr[1]
+		if a < 0 || a >= len(p.ids) || b < 0 || b >= len(p.ids) {
+			return nil, fmt.Errorf("pedigree: Coancestry: pair %d (%d, %d) out of range [0, %d)", k, a, b, len(p.ids))
+		}
+		t.push(int32(a), 0.5)
+		t.push(int32(b), 0.5)
+		// Virtual offspring z: F_z = sum_{j != z} L^2 D + D_z - 1 with
+		// D_z = 1/2 - (F_a + F_b)/4.
+		out[k] = t.sumLD(p, d) + 0.5 - 0.25*(f[a]+f[b]) - 1
+	}
+	return out, nil
+}
