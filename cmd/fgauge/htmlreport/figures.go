@@ -1,0 +1,688 @@
+package htmlreport
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// cohort is the per-sample view of the tables used by all figures.
+type cohort struct {
+	d         *data
+	names     []string
+	pops      []string // nil without a population column
+	cols      map[string][]float64
+	ests      []string // estimator columns present, f_roh first when present
+	classes   []rohClass
+	flags     [][]string
+	highlight map[int]bool
+}
+
+func newCohort(d *data, highlight []string) *cohort {
+	t := d.samples
+	c := &cohort{d: d, cols: map[string][]float64{}, classes: parseClasses(t.header), highlight: map[int]bool{}}
+	n := len(t.rows)
+	c.names = make([]string, n)
+	c.flags = make([][]string, n)
+	for r := range t.rows {
+		c.names[r] = t.str(r, "sample")
+		c.flags[r] = splitFlags(t.str(r, "flags"))
+	}
+	if t.has("population") {
+		c.pops = make([]string, n)
+		for r := range t.rows {
+			c.pops[r] = t.str(r, "population")
+		}
+	}
+	for _, h := range t.header {
+		if h == "sample" || h == "population" || h == "flags" {
+			continue
+		}
+		v := make([]float64, n)
+		for r := range t.rows {
+			v[r] = t.num(r, h)
+		}
+		c.cols[h] = v
+	}
+	for _, e := range estimatorCols {
+		if _, ok := c.cols[e]; ok {
+			c.ests = append(c.ests, e)
+		}
+	}
+	want := map[string]bool{}
+	for _, h := range highlight {
+		want[h] = true
+	}
+	for r, nm := range c.names {
+		if want[nm] {
+			c.highlight[r] = true
+		}
+	}
+	return c
+}
+
+func (c *cohort) col(name string) []float64 {
+	if v, ok := c.cols[name]; ok {
+		return v
+	}
+	v := make([]float64, len(c.names))
+	for i := range v {
+		v[i] = math.NaN()
+	}
+	return v
+}
+
+func (c *cohort) isFlagged(r int) bool { return len(c.flags[r]) > 0 }
+
+// figEstimators: f_roh against each other estimator, one panel each.
+func (c *cohort) figEstimators() (figure, error) {
+	f := figure{ID: "fig_estimators", Kind: "scatter", Title: "Genomic F: runs of homozygosity against the other estimators"}
+	yCol := "f_roh"
+	if _, ok := c.cols[yCol]; !ok {
+		yCol = "f_hom"
+	}
+	var others []string
+	for _, e := range c.ests {
+		if e != yCol {
+			others = append(others, e)
+		}
+	}
+	if _, ok := c.cols[yCol]; !ok || len(others) == 0 {
+		f.Empty = noData("pair of F estimators")
+		return f, nil
+	}
+	ys := c.col(yCol)
+	n := len(c.names)
+	var panels []*plot.Plot
+	for _, e := range others {
+		xs := c.col(e)
+		resid := make([]float64, n)
+		for i := range resid {
+			resid[i] = math.Abs(xs[i] - ys[i])
+		}
+		lab := labelTop(resid, maxLabels)
+		keep := map[int]bool{}
+		for _, i := range lab {
+			keep[i] = true
+		}
+		for i := range c.highlight {
+			keep[i] = true
+		}
+		rows := subsample(n, maxScatterPoints, keep)
+		p, k := scatterPanel("", e, yCol, xs, ys, rows, c.names, lab, true)
+		f.Points += k
+		for i := range xs {
+			if !math.IsNaN(xs[i]) && !math.IsNaN(ys[i]) {
+				f.Total++
+			}
+		}
+		panels = append(panels, p)
+	}
+	cols := min(3, len(panels))
+	rows := (len(panels) + cols - 1) / cols
+	grid := make([][]*plot.Plot, rows)
+	for i, p := range panels {
+		grid[i/cols] = append(grid[i/cols], p)
+	}
+	for len(grid[rows-1]) < cols {
+		grid[rows-1] = append(grid[rows-1], nil)
+	}
+	var err error
+	f.SVG, err = renderGrid(grid, plotW, vg.Length(rows)*6.5*vg.Centimeter)
+	f.Caption = fmt.Sprintf("Each point is one sample; the dashed line is where both estimators agree. Labelled: the %d samples furthest from the line in each panel.", maxLabels)
+	if f.Points < f.Total {
+		f.Note = fmt.Sprintf("%d of %d sample-estimator pairs drawn: every %d-th sample plus the labelled and highlighted ones.", f.Points, f.Total, max(1, n/maxScatterPoints))
+	}
+	return f, err
+}
+
+// figClasses: stacked F_ROH by length band, one bar per sample, sorted.
+func (c *cohort) figClasses() (figure, error) {
+	f := figure{ID: "fig_roh_classes", Kind: "bars", Title: "F_ROH by run length, samples sorted"}
+	froh, ok := c.cols["f_roh"]
+	if !ok {
+		f.Empty = noData("f_roh column")
+		return f, nil
+	}
+	var order []int
+	for i, v := range froh {
+		if !math.IsNaN(v) {
+			order = append(order, i)
+		}
+	}
+	if len(order) == 0 {
+		f.Empty = "No sample has a defined F_ROH."
+		return f, nil
+	}
+	sort.SliceStable(order, func(a, b int) bool { return froh[order[a]] < froh[order[b]] })
+	labels := bandLabels(c.classes)
+	cum := make([][]float64, len(c.classes))
+	for k, cl := range c.classes {
+		cum[k] = c.col(cl.Col)
+	}
+	per := func(i int) []float64 {
+		v := make([]float64, len(c.classes))
+		for k := range c.classes {
+			v[k] = cum[k][i]
+		}
+		return bands(froh[i], v)
+	}
+	group := 1
+	if len(order) > maxBars {
+		group = (len(order) + maxBars - 1) / maxBars
+	}
+	nb := (len(order) + group - 1) / group
+	vals := make([]plotter.Values, len(labels))
+	for k := range vals {
+		vals[k] = make(plotter.Values, nb)
+	}
+	var names []string
+	for b := 0; b < nb; b++ {
+		lo, hi := b*group, min(len(order), (b+1)*group)
+		for _, i := range order[lo:hi] {
+			for k, v := range per(i) {
+				vals[k][b] += v / float64(hi-lo)
+			}
+		}
+		names = append(names, clip(c.names[order[lo]], 18))
+	}
+	p := newPlot("", "samples, lowest to highest F_ROH", "F_ROH")
+	w := vg.Length(float64(plotW-2*vg.Centimeter) / float64(nb) * 0.85)
+	var prev *plotter.BarChart
+	for k := range labels {
+		bc, err := plotter.NewBarChart(vals[k], w)
+		if err != nil {
+			return f, err
+		}
+		bc.Color = bandColor(k, len(labels))
+		bc.LineStyle.Width = 0
+		if prev != nil {
+			bc.StackOn(prev)
+		}
+		p.Add(bc)
+		prev = bc
+	}
+	legendBands(p, labels)
+	p.Legend.Left = true
+	if nb <= maxNamedTicks && group == 1 {
+		p.NominalX(names...)
+		p.X.Tick.Label.Rotation = math.Pi / 3
+		p.X.Tick.Label.XAlign = draw.XRight
+		p.X.Tick.Label.YAlign = draw.YCenter
+	} else {
+		p.X.Tick.Marker = plot.ConstantTicks(nil)
+	}
+	f.Points, f.Total = nb, len(order)
+	if group > 1 {
+		f.Note = fmt.Sprintf("%d samples shown as %d bars: each bar is the mean of %d consecutive samples in F_ROH order.", len(order), nb, group)
+	}
+	f.Caption = "Height is the sample's F_ROH; colours split it by run length (short runs: old shared ancestry; long runs: recent common ancestors)."
+	var err error
+	f.SVG, err = renderPlot(p, plotW, plotH)
+	return f, err
+}
+
+// figRunLengths: histogram of run lengths.
+func (c *cohort) figRunLengths() (figure, error) {
+	f := figure{ID: "fig_run_lengths", Kind: "histogram", Title: "Lengths of all runs of homozygosity"}
+	if len(c.d.runLenMb) == 0 {
+		f.Empty = noData("runs (runs.tsv)")
+		return f, nil
+	}
+	const nbins = 40
+	hi := 0.0
+	for _, v := range c.d.runLenMb {
+		hi = math.Max(hi, v)
+	}
+	if hi <= 0 {
+		hi = 1
+	}
+	bins := make([]plotter.HistogramBin, nbins)
+	w := hi / nbins
+	for i := range bins {
+		bins[i] = plotter.HistogramBin{Min: float64(i) * w, Max: float64(i+1) * w}
+	}
+	for _, v := range c.d.runLenMb {
+		i := min(nbins-1, max(0, int(v/w)))
+		bins[i].Weight++
+	}
+	p := newPlot("", "run length (Mb)", "number of runs")
+	p.Add(histFromCounts(bins, colTeal))
+	f.Points, f.Total = nbins, len(c.d.runLenMb)
+	f.Caption = fmt.Sprintf("%d runs in %d bins of %.3g Mb.", len(c.d.runLenMb), nbins, w)
+	var err error
+	f.SVG, err = renderPlot(p, plotW, plotH*0.8)
+	return f, err
+}
+
+// genomeLayout places contigs end to end on one axis (Mb).
+type genomeLayout struct {
+	names  []string
+	offset map[string]float64
+	length map[string]float64
+	total  float64
+}
+
+// layout builds the genome axis from sites.tsv.gz extents, extended by
+// runs.tsv ends; ROH-excluded contigs are left out when run.json names the
+// autosomes used; with many contigs only those carrying runs and the
+// largest are kept (at most 40).
+func (c *cohort) layout() genomeLayout {
+	ext := map[string]float64{}
+	var order []string
+	add := func(name string, end float64) {
+		if _, ok := ext[name]; !ok {
+			order = append(order, name)
+		}
+		ext[name] = math.Max(ext[name], end)
+	}
+	for _, k := range c.d.sites.contigs {
+		add(k.name, float64(k.maxPos)/1e6)
+	}
+	hasRuns := map[string]bool{}
+	names := append([]string(nil), c.names...)
+	sort.Strings(names)
+	for _, nm := range names {
+		for _, r := range c.d.runs[nm] {
+			add(r.chrom, float64(r.end)/1e6)
+			hasRuns[r.chrom] = true
+		}
+	}
+	if used := c.d.info.ROH.AutosomesUsed; len(used) > 0 {
+		u := map[string]bool{}
+		for _, a := range used {
+			u[a] = true
+		}
+		var kept []string
+		for _, k := range order {
+			if u[k] || hasRuns[k] {
+				kept = append(kept, k)
+			}
+		}
+		order = kept
+	}
+	if len(order) > 40 {
+		idx := append([]string(nil), order...)
+		sort.SliceStable(idx, func(a, b int) bool {
+			if hasRuns[idx[a]] != hasRuns[idx[b]] {
+				return hasRuns[idx[a]]
+			}
+			return ext[idx[a]] > ext[idx[b]]
+		})
+		keep := map[string]bool{}
+		for _, k := range idx[:40] {
+			keep[k] = true
+		}
+		var kept []string
+		for _, k := range order {
+			if keep[k] {
+				kept = append(kept, k)
+			}
+		}
+		order = kept
+	}
+	g := genomeLayout{offset: map[string]float64{}, length: map[string]float64{}}
+	for _, k := range order {
+		g.names = append(g.names, k)
+		g.offset[k] = g.total
+		g.length[k] = ext[k]
+		g.total += ext[k]
+	}
+	return g
+}
+
+// classOf returns the length band index of a run.
+func (c *cohort) classOf(lengthBP float64) int {
+	mb := lengthBP / 1e6
+	k := 0
+	for _, cl := range c.classes {
+		if mb > cl.MinMb {
+			k++
+		}
+	}
+	return k
+}
+
+// paintedSamples picks the samples for the cohort painting: the
+// highlighted ones, else those with the highest F_ROH.
+func (c *cohort) paintedSamples() ([]int, string) {
+	var out []int
+	if len(c.highlight) > 0 {
+		for i := range c.names {
+			if c.highlight[i] {
+				out = append(out, i)
+			}
+		}
+		why := "the samples listed with --highlight"
+		if len(out) > maxPaintRows {
+			out = out[:maxPaintRows]
+			why += fmt.Sprintf(" (first %d)", maxPaintRows)
+		}
+		return out, why
+	}
+	froh := c.col("f_roh")
+	lab := labelTop(froh, maxPaintRows)
+	sort.SliceStable(lab, func(a, b int) bool { return froh[lab[a]] > froh[lab[b]] })
+	return lab, fmt.Sprintf("the %d samples with the highest F_ROH", len(lab))
+}
+
+// figPainting: runs of the most inbred (or highlighted) samples along the
+// genome.
+func (c *cohort) figPainting() (figure, error) {
+	f := figure{ID: "fig_painting", Kind: "painting", Title: "Where the runs lie"}
+	if !c.d.runsPresent {
+		f.Empty = noData("runs (runs.tsv)")
+		return f, nil
+	}
+	idx, why := c.paintedSamples()
+	g := c.layout()
+	if len(idx) == 0 || g.total == 0 {
+		f.Empty = "No sample with runs to paint."
+		return f, nil
+	}
+	pt := &painting{xmax: g.total * legendRoom, nClass: len(c.classes) + 1}
+	var bandsBG []span
+	for _, k := range g.names {
+		bandsBG = append(bandsBG, span{start: g.offset[k], end: g.offset[k] + g.length[k]})
+	}
+	var ylab []string
+	// top row = first sample: rows are drawn bottom-up, so reverse
+	for j := len(idx) - 1; j >= 0; j-- {
+		i := idx[j]
+		row := paintRow{label: clip(c.names[i], 20), bands: bandsBG}
+		for _, r := range c.d.runs[c.names[i]] {
+			off, ok := g.offset[r.chrom]
+			if !ok {
+				continue
+			}
+			row.segs = append(row.segs, span{start: off + float64(r.start)/1e6, end: off + float64(r.end)/1e6, class: c.classOf(r.lengthBP)})
+			f.Points++
+		}
+		f.Total += len(c.d.runs[c.names[i]])
+		pt.rows = append(pt.rows, row)
+		ylab = append(ylab, row.label)
+	}
+	p := newPlot("", "chromosome", "")
+	p.Add(pt)
+	var at []float64
+	var nm []string
+	for _, k := range g.names {
+		at = append(at, g.offset[k]+g.length[k]/2)
+		nm = append(nm, clip(k, 8))
+	}
+	p.X.Tick.Marker = tickNames{at: at, names: nm}
+	p.X.Tick.Length = 0
+	yat := make([]float64, len(ylab))
+	for i := range yat {
+		yat[i] = float64(i)
+	}
+	p.Y.Tick.Marker = tickNames{at: yat, names: ylab}
+	p.Y.Tick.Length = 0
+	p.Y.LineStyle.Width = 0
+	p.X.LineStyle.Width = 0
+	legendBands(p, bandLabels(c.classes))
+	f.Caption = "Shown: " + why + ". Each row is one sample, each coloured block one run, coloured by length; grey bands alternate chromosomes."
+	if f.Points < f.Total {
+		f.Note = fmt.Sprintf("%d runs on chromosomes outside the painted set are not drawn.", f.Total-f.Points)
+	}
+	h := vg.Length(len(idx))*0.55*vg.Centimeter + 3*vg.Centimeter
+	var err error
+	f.SVG, err = renderPlot(p, plotW, h)
+	return f, err
+}
+
+// figQQ: observed against expected -log10 p from run.json sites.qq.
+func (c *cohort) figQQ() (figure, error) {
+	f := figure{ID: "fig_hwe_qq", Kind: "scatter", Title: "Hardy-Weinberg tests: observed against expected p-values"}
+	qq := c.d.info.Sites.QQ
+	pts := make(plotter.XYs, 0, len(qq))
+	hi := 0.0
+	for _, q := range qq {
+		if len(q) < 2 || math.IsNaN(float64(q[0])) || math.IsNaN(float64(q[1])) || math.IsInf(float64(q[1]), 0) {
+			continue
+		}
+		pts = append(pts, plotter.XY{X: float64(q[0]), Y: float64(q[1])})
+		hi = math.Max(hi, float64(q[0]))
+	}
+	if len(pts) == 0 {
+		f.Empty = noData("QQ summary (run.json sites.qq)")
+		return f, nil
+	}
+	lambda := "NA"
+	if c.d.info.Sites.Lambda != nil {
+		lambda = fmtG(float64(*c.d.info.Sites.Lambda))
+	}
+	p := newPlot("λ = "+lambda, "expected −log10 p", "observed −log10 p")
+	p.Add(diagonal(0, hi))
+	s, _ := plotter.NewScatter(pts)
+	s.GlyphStyle = draw.GlyphStyle{Color: colTeal, Radius: vg.Points(2), Shape: draw.CircleGlyph{}}
+	p.Add(s)
+	f.Points, f.Total = len(pts), len(qq)
+	f.Caption = fmt.Sprintf("%d quantile points summarising %s tested sites; the dashed line is what tests on a population in equilibrium would give.", len(pts), fmtInt(c.d.info.Sites.Tested))
+	var err error
+	f.SVG, err = renderPlot(p, plotW*0.6, plotH)
+	return f, err
+}
+
+// figFSite: distribution of per-site F.
+func (c *cohort) figFSite() (figure, error) {
+	f := figure{ID: "fig_f_site", Kind: "histogram", Title: "Per-site F (1 − observed/expected heterozygosity)"}
+	s := c.d.sites
+	if !s.present || s.fSiteN == 0 {
+		f.Empty = noData("per-site F (sites.tsv.gz)")
+		return f, nil
+	}
+	bins := make([]plotter.HistogramBin, fSiteBins)
+	w := 2.0 / fSiteBins
+	for i := range bins {
+		bins[i] = plotter.HistogramBin{Min: -1 + float64(i)*w, Max: -1 + float64(i+1)*w, Weight: float64(s.fSite[i])}
+	}
+	p := newPlot("", "f_site", "number of sites")
+	p.Add(histFromCounts(bins, colOchre))
+	f.Points, f.Total = fSiteBins, int(s.fSiteN)
+	f.Caption = fmt.Sprintf("%s sites with a defined f_site (%s NA) in %d bins over [−1, 1].", fmtInt(s.fSiteN), fmtInt(s.fSiteNA), fSiteBins)
+	var err error
+	f.SVG, err = renderPlot(p, plotW*0.6, plotH)
+	return f, err
+}
+
+// figPopFIS: F_IS per population.
+func (c *cohort) figPopFIS() (figure, error) {
+	f := figure{ID: "fig_pop_fis", Kind: "bars", Title: "F_IS per population"}
+	t := c.d.pops
+	if t == nil || !t.has("f_is") {
+		f.Empty = noData("populations.tsv")
+		return f, nil
+	}
+	var vals plotter.Values
+	var names []string
+	for r := range t.rows {
+		name := t.str(r, "population")
+		if name == "all_pooled" {
+			continue
+		}
+		vals = append(vals, nz(t.num(r, "f_is")))
+		names = append(names, clip(name, 16))
+	}
+	if len(vals) == 0 {
+		f.Empty = noData("population rows")
+		return f, nil
+	}
+	p := newPlot("", "", "F_IS")
+	w := vg.Length(math.Min(40, float64(plotW*0.5)/float64(len(vals))*0.7))
+	bc, err := plotter.NewBarChart(vals, w)
+	if err != nil {
+		return f, err
+	}
+	bc.Color = colTeal
+	bc.LineStyle.Width = 0
+	p.Add(bc)
+	p.NominalX(names...)
+	if len(names) > 6 {
+		p.X.Tick.Label.Rotation = math.Pi / 4
+		p.X.Tick.Label.XAlign = draw.XRight
+	}
+	f.Points, f.Total = len(vals), len(vals)
+	f.Caption = "Positive: fewer heterozygotes than random mating within the population would give."
+	f.SVG, err = renderPlot(p, plotW*0.5, plotH)
+	return f, err
+}
+
+// figFST: pairwise F_ST heat map.
+func (c *cohort) figFST() (figure, error) {
+	f := figure{ID: "fig_pop_fst", Kind: "heatmap", Title: "Pairwise F_ST"}
+	t := c.d.pairs
+	if t == nil || len(t.rows) == 0 {
+		f.Empty = noData("populations_pairwise.tsv")
+		return f, nil
+	}
+	ix := map[string]int{}
+	var names []string
+	for r := range t.rows {
+		for _, col := range []string{"population_a", "population_b"} {
+			nm := t.str(r, col)
+			if _, ok := ix[nm]; !ok {
+				ix[nm] = len(names)
+				names = append(names, nm)
+			}
+		}
+	}
+	n := len(names)
+	m := matrix{n: n, v: make([]float64, n*n)}
+	for i := range m.v {
+		m.v[i] = math.NaN()
+	}
+	for i := 0; i < n; i++ {
+		m.v[i*n+i] = 0
+	}
+	hi := 0.0
+	for r := range t.rows {
+		a, b := ix[t.str(r, "population_a")], ix[t.str(r, "population_b")]
+		v := t.num(r, "f_st")
+		m.v[a*n+b], m.v[b*n+a] = v, v
+		if !math.IsNaN(v) {
+			hi = math.Max(hi, v)
+		}
+	}
+	if hi <= 0 {
+		hi = 1e-3
+	}
+	hm := plotter.NewHeatMap(m, paletteSeq{n: 32})
+	hm.Min, hm.Max = 0, hi
+	hm.NaN = colShadeA
+	hm.Underflow = paletteSeq{n: 2}.Colors()[0]
+	p := newPlot("", "", "")
+	p.Add(hm)
+	at := make([]float64, n)
+	lab := make([]string, n)
+	for i := range at {
+		at[i], lab[i] = float64(i), clip(names[i], 14)
+	}
+	p.X.Tick.Marker = tickNames{at: at, names: lab}
+	p.Y.Tick.Marker = tickNames{at: at, names: lab}
+	if n > 4 {
+		p.X.Tick.Label.Rotation = math.Pi / 4
+		p.X.Tick.Label.XAlign = draw.XRight
+	}
+	if n <= 12 {
+		var l plotter.XYLabels
+		for r := 0; r < n; r++ {
+			for cc := 0; cc < n; cc++ {
+				if cc == r || math.IsNaN(m.v[r*n+cc]) {
+					continue
+				}
+				l.XYs = append(l.XYs, plotter.XY{X: float64(cc), Y: float64(r)})
+				l.Labels = append(l.Labels, fmt.Sprintf("%.3f", m.v[r*n+cc]))
+			}
+		}
+		if len(l.XYs) > 0 {
+			lb, err := plotter.NewLabels(l)
+			if err == nil {
+				for i := range lb.TextStyle {
+					lb.TextStyle[i].XAlign = draw.XCenter
+					lb.TextStyle[i].YAlign = draw.YCenter
+					lb.TextStyle[i].Color = colInk
+				}
+				p.Add(lb)
+			}
+		}
+	}
+	f.Points, f.Total = n*n, n*n
+	f.Caption = fmt.Sprintf("%d populations; darker cells are more differentiated pairs (scale 0 to %s).", n, fmtG(hi))
+	side := vg.Length(math.Min(14, 4+0.7*float64(n))) * vg.Centimeter
+	var err error
+	f.SVG, err = renderPlot(p, side, side)
+	return f, err
+}
+
+// figQuality: het rate against call rate, flagged samples marked.
+func (c *cohort) figQuality() (figure, error) {
+	f := figure{ID: "fig_quality", Kind: "scatter", Title: "Genotyping quality: heterozygosity against call rate"}
+	xs, ys := c.col("call_rate"), c.col("het_rate")
+	if _, ok := c.cols["call_rate"]; !ok {
+		f.Empty = noData("call_rate column")
+		return f, nil
+	}
+	n := len(c.names)
+	var flagged, plain []int
+	for i := 0; i < n; i++ {
+		if c.isFlagged(i) {
+			flagged = append(flagged, i)
+		} else {
+			plain = append(plain, i)
+		}
+	}
+	keep := subsample(len(plain), maxScatterPoints, nil)
+	p := newPlot("", "call rate", "heterozygous share of calls")
+	add := func(rows []int, g draw.GlyphStyle, name string) int {
+		pts := make(plotter.XYs, 0, len(rows))
+		for _, i := range rows {
+			if math.IsNaN(xs[i]) || math.IsNaN(ys[i]) {
+				continue
+			}
+			pts = append(pts, plotter.XY{X: xs[i], Y: ys[i]})
+		}
+		if len(pts) == 0 {
+			return 0
+		}
+		s, _ := plotter.NewScatter(pts)
+		s.GlyphStyle = g
+		p.Add(s)
+		p.Legend.Add(name, s)
+		return len(pts)
+	}
+	rows := make([]int, len(keep))
+	for j, k := range keep {
+		rows[j] = plain[k]
+	}
+	f.Points += add(rows, draw.GlyphStyle{Color: colPoint, Radius: vg.Points(2.2), Shape: draw.CircleGlyph{}}, "not flagged")
+	fl := flagged
+	if len(fl) > maxScatterPoints {
+		fl = fl[:maxScatterPoints]
+	}
+	f.Points += add(fl, draw.GlyphStyle{Color: colBrick, Radius: vg.Points(3.2), Shape: draw.TriangleGlyph{}}, "flagged")
+	for i := 0; i < n; i++ {
+		if !math.IsNaN(xs[i]) && !math.IsNaN(ys[i]) {
+			f.Total++
+		}
+	}
+	lab := fl
+	if len(lab) > maxLabels {
+		lab = lab[:maxLabels]
+	}
+	addLabels(p, xs, ys, lab, c.names)
+	p.Legend.Top = true
+	p.Legend.Left = true
+	f.Caption = fmt.Sprintf("%d samples flagged (triangles); up to %d of them are labelled.", len(flagged), maxLabels)
+	if f.Points < f.Total {
+		f.Note = fmt.Sprintf("%d of %d samples drawn: every flagged sample (up to %d) and an even subsample of the rest.", f.Points, f.Total, maxScatterPoints)
+	}
+	var err error
+	f.SVG, err = renderPlot(p, plotW*0.75, plotH)
+	return f, err
+}

@@ -1,0 +1,328 @@
+package htmlreport
+
+import (
+	"fmt"
+	"image/color"
+	"math"
+	"sort"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// Palette of the report (ours): deep ink, a slate teal, warm ochre, brick.
+var (
+	colInk    = color.RGBA{0x24, 0x2f, 0x3a, 0xff}
+	colTeal   = color.RGBA{0x2a, 0x7d, 0x86, 0xff}
+	colOchre  = color.RGBA{0xc8, 0x8a, 0x2e, 0xff}
+	colBrick  = color.RGBA{0xa9, 0x43, 0x3a, 0xff}
+	colFaint  = color.RGBA{0xb8, 0xc0, 0xc6, 0xff}
+	colShadeA = color.RGBA{0xee, 0xec, 0xe6, 0xff}
+	colShadeB = color.RGBA{0xf8, 0xf6, 0xf1, 0xff}
+	colPoint  = color.RGBA{0x2a, 0x7d, 0x86, 0xa0}
+)
+
+// bandColor gives the colour of length band i of n, light (short runs) to
+// dark (long runs).
+func bandColor(i, n int) color.Color {
+	light := [3]float64{0xe3, 0xd3, 0xa8}
+	dark := [3]float64{0x5a, 0x1f, 0x3c}
+	t := 0.0
+	if n > 1 {
+		t = float64(i) / float64(n-1)
+	}
+	c := func(k int) uint8 { return uint8(light[k] + t*(dark[k]-light[k])) }
+	return color.RGBA{c(0), c(1), c(2), 0xff}
+}
+
+// Font sizes in points on a plotW-wide canvas (shown about 1.9 times
+// larger on a wide screen).
+const (
+	fontTitle = vg.Length(9)
+	fontLabel = vg.Length(8)
+	fontTick  = vg.Length(7)
+	fontMark  = vg.Length(6.5)
+)
+
+// Plot sizes.
+const (
+	plotW = 17 * vg.Centimeter
+	plotH = 9 * vg.Centimeter
+)
+
+// newPlot makes a plot styled the report's way.
+func newPlot(title, x, y string) *plot.Plot {
+	p := plot.New()
+	p.Title.Text = title
+	p.X.Label.Text = x
+	p.Y.Label.Text = y
+	p.Title.TextStyle.Color = colInk
+	p.Title.TextStyle.Font.Size = fontTitle
+	p.BackgroundColor = color.Transparent
+	for _, a := range []*plot.Axis{&p.X, &p.Y} {
+		a.Color = colInk
+		a.Label.TextStyle.Color = colInk
+		a.Label.TextStyle.Font.Size = fontLabel
+		a.Tick.Label.Color = colInk
+		a.Tick.Label.Font.Size = fontTick
+		a.Tick.Color = colInk
+		a.Tick.Length = vg.Points(3)
+	}
+	p.Legend.TextStyle.Font.Size = fontTick
+	p.Legend.ThumbnailWidth = vg.Points(10)
+	return p
+}
+
+// limits for large cohorts.
+const (
+	maxScatterPoints = 2000 // points per scatter panel before subsampling
+	maxLabels        = 5    // point labels per panel
+	maxBars          = 300  // stacked bars before samples are grouped
+	maxPaintRows     = 30   // samples in the cohort painting
+	maxNamedTicks    = 40   // bars named on the axis
+)
+
+// subsample returns the row indices to draw out of n: all when n <= limit,
+// otherwise every k-th row plus the rows in keep (deterministic).
+func subsample(n, limit int, keep map[int]bool) []int {
+	out := make([]int, 0, min(n, limit+len(keep)))
+	if n <= limit {
+		for i := 0; i < n; i++ {
+			out = append(out, i)
+		}
+		return out
+	}
+	step := float64(n) / float64(limit)
+	next := 0.0
+	for i := 0; i < n; i++ {
+		if keep[i] || float64(i) >= next {
+			out = append(out, i)
+			if float64(i) >= next {
+				next += step
+			}
+		}
+	}
+	return out
+}
+
+// diagonal returns a dashed y = x line over [lo, hi].
+func diagonal(lo, hi float64) *plotter.Line {
+	l, _ := plotter.NewLine(plotter.XYs{{X: lo, Y: lo}, {X: hi, Y: hi}})
+	l.Color = colFaint
+	l.Width = vg.Points(1)
+	l.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
+	return l
+}
+
+// labelTop returns the indices of the k largest scores (NaN skipped),
+// ties broken by index.
+func labelTop(score []float64, k int) []int {
+	idx := make([]int, 0, len(score))
+	for i, s := range score {
+		if !math.IsNaN(s) {
+			idx = append(idx, i)
+		}
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return score[idx[a]] > score[idx[b]] })
+	if len(idx) > k {
+		idx = idx[:k]
+	}
+	return idx
+}
+
+// scatterPanel draws y against x for the given rows with a diagonal and
+// labels on the rows in label. It returns the plot and the number of
+// points drawn.
+func scatterPanel(title, xl, yl string, xs, ys []float64, rows []int, names []string, label []int, diag bool) (*plot.Plot, int) {
+	p := newPlot(title, xl, yl)
+	pts := make(plotter.XYs, 0, len(rows))
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, r := range rows {
+		x, y := xs[r], ys[r]
+		if math.IsNaN(x) || math.IsNaN(y) || math.IsInf(x, 0) || math.IsInf(y, 0) {
+			continue
+		}
+		pts = append(pts, plotter.XY{X: x, Y: y})
+		lo, hi = math.Min(lo, math.Min(x, y)), math.Max(hi, math.Max(x, y))
+	}
+	if len(pts) == 0 {
+		return p, 0
+	}
+	if diag {
+		p.Add(diagonal(lo, hi))
+	}
+	s, _ := plotter.NewScatter(pts)
+	s.GlyphStyle = draw.GlyphStyle{Color: colPoint, Radius: vg.Points(2.2), Shape: draw.CircleGlyph{}}
+	p.Add(s)
+	addLabels(p, xs, ys, label, names)
+	return p, len(pts)
+}
+
+// addLabels puts sample names beside the given rows.
+func addLabels(p *plot.Plot, xs, ys []float64, rows []int, names []string) {
+	var l plotter.XYLabels
+	for _, r := range rows {
+		if math.IsNaN(xs[r]) || math.IsNaN(ys[r]) {
+			continue
+		}
+		l.XYs = append(l.XYs, plotter.XY{X: xs[r], Y: ys[r]})
+		l.Labels = append(l.Labels, clip(names[r], 16))
+	}
+	if len(l.XYs) == 0 {
+		return
+	}
+	lab, err := plotter.NewLabels(l)
+	if err != nil {
+		return
+	}
+	for i := range lab.TextStyle {
+		lab.TextStyle[i].Color = colBrick
+		lab.TextStyle[i].XAlign = draw.XLeft
+		lab.TextStyle[i].Font.Size = fontMark
+		lab.Offset = vg.Point{X: vg.Points(3), Y: vg.Points(2)}
+	}
+	p.Add(lab)
+}
+
+// clip shortens s to at most n runes, marking the cut with an ellipsis.
+func clip(s string, n int) string {
+	r := []rune(s)
+	if len(r) <= n {
+		return s
+	}
+	return string(r[:n-1]) + "…"
+}
+
+// histFromCounts builds a histogram plotter from precomputed bins.
+func histFromCounts(bins []plotter.HistogramBin, fill color.Color) *plotter.Histogram {
+	w := 0.0
+	if len(bins) > 0 {
+		w = bins[0].Max - bins[0].Min
+	}
+	h := &plotter.Histogram{Bins: bins, Width: w, FillColor: fill, LineStyle: plotter.DefaultLineStyle}
+	h.LineStyle.Color = color.White
+	h.LineStyle.Width = vg.Points(0.5)
+	return h
+}
+
+// tickNames is a Ticker putting fixed names at fixed values.
+type tickNames struct {
+	at    []float64
+	names []string
+}
+
+func (t tickNames) Ticks(min, max float64) []plot.Tick {
+	out := make([]plot.Tick, 0, len(t.at))
+	for i, v := range t.at {
+		if v >= min && v <= max {
+			out = append(out, plot.Tick{Value: v, Label: t.names[i]})
+		}
+	}
+	return out
+}
+
+// paintRow is one horizontal track of a chromosome painting.
+type paintRow struct {
+	label string
+	bands []span // background bands (contigs), shaded alternately
+	segs  []span // runs, coloured by length band
+}
+
+// span is an interval on the track's x axis (Mb) with a colour index.
+type span struct {
+	start, end float64
+	class      int
+}
+
+// painting is a gonum plot.Plotter drawing tracks of runs: row i sits at
+// y = i, each run a filled rectangle.
+type painting struct {
+	rows   []paintRow
+	xmax   float64
+	nClass int
+}
+
+func (pt *painting) Plot(c draw.Canvas, plt *plot.Plot) {
+	trX, trY := plt.Transforms(&c)
+	rect := func(x0, x1, y0, y1 float64, col color.Color) {
+		a, b := trX(x0), trX(x1)
+		if b-a < vg.Points(0.6) {
+			b = a + vg.Points(0.6) // keep very short runs visible
+		}
+		poly := []vg.Point{{X: a, Y: trY(y0)}, {X: b, Y: trY(y0)}, {X: b, Y: trY(y1)}, {X: a, Y: trY(y1)}}
+		c.FillPolygon(col, c.ClipPolygonXY(poly))
+	}
+	for i, r := range pt.rows {
+		y := float64(i)
+		for k, b := range r.bands {
+			col := colShadeA
+			if k%2 == 1 {
+				col = colShadeB
+			}
+			rect(b.start, b.end, y-0.42, y+0.42, col)
+		}
+		for _, s := range r.segs {
+			rect(s.start, s.end, y-0.36, y+0.36, bandColor(s.class, pt.nClass))
+		}
+	}
+}
+
+func (pt *painting) DataRange() (xmin, xmax, ymin, ymax float64) {
+	return 0, pt.xmax, -0.6, float64(len(pt.rows)) - 0.4
+}
+
+// legendBands adds a legend entry per length band.
+func legendBands(p *plot.Plot, labels []string) {
+	for i, l := range labels {
+		col := bandColor(i, len(labels))
+		p.Legend.Add(l, legendBox{col})
+	}
+	p.Legend.Top = true
+	p.Legend.TextStyle.Color = colInk
+	p.Legend.TextStyle.Font.Size = fontTick
+}
+
+// legendBox is a legend thumbnail filled with one colour.
+type legendBox struct{ c color.Color }
+
+func (b legendBox) Thumbnail(c *draw.Canvas) {
+	pts := []vg.Point{{X: c.Min.X, Y: c.Min.Y}, {X: c.Max.X, Y: c.Min.Y}, {X: c.Max.X, Y: c.Max.Y}, {X: c.Min.X, Y: c.Max.Y}}
+	c.FillPolygon(b.c, pts)
+}
+
+// paletteSeq is a sequential palette (ours) from pale sand to deep teal,
+// for the F_ST heat map.
+type paletteSeq struct{ n int }
+
+func (p paletteSeq) Colors() []color.Color {
+	lo := [3]float64{0xf7, 0xf1, 0xe1}
+	hi := [3]float64{0x1d, 0x4e, 0x59}
+	out := make([]color.Color, p.n)
+	for i := range out {
+		t := float64(i) / float64(p.n-1)
+		c := func(k int) uint8 { return uint8(lo[k] + t*(hi[k]-lo[k])) }
+		out[i] = color.RGBA{c(0), c(1), c(2), 0xff}
+	}
+	return out
+}
+
+// matrix is a square GridXYZ for the heat map: cell (c, r) is value
+// between populations c and r.
+type matrix struct {
+	n int
+	v []float64
+}
+
+func (m matrix) Dims() (c, r int)   { return m.n, m.n }
+func (m matrix) Z(c, r int) float64 { return m.v[r*m.n+c] }
+func (m matrix) X(c int) float64    { return float64(c) }
+func (m matrix) Y(r int) float64    { return float64(r) }
+
+// errNoData is used in figure.Empty texts.
+func noData(what string) string { return fmt.Sprintf("No %s in this output folder.", what) }
+
+// legendRoom widens a painting's x range so the legend sits beside the
+// tracks, not on them.
+const legendRoom = 1.16

@@ -1,0 +1,287 @@
+package htmlreport
+
+import (
+	"bytes"
+	"embed"
+	"fmt"
+	"html/template"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+)
+
+//go:embed assets
+var assets embed.FS
+
+// Options controls what Write produces.
+type Options struct {
+	// Highlight names samples to paint in the cohort report and, with
+	// PerSample, limits the per-sample pages to them.
+	Highlight []string
+	// PerSample writes samples/<name>.html and .json for every sample (or
+	// for the Highlight samples when given) and samples/index.html.
+	PerSample bool
+}
+
+// maxTableRows is the number of samples listed in the report's table
+// before it shows only the most inbred and the flagged.
+const maxTableRows = 200
+
+// pageTemplates parses the embedded templates once per Write.
+func pageTemplates() (*template.Template, error) {
+	css, err := assets.ReadFile("assets/style.css")
+	if err != nil {
+		return nil, err
+	}
+	funcs := template.FuncMap{
+		"css":    func() template.CSS { return template.CSS(css) }, // our own embedded stylesheet
+		"g":      fmtG,
+		"exact":  fmtExact,
+		"pct":    fmtPct,
+		"fmtInt": func(v any) string { return fmtInt(toInt64(v)) },
+	}
+	return template.New("pages").Funcs(funcs).ParseFS(assets, "assets/*.tmpl")
+}
+
+func toInt64(v any) int64 {
+	switch x := v.(type) {
+	case int:
+		return int64(x)
+	case int64:
+		return x
+	case float64:
+		return int64(x)
+	}
+	return 0
+}
+
+// kv is a name with a count, for sorted tables.
+type kv struct {
+	Key string
+	N   int64
+}
+
+func sortedKV(m map[string]int64) []kv {
+	out := make([]kv, 0, len(m))
+	for k, v := range m {
+		out = append(out, kv{k, v})
+	}
+	sort.Slice(out, func(i, j int) bool {
+		if out[i].N != out[j].N {
+			return out[i].N > out[j].N
+		}
+		return out[i].Key < out[j].Key
+	})
+	return out
+}
+
+// cell is a number shown rounded with its exact value alongside.
+type cell struct{ Show, Exact string }
+
+func newCell(x float64) cell { return cell{fmtG(x), fmtExact(x)} }
+
+type sampleRowView struct {
+	Name, Pop, Link string
+	Cells           []cell
+	Flags           []string
+}
+
+type figures struct {
+	Estimators, Classes, RunLengths, Painting, QQ, FSite, PopFIS, FST, Quality *figure
+}
+
+type strTable struct {
+	Header []string
+	Rows   [][]string
+}
+
+type reportView struct {
+	DirName         string
+	Info            *runInfo
+	Head            headline
+	Skipped         []kv
+	Warnings        []kv
+	ExcludedContigs []kv
+	Excluded        []string
+	CoveredBP       string
+	WallSeconds     float64
+	Command         string
+	Aggregated      []string
+	Fig             figures
+	HasPops         bool
+	PopTable        *strTable
+	HasPopCol       bool
+	TableCols       []string
+	SampleRows      []sampleRowView
+	SampleTableNote string
+	PageDir         bool
+}
+
+// Write reads the scan output folder outDir and writes outDir/report.html
+// and, with opt.PerSample, the per-sample pages under outDir/samples/.
+func Write(outDir string, opt Options) error {
+	d, err := load(outDir)
+	if err != nil {
+		return err
+	}
+	tpl, err := pageTemplates()
+	if err != nil {
+		return fmt.Errorf("report: templates: %w", err)
+	}
+	c := newCohort(d, opt.Highlight)
+	var pages map[int]string
+	if opt.PerSample {
+		pages, err = writeSamplePages(outDir, c, tpl, opt)
+		if err != nil {
+			return err
+		}
+	}
+	v, err := buildReport(c, pages)
+	if err != nil {
+		return err
+	}
+	var buf bytes.Buffer
+	if err := tpl.ExecuteTemplate(&buf, "report", v); err != nil {
+		return fmt.Errorf("report: render: %w", err)
+	}
+	return writeFileAtomic(filepath.Join(outDir, "report.html"), buf.Bytes())
+}
+
+func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
+	d := c.d
+	v := &reportView{DirName: filepath.Base(d.dir), Info: &d.info, Head: computeHeadline(d), PageDir: pages != nil}
+	v.Skipped = sortedKV(d.info.Records.Skipped)
+	v.Warnings = sortedKV(d.info.Warnings)
+	v.ExcludedContigs = sortedKV(d.info.ROH.ExcludedContigs)
+	v.Excluded = d.info.excludedNames()
+	if d.info.ROH.CoveredBP != nil && !math.IsNaN(float64(*d.info.ROH.CoveredBP)) {
+		v.CoveredBP = fmtInt(int64(*d.info.ROH.CoveredBP))
+	}
+	if d.info.WallSeconds != nil {
+		v.WallSeconds = float64(*d.info.WallSeconds)
+	}
+	v.Command = shellJoin(d.info.CommandLine)
+	builders := []struct {
+		dst   **figure
+		build func() (figure, error)
+	}{
+		{&v.Fig.Estimators, c.figEstimators},
+		{&v.Fig.Classes, c.figClasses},
+		{&v.Fig.RunLengths, c.figRunLengths},
+		{&v.Fig.Painting, c.figPainting},
+		{&v.Fig.QQ, c.figQQ},
+		{&v.Fig.FSite, c.figFSite},
+		{&v.Fig.PopFIS, c.figPopFIS},
+		{&v.Fig.FST, c.figFST},
+		{&v.Fig.Quality, c.figQuality},
+	}
+	for _, b := range builders {
+		f, err := b.build()
+		if err != nil {
+			return nil, fmt.Errorf("report: %s: %w", f.ID, err)
+		}
+		if f.Note != "" {
+			v.Aggregated = append(v.Aggregated, f.Title+": "+f.Note)
+		}
+		*b.dst = &f
+	}
+	v.HasPops = d.pops != nil || d.pairs != nil
+	if d.pops != nil {
+		v.PopTable = &strTable{Header: d.pops.header, Rows: d.pops.rows}
+	}
+	v.HasPopCol = c.pops != nil
+	v.TableCols = append([]string{"call_rate", "het_rate"}, c.ests...)
+	rows, note := tableRows(c)
+	if len(rows) < len(c.names) {
+		v.Aggregated = append(v.Aggregated, "Sample table: "+note)
+	}
+	v.SampleTableNote = note
+	for _, r := range rows {
+		sv := sampleRowView{Name: c.names[r], Flags: c.flags[r], Link: pages[r]}
+		if pages != nil && pages[r] != "" {
+			sv.Link = "samples/" + pages[r] + ".html"
+		}
+		if c.pops != nil {
+			sv.Pop = c.pops[r]
+		}
+		for _, col := range v.TableCols {
+			sv.Cells = append(sv.Cells, newCell(c.col(col)[r]))
+		}
+		v.SampleRows = append(v.SampleRows, sv)
+	}
+	return v, nil
+}
+
+// tableRows picks the samples listed in the report table: all of them in
+// small cohorts, otherwise the highest F_ROH plus flagged and highlighted.
+func tableRows(c *cohort) ([]int, string) {
+	n := len(c.names)
+	if n <= maxTableRows {
+		rows := make([]int, n)
+		for i := range rows {
+			rows[i] = i
+		}
+		return rows, fmt.Sprintf("All %d samples, in file order.", n)
+	}
+	key := c.col("f_roh")
+	if _, ok := c.cols["f_roh"]; !ok {
+		key = c.col("f_hom")
+	}
+	pick := map[int]bool{}
+	for _, i := range labelTop(key, maxTableRows/2) {
+		pick[i] = true
+	}
+	for i := 0; i < n && len(pick) < maxTableRows; i++ {
+		if c.isFlagged(i) || c.highlight[i] {
+			pick[i] = true
+		}
+	}
+	rows := make([]int, 0, len(pick))
+	for i := range pick {
+		rows = append(rows, i)
+	}
+	sort.Ints(rows)
+	return rows, fmt.Sprintf("%d of %d samples listed: the %d with the highest F and then flagged or highlighted ones, in file order; samples.tsv has them all.", len(rows), n, maxTableRows/2)
+}
+
+// shellJoin quotes a command line so it can be pasted into a POSIX shell.
+func shellJoin(args []string) string {
+	q := make([]string, len(args))
+	for i, a := range args {
+		if a != "" && strings.Trim(a, "abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789-_./=:,+@%") == "" {
+			q[i] = a
+			continue
+		}
+		q[i] = "'" + strings.ReplaceAll(a, "'", `'\''`) + "'"
+	}
+	return strings.Join(q, " ")
+}
+
+// writeFileAtomic writes b to path through a temporary file in the same
+// folder, so a reader never sees half a page.
+func writeFileAtomic(path string, b []byte) error {
+	tmp, err := os.CreateTemp(filepath.Dir(path), ".report-*")
+	if err != nil {
+		return fmt.Errorf("report: %w", err)
+	}
+	if _, err := tmp.Write(b); err != nil {
+		tmp.Close()
+		os.Remove(tmp.Name())
+		return fmt.Errorf("report: %s: %w", path, err)
+	}
+	if err := tmp.Close(); err != nil {
+		os.Remove(tmp.Name())
+		return fmt.Errorf("report: %s: %w", path, err)
+	}
+	if err := os.Chmod(tmp.Name(), 0o644); err != nil {
+		os.Remove(tmp.Name())
+		return fmt.Errorf("report: %w", err)
+	}
+	if err := os.Rename(tmp.Name(), path); err != nil {
+		os.Remove(tmp.Name())
+		return fmt.Errorf("report: %w", err)
+	}
+	return nil
+}

@@ -1,0 +1,319 @@
+package htmlreport
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"html/template"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+
+	"gonum.org/v1/plot/vg"
+)
+
+// maxLongestRuns is how many of a sample's longest runs its page lists.
+const maxLongestRuns = 12
+
+// cautionText is the short caution carried in each per-sample JSON file.
+const cautionText = "Genomic F estimates depend on marker density, the allele-frequency reference and genotyping quality. They are not a diagnosis. Mating, keeping or culling decisions follow the breeding programme's rules and local regulations; any reading of human consanguinity or clinical consequence is for licensed genetic counselling or medical practice only."
+
+type estView struct {
+	Col, Label      string
+	Value           cell
+	Cohort, PopPctl string
+}
+
+type runView struct {
+	Chrom                 string
+	Start, End            int64
+	LengthMb, LengthCM    string
+	NSites, NHet, GenBack string
+}
+
+type flagView struct{ Flag, Text string }
+
+type sampleView struct {
+	Name, Pop, Stem string
+	Basics          []namedCell
+	Ests            []estView
+	Classes         []namedCell
+	Pedigree        *pedigreeView
+	Flags           []flagView
+	Runs            []runView
+	NRuns           int
+	Painting        *figure
+	CohortN, PopN   int
+	Info            *runInfo
+}
+
+type namedCell struct {
+	Col, Label string
+	Value      cell
+}
+
+type pedigreeView struct{ Pedigree, Genomic, Diff cell }
+
+type indexEntry struct{ Name, Stem, Pop, FROH string }
+
+// basicCols are shown on each page in this order when present.
+var basicCols = []struct{ col, label string }{
+	{"sites_called", "sites called"}, {"call_rate", "call rate"}, {"het_rate", "heterozygous share of calls"},
+	{"n_hom_ref", "homozygous reference"}, {"n_het", "heterozygous"}, {"n_hom_alt", "homozygous alternative"},
+	{"n_missing", "missing"}, {"n_haploid", "haploid calls"}, {"hom_observed", "homozygous sites observed"},
+	{"hom_expected", "homozygous sites expected"}, {"sites_informative", "informative sites"},
+	{"n_runs", "runs of homozygosity"}, {"roh_total_bp", "total length of runs (bp)"},
+}
+
+// writeSamplePages writes samples/<stem>.html and .json plus
+// samples/index.html; it returns the stem of each sample written.
+func writeSamplePages(outDir string, c *cohort, tpl *template.Template, opt Options) (map[int]string, error) {
+	dir := filepath.Join(outDir, "samples")
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return nil, fmt.Errorf("report: %w", err)
+	}
+	st := stems(c.names)
+	which := make([]int, 0, len(c.names))
+	for i := range c.names {
+		if len(c.highlight) == 0 || c.highlight[i] {
+			which = append(which, i)
+		}
+	}
+	// rankers for percentiles: cohort-wide and per population
+	cohortRank := map[string]ranker{}
+	popRank := map[string]map[string]ranker{}
+	popSize := map[string]int{}
+	for _, e := range c.ests {
+		cohortRank[e] = newRanker(c.col(e))
+		if c.pops != nil {
+			byPop := map[string][]float64{}
+			for i, p := range c.pops {
+				byPop[p] = append(byPop[p], c.col(e)[i])
+			}
+			popRank[e] = map[string]ranker{}
+			for p, xs := range byPop {
+				popRank[e][p] = newRanker(xs)
+			}
+		}
+	}
+	if c.pops != nil {
+		for _, p := range c.pops {
+			popSize[p]++
+		}
+	}
+	g := c.layout()
+	pages := map[int]string{}
+	var index []indexEntry
+	for _, i := range which {
+		v, js := c.sampleView(i, st[i], g, cohortRank, popRank, popSize)
+		var buf bytes.Buffer
+		if err := tpl.ExecuteTemplate(&buf, "sample", v); err != nil {
+			return nil, fmt.Errorf("report: sample page %q: %w", c.names[i], err)
+		}
+		path := filepath.Join(dir, st[i]+".html")
+		if filepath.Dir(path) != filepath.Clean(dir) {
+			return nil, fmt.Errorf("report: sample %q: file name escapes the samples folder", c.names[i])
+		}
+		if err := writeFileAtomic(path, buf.Bytes()); err != nil {
+			return nil, err
+		}
+		jb, err := json.MarshalIndent(js, "", "  ")
+		if err != nil {
+			return nil, fmt.Errorf("report: sample %q: %w", c.names[i], err)
+		}
+		if err := writeFileAtomic(filepath.Join(dir, st[i]+".json"), append(jb, '\n')); err != nil {
+			return nil, err
+		}
+		pages[i] = st[i]
+		e := indexEntry{Name: c.names[i], Stem: st[i], FROH: fmtG(c.col("f_roh")[i])}
+		if c.pops != nil {
+			e.Pop = c.pops[i]
+		}
+		index = append(index, e)
+	}
+	var buf bytes.Buffer
+	if err := tpl.ExecuteTemplate(&buf, "index", struct {
+		Entries []indexEntry
+		HasPop  bool
+		Total   int
+	}{index, c.pops != nil, len(c.names)}); err != nil {
+		return nil, fmt.Errorf("report: samples index: %w", err)
+	}
+	if err := writeFileAtomic(filepath.Join(dir, "index.html"), buf.Bytes()); err != nil {
+		return nil, err
+	}
+	return pages, nil
+}
+
+// jsonNum is a number that marshals NaN as null.
+type jsonNum float64
+
+func (n jsonNum) MarshalJSON() ([]byte, error) {
+	if math.IsNaN(float64(n)) || math.IsInf(float64(n), 0) {
+		return []byte("null"), nil
+	}
+	return []byte(fmtExact(float64(n))), nil
+}
+
+type sampleJSON struct {
+	Sample         string             `json:"sample"`
+	Population     *string            `json:"population,omitempty"`
+	Page           string             `json:"page"`
+	Values         map[string]jsonNum `json:"values"`
+	PctCohort      map[string]jsonNum `json:"percentile_in_cohort"`
+	PctPopulation  map[string]jsonNum `json:"percentile_in_population,omitempty"`
+	Flags          []flagJSON         `json:"flags"`
+	LongestRuns    []runJSON          `json:"longest_runs"`
+	Cautions       string             `json:"cautions"`
+	CohortSize     int                `json:"cohort_size"`
+	PopulationSize int                `json:"population_size,omitempty"`
+}
+
+type flagJSON struct {
+	Flag    string `json:"flag"`
+	Meaning string `json:"meaning"`
+}
+
+type runJSON struct {
+	Chrom           string  `json:"chrom"`
+	Start           int64   `json:"start"`
+	End             int64   `json:"end"`
+	LengthBP        jsonNum `json:"length_bp"`
+	LengthCM        jsonNum `json:"length_cm"`
+	NSites          jsonNum `json:"n_sites"`
+	GenerationsBack jsonNum `json:"generations_back"`
+}
+
+func (c *cohort) sampleView(i int, stem string, g genomeLayout, cr map[string]ranker, pr map[string]map[string]ranker, popSize map[string]int) (*sampleView, *sampleJSON) {
+	t := c.d.samples
+	v := &sampleView{Name: c.names[i], Stem: stem, CohortN: len(c.names), Info: &c.d.info}
+	js := &sampleJSON{Sample: v.Name, Page: stem + ".html", Values: map[string]jsonNum{}, PctCohort: map[string]jsonNum{},
+		Cautions: cautionText, CohortSize: len(c.names), Flags: []flagJSON{}, LongestRuns: []runJSON{}}
+	if c.pops != nil {
+		v.Pop = c.pops[i]
+		v.PopN = popSize[v.Pop]
+		p := v.Pop
+		js.Population = &p
+		js.PopulationSize = v.PopN
+		js.PctPopulation = map[string]jsonNum{}
+	}
+	for _, h := range t.header {
+		if h == "sample" || h == "population" || h == "flags" {
+			continue
+		}
+		js.Values[h] = jsonNum(c.col(h)[i])
+	}
+	for _, b := range basicCols {
+		if t.has(b.col) {
+			v.Basics = append(v.Basics, namedCell{b.col, b.label, newCell(c.col(b.col)[i])})
+		}
+	}
+	for _, e := range c.ests {
+		x := c.col(e)[i]
+		ev := estView{Col: e, Label: estimatorLabel(e), Value: newCell(x)}
+		pc := cr[e].percentile(x)
+		ev.Cohort = fmtPctl(pc)
+		js.PctCohort[e] = jsonNum(pc)
+		if c.pops != nil {
+			pp := pr[e][v.Pop].percentile(x)
+			ev.PopPctl = fmtPctl(pp)
+			js.PctPopulation[e] = jsonNum(pp)
+		}
+		v.Ests = append(v.Ests, ev)
+	}
+	for _, cl := range c.classes {
+		v.Classes = append(v.Classes, namedCell{cl.Col, "runs longer than " + fmtMb(cl.MinMb), newCell(c.col(cl.Col)[i])})
+	}
+	if _, ok := c.cols["f_pedigree"]; ok {
+		ped := c.col("f_pedigree")[i]
+		gen := c.col("f_roh")[i]
+		if _, ok := c.cols["f_roh"]; !ok {
+			gen = c.col("f_hom")[i]
+		}
+		v.Pedigree = &pedigreeView{newCell(ped), newCell(gen), newCell(gen - ped)}
+	}
+	for _, f := range c.flags[i] {
+		txt, ok := flagText[f]
+		if !ok {
+			txt = "A flag this version of the report does not know; see `fgauge columns`."
+		}
+		v.Flags = append(v.Flags, flagView{f, txt})
+		js.Flags = append(js.Flags, flagJSON{f, txt})
+	}
+	runs := append([]rohRun(nil), c.d.runs[v.Name]...)
+	v.NRuns = len(runs)
+	sort.SliceStable(runs, func(a, b int) bool { return runs[a].lengthBP > runs[b].lengthBP })
+	for k, r := range runs {
+		if k == maxLongestRuns {
+			break
+		}
+		v.Runs = append(v.Runs, runView{Chrom: r.chrom, Start: r.start, End: r.end, LengthMb: fmtG(r.lengthBP / 1e6),
+			LengthCM: fmtG(r.lengthCM), NSites: fmtG(r.nSites), NHet: fmtG(r.nHet), GenBack: fmtG(r.genBack)})
+		js.LongestRuns = append(js.LongestRuns, runJSON{r.chrom, r.start, r.end, jsonNum(r.lengthBP), jsonNum(r.lengthCM), jsonNum(r.nSites), jsonNum(r.genBack)})
+	}
+	if c.d.runsPresent {
+		f := c.samplePainting(v.Name, g)
+		v.Painting = &f
+	}
+	return v, js
+}
+
+func fmtPctl(p float64) string {
+	if math.IsNaN(p) {
+		return "NA"
+	}
+	return fmt.Sprintf("%.0f", p)
+}
+
+// samplePainting draws one sample's chromosomes, one row each, with its
+// runs.
+func (c *cohort) samplePainting(name string, g genomeLayout) figure {
+	f := figure{ID: "fig_sample_painting", Kind: "painting", Title: "Runs along this sample's chromosomes"}
+	if g.total == 0 {
+		f.Empty = "No chromosome extents known."
+		return f
+	}
+	pt := &painting{nClass: len(c.classes) + 1}
+	row := map[string]int{}
+	var ylab []string
+	for j := len(g.names) - 1; j >= 0; j-- {
+		k := g.names[j]
+		row[k] = len(pt.rows)
+		pt.rows = append(pt.rows, paintRow{label: clip(k, 10), bands: []span{{start: 0, end: g.length[k]}}})
+		ylab = append(ylab, clip(k, 10))
+		pt.xmax = math.Max(pt.xmax, g.length[k])
+	}
+	for _, r := range c.d.runs[name] {
+		f.Total++
+		j, ok := row[r.chrom]
+		if !ok {
+			continue
+		}
+		pt.rows[j].segs = append(pt.rows[j].segs, span{start: float64(r.start) / 1e6, end: float64(r.end) / 1e6, class: c.classOf(r.lengthBP)})
+		f.Points++
+	}
+	pt.xmax *= legendRoom
+	p := newPlot("", "position (Mb)", "")
+	p.Add(pt)
+	yat := make([]float64, len(ylab))
+	for i := range yat {
+		yat[i] = float64(i)
+	}
+	p.Y.Tick.Marker = tickNames{at: yat, names: ylab}
+	p.Y.Tick.Length = 0
+	p.Y.LineStyle.Width = 0
+	legendBands(p, bandLabels(c.classes))
+	f.Caption = fmt.Sprintf("%d runs; each block is one run, coloured by length.", f.Total)
+	if f.Points < f.Total {
+		f.Note = fmt.Sprintf("%d runs on chromosomes outside the painted set are not drawn.", f.Total-f.Points)
+	}
+	h := vg.Length(len(pt.rows))*0.42*vg.Centimeter + 3*vg.Centimeter
+	svg, err := renderPlot(p, plotW, h)
+	if err != nil {
+		f.Empty = "The painting could not be drawn: " + err.Error()
+		return f
+	}
+	f.SVG = svg
+	return f
+}
