@@ -9,7 +9,7 @@ for (i in seq_len(nrow(triples))) {
   g <- genotype(c(rep("A/A", a), rep("A/B", h), rep("B/B", b)))
   p <- HWE.exact(g)$p.value
   out <- rbind(out, data.frame(n_hom_ref = a, n_het = h, n_hom_alt = b,
-                               hwe_exact_p = formatC(p, digits = 17, format = "g")))
+                               hwe_exact_p = sprintf("%.17g", p)))
 }
 cat(sprintf("# R %s, genetics %s\n", getRversion(), packageVersion("genetics")), file = stderr())
 write.table(out, "hwe_worked.tsv", sep = "\t", quote = FALSE, row.names = FALSE)
