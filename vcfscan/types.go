@@ -108,6 +108,7 @@ type Batch struct {
 	// Masked counts calls set to Missing by MinGQ/MinDP.
 	Masked int64
 	arena  []byte
+	st     *batchState // reader bookkeeping; nil outside the reader
 }
 
 // Calls returns the genotype codes of record i.
@@ -125,8 +126,12 @@ type Options struct {
 	InfoKey         string   // INFO key to read into Record.InfoValue (e.g. "AF")
 	WantPL          bool     // decode PL/GL into Batch.PL when present
 	Regions         []Region // restrict to these regions via the index
-	BatchSize       int      // records per batch; 0 means a default
-	Limits          Limits
+	BatchSize       int      // at most this many data lines per batch; 0 means batches of about 2 MiB of text
+	// RequireSorted makes Next fail with ErrUnsorted when a position goes
+	// backwards within a chromosome or a chromosome's records are split
+	// into separate blocks; the error names the first out-of-order pair.
+	RequireSorted bool
+	Limits        Limits
 }
 
 // Region is a chromosome interval, 1-based and inclusive; End 0 means to the end.

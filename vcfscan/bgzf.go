@@ -1,0 +1,503 @@
+package vcfscan
+
+import (
+	"bytes"
+	"encoding/binary"
+	"errors"
+	"fmt"
+	"hash/crc32"
+	"io"
+	"sync"
+
+	"github.com/biogo/hts/bgzf"
+	"github.com/klauspost/compress/flate"
+)
+
+// BGZF is gzip made of independent members of at most 64 KiB each, with the
+// compressed size of the member in an extra field (SAM/BAM format
+// specification, section 4.1, "The BGZF compression format", hts-specs).
+// This file holds a parallel block reader and a block writer.
+
+const (
+	bgzfHeaderLen   = 18    // fixed header with a single BC extra subfield
+	bgzfMaxBlock    = 65536 // largest total block size (BSIZE+1) the format allows
+	bgzfDefaultMaxI = 65536 // default largest ISIZE accepted
+	bgzfWriteChunk  = 0xff00
+)
+
+// bgzfEOF is the 28-byte empty block that ends a BGZF file (SAM spec 4.1.2).
+var bgzfEOF = []byte{
+	0x1f, 0x8b, 0x08, 0x04, 0x00, 0x00, 0x00, 0x00, 0x00, 0xff, 0x06, 0x00,
+	0x42, 0x43, 0x02, 0x00, 0x1b, 0x00, 0x03, 0x00, 0x00, 0x00, 0x00, 0x00,
+	0x00, 0x00, 0x00, 0x00,
+}
+
+// isBGZFHeader reports whether p starts like a BGZF block: gzip magic,
+// deflate, FEXTRA set and a BC subfield in the extra field.
+func isBGZFHeader(p []byte) bool {
+	if len(p) < 12 || p[0] != 0x1f || p[1] != 0x8b || p[2] != 8 || p[3]&4 == 0 {
+		return false
+	}
+	xlen := int(binary.LittleEndian.Uint16(p[10:12]))
+	if len(p) < 12+xlen {
+		xlen = len(p) - 12
+	}
+	_, ok := findBC(p[12 : 12+xlen])
+	return ok
+}
+
+// findBC returns BSIZE from the BC subfield of a gzip extra field.
+func findBC(extra []byte) (int, bool) {
+	for len(extra) >= 4 {
+		slen := int(binary.LittleEndian.Uint16(extra[2:4]))
+		if extra[0] == 'B' && extra[1] == 'C' && slen == 2 && len(extra) >= 6 {
+			return int(binary.LittleEndian.Uint16(extra[4:6])), true
+		}
+		if 4+slen > len(extra) {
+			return 0, false
+		}
+		extra = extra[4+slen:]
+	}
+	return 0, false
+}
+
+// bgzfJob is one block travelling through the decompression pipeline.
+type bgzfJob struct {
+	coff     int64 // file offset of the block
+	raw      []byte
+	out      []byte
+	lo, hi   int // part of out to deliver (regions trim the first/last block)
+	err      error
+	done     chan struct{}
+	terminal bool // no more blocks after this one; err says why (io.EOF when clean)
+}
+
+// bgzfReader decompresses BGZF blocks on several goroutines and delivers the
+// bytes in order. Memory is bounded by a fixed number of blocks in flight.
+type bgzfReader struct {
+	name     string
+	src      io.Reader
+	seeker   io.ReadSeeker // non-nil when reading chunks
+	chunks   []bgzf.Chunk
+	maxISize int
+
+	free  chan *bgzfJob
+	work  chan *bgzfJob
+	order chan *bgzfJob
+	quit  chan struct{}
+	once  sync.Once
+	wg    sync.WaitGroup
+
+	cur  *bgzfJob
+	err  error
+	eofs eofState
+}
+
+// eofState records what the block reader saw at the end, for warnings.
+type eofState struct {
+	mu         sync.Mutex
+	missingEOF bool
+	blocks     int64
+}
+
+func (s *eofState) get() (missing bool, blocks int64) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.missingEOF, s.blocks
+}
+
+// newBGZFReader starts reading src as a BGZF stream with the given number of
+// decompression goroutines. If chunks is non-empty, src must be an
+// io.ReadSeeker and only those chunks (sorted, virtual offsets) are read.
+func newBGZFReader(src io.Reader, name string, threads, maxISize int, chunks []bgzf.Chunk) (*bgzfReader, error) {
+	if threads < 1 {
+		threads = 1
+	}
+	if maxISize <= 0 {
+		maxISize = bgzfDefaultMaxI
+	}
+	inflight := 4*threads + 4
+	z := &bgzfReader{
+		name:     name,
+		src:      src,
+		chunks:   chunks,
+		maxISize: maxISize,
+		free:     make(chan *bgzfJob, inflight),
+		work:     make(chan *bgzfJob, inflight),
+		order:    make(chan *bgzfJob, inflight+1),
+		quit:     make(chan struct{}),
+	}
+	if len(chunks) > 0 {
+		rs, ok := src.(io.ReadSeeker)
+		if !ok {
+			return nil, fmt.Errorf("%s: reading regions needs a seekable file, not a stream", name)
+		}
+		z.seeker = rs
+	}
+	for i := 0; i < inflight; i++ {
+		z.free <- &bgzfJob{raw: make([]byte, 0, bgzfMaxBlock), done: make(chan struct{}, 1)}
+	}
+	z.wg.Add(threads + 1)
+	for i := 0; i < threads; i++ {
+		go z.inflateLoop()
+	}
+	go z.readLoop()
+	return z, nil
+}
+
+func (z *bgzfReader) blockErr(coff int64, sentinel error, format string, args ...any) error {
+	return &ParseError{File: z.name, Offset: coff << 16, Record: -1, Field: "BGZF block",
+		Err: fmt.Errorf("%w: %s", sentinel, fmt.Sprintf(format, args...))}
+}
+
+// readRaw reads one raw block at file offset coff into j.raw. It returns
+// io.EOF at a clean end of input.
+func (z *bgzfReader) readRaw(r io.Reader, coff int64, j *bgzfJob) error {
+	buf := j.raw[:bgzfMaxBlock]
+	n, err := io.ReadFull(r, buf[:12])
+	if err == io.EOF {
+		return io.EOF
+	}
+	if err != nil {
+		return z.blockErr(coff, ErrTruncated, "input ends inside a block header (%d of 12 bytes); the file was cut short, recompress or re-download it", n)
+	}
+	if buf[0] != 0x1f || buf[1] != 0x8b || buf[2] != 8 || buf[3]&4 == 0 {
+		return z.blockErr(coff, ErrMalformed, "expected a BGZF block header (1f 8b 08 with FEXTRA), found % x", buf[:4])
+	}
+	xlen := int(binary.LittleEndian.Uint16(buf[10:12]))
+	if 12+xlen > len(buf) {
+		return z.blockErr(coff, ErrMalformed, "extra field of %d bytes is too long", xlen)
+	}
+	if _, err := io.ReadFull(r, buf[12:12+xlen]); err != nil {
+		return z.blockErr(coff, ErrTruncated, "input ends inside a block header extra field")
+	}
+	bsize, ok := findBC(buf[12 : 12+xlen])
+	if !ok {
+		return z.blockErr(coff, ErrMalformed, "gzip member without the BC extra subfield; the file is plain gzip glued to BGZF, recompress it with a BGZF writer")
+	}
+	total := bsize + 1
+	if total < 12+xlen+8 {
+		return z.blockErr(coff, ErrMalformed, "block size %d is smaller than its header", total)
+	}
+	if n, err := io.ReadFull(r, buf[12+xlen:total]); err != nil {
+		return z.blockErr(coff, ErrTruncated, "block of %d bytes ends after %d bytes; the file was cut short", total, 12+xlen+n)
+	}
+	j.raw = buf[:total]
+	return nil
+}
+
+func (z *bgzfReader) getJob() (*bgzfJob, bool) {
+	select {
+	case j := <-z.free:
+		j.err, j.terminal, j.lo, j.hi = nil, false, 0, 0
+		return j, true
+	case <-z.quit:
+		return nil, false
+	}
+}
+
+func (z *bgzfReader) finish(err error) {
+	// The terminal job is not from the free pool; order has room for it.
+	z.order <- &bgzfJob{terminal: true, err: err}
+	close(z.work)
+}
+
+func (z *bgzfReader) readLoop() {
+	defer z.wg.Done()
+	if z.seeker != nil {
+		z.readChunks()
+		return
+	}
+	var coff int64
+	var lastEmpty bool
+	var blocks int64
+	for {
+		j, ok := z.getJob()
+		if !ok {
+			close(z.work)
+			return
+		}
+		err := z.readRaw(z.src, coff, j)
+		if err != nil {
+			z.free <- j
+			if err == io.EOF {
+				z.eofs.mu.Lock()
+				z.eofs.missingEOF = !lastEmpty && blocks > 0
+				z.eofs.blocks = blocks
+				z.eofs.mu.Unlock()
+			}
+			z.finish(err)
+			return
+		}
+		j.coff = coff
+		j.lo, j.hi = 0, -1
+		coff += int64(len(j.raw))
+		blocks++
+		lastEmpty = binary.LittleEndian.Uint32(j.raw[len(j.raw)-4:]) == 0
+		z.order <- j
+		z.work <- j
+	}
+}
+
+// readChunks reads the blocks covering each chunk, trimming the first and
+// last block to the chunk's virtual offsets.
+func (z *bgzfReader) readChunks() {
+	for _, c := range z.chunks {
+		if _, err := z.seeker.Seek(c.Begin.File, io.SeekStart); err != nil {
+			z.finish(fmt.Errorf("%s: seek to %d: %w", z.name, c.Begin.File, err))
+			return
+		}
+		coff := c.Begin.File
+		for first := true; ; first = false {
+			if coff > c.End.File || (coff == c.End.File && c.End.Block == 0) {
+				break
+			}
+			j, ok := z.getJob()
+			if !ok {
+				close(z.work)
+				return
+			}
+			err := z.readRaw(z.seeker, coff, j)
+			if err == io.EOF {
+				z.free <- j
+				break
+			}
+			if err != nil {
+				z.free <- j
+				z.finish(err)
+				return
+			}
+			j.coff = coff
+			j.lo, j.hi = 0, -1
+			if first {
+				j.lo = int(c.Begin.Block)
+			}
+			if coff == c.End.File {
+				j.hi = int(c.End.Block)
+			}
+			coff += int64(len(j.raw))
+			z.order <- j
+			z.work <- j
+		}
+	}
+	z.finish(io.EOF)
+}
+
+func (z *bgzfReader) inflateLoop() {
+	defer z.wg.Done()
+	var fr io.ReadCloser
+	br := bytes.NewReader(nil)
+	for j := range z.work {
+		j.err = z.inflate(j, &fr, br)
+		j.done <- struct{}{}
+	}
+}
+
+// inflate decompresses j.raw into j.out and checks CRC32 and ISIZE.
+func (z *bgzfReader) inflate(j *bgzfJob, fr *io.ReadCloser, br *bytes.Reader) error {
+	raw := j.raw
+	xlen := int(binary.LittleEndian.Uint16(raw[10:12]))
+	cdata := raw[12+xlen : len(raw)-8]
+	wantCRC := binary.LittleEndian.Uint32(raw[len(raw)-8:])
+	isize := int(binary.LittleEndian.Uint32(raw[len(raw)-4:]))
+	if isize > z.maxISize || isize < 0 {
+		return z.blockErr(j.coff, ErrLimit, "block claims %d uncompressed bytes, more than the limit of %d; raise --max-block-bytes if the file is genuine", isize, z.maxISize)
+	}
+	if cap(j.out) < isize+1 {
+		j.out = make([]byte, isize+1, max(isize+1, bgzfMaxBlock+1))
+	}
+	out := j.out[:isize+1]
+	br.Reset(cdata)
+	if *fr == nil {
+		*fr = flate.NewReader(br)
+	} else if err := (*fr).(flate.Resetter).Reset(br, nil); err != nil {
+		return z.blockErr(j.coff, ErrMalformed, "resetting inflater: %v", err)
+	}
+	n, err := io.ReadFull(*fr, out)
+	switch {
+	case err == nil:
+		return z.blockErr(j.coff, ErrMalformed, "block inflates to more than its ISIZE of %d bytes", isize)
+	case errors.Is(err, io.ErrUnexpectedEOF) || err == io.EOF:
+		// expected: the stream ends at or before isize+1 bytes
+	default:
+		return z.blockErr(j.coff, ErrMalformed, "deflate data is corrupt: %v", err)
+	}
+	if n != isize {
+		return z.blockErr(j.coff, ErrMalformed, "block inflates to %d bytes but its ISIZE says %d", n, isize)
+	}
+	out = out[:n]
+	if got := crc32.ChecksumIEEE(out); got != wantCRC {
+		return z.blockErr(j.coff, ErrChecksum, "CRC32 of the inflated block is %08x, the block says %08x; the file is damaged", got, wantCRC)
+	}
+	j.out = out
+	if j.hi < 0 || j.hi > len(out) {
+		j.hi = len(out)
+	}
+	if j.lo > j.hi {
+		j.lo = j.hi
+	}
+	return nil
+}
+
+// Read implements io.Reader over the inflated bytes, in block order.
+func (z *bgzfReader) Read(p []byte) (int, error) {
+	if z.err != nil {
+		return 0, z.err
+	}
+	for {
+		if z.cur != nil {
+			if z.cur.lo < z.cur.hi {
+				n := copy(p, z.cur.out[z.cur.lo:z.cur.hi])
+				z.cur.lo += n
+				return n, nil
+			}
+			z.free <- z.cur
+			z.cur = nil
+		}
+		j := <-z.order
+		if j.terminal {
+			z.err = j.err
+			return 0, z.err
+		}
+		<-j.done
+		if j.err != nil {
+			z.err = j.err
+			z.free <- j
+			return 0, z.err
+		}
+		z.cur = j
+	}
+}
+
+// Close stops the pipeline. It does not close the underlying reader.
+func (z *bgzfReader) Close() error {
+	z.once.Do(func() {
+		close(z.quit)
+		if z.err == nil {
+			z.err = errors.New("vcfscan: read after close")
+		}
+	})
+	return nil
+}
+
+// BGZFWriter writes BGZF: each Write is cut into blocks of at most 65,280
+// input bytes, each compressed as its own gzip member with the BC extra
+// field, and Close appends the empty EOF block (SAM spec 4.1).
+type BGZFWriter struct {
+	w     io.Writer
+	level int
+	buf   []byte
+	cbuf  bytes.Buffer
+	fw    *flate.Writer
+	err   error
+	hdr   [18]byte
+}
+
+// NewBGZFWriter returns a writer compressing at the given flate level
+// (-1 for the default, 0-9 as in compress/flate).
+func NewBGZFWriter(w io.Writer, level int) *BGZFWriter {
+	if level < flate.HuffmanOnly || level > flate.BestCompression {
+		level = flate.DefaultCompression
+	}
+	return &BGZFWriter{w: w, level: level, buf: make([]byte, 0, bgzfWriteChunk)}
+}
+
+// Write buffers p and writes every full block.
+func (bw *BGZFWriter) Write(p []byte) (int, error) {
+	if bw.err != nil {
+		return 0, bw.err
+	}
+	n := 0
+	for len(p) > 0 {
+		k := copy(bw.buf[len(bw.buf):cap(bw.buf)], p)
+		bw.buf = bw.buf[:len(bw.buf)+k]
+		p = p[k:]
+		n += k
+		if len(bw.buf) == cap(bw.buf) {
+			if err := bw.flushBlock(); err != nil {
+				return n, err
+			}
+		}
+	}
+	return n, nil
+}
+
+// Flush writes buffered bytes as a (short) block, so that a reader can
+// seek to the current position.
+func (bw *BGZFWriter) Flush() error {
+	if bw.err != nil {
+		return bw.err
+	}
+	if len(bw.buf) == 0 {
+		return nil
+	}
+	return bw.flushBlock()
+}
+
+func (bw *BGZFWriter) flushBlock() error {
+	bw.cbuf.Reset()
+	var err error
+	if bw.fw == nil {
+		bw.fw, err = flate.NewWriter(&bw.cbuf, bw.level)
+		if err != nil {
+			bw.err = err
+			return err
+		}
+	} else {
+		bw.fw.Reset(&bw.cbuf)
+	}
+	if _, err = bw.fw.Write(bw.buf); err == nil {
+		err = bw.fw.Close()
+	}
+	if err != nil {
+		bw.err = err
+		return err
+	}
+	cdata := bw.cbuf.Bytes()
+	if len(cdata)+26 > bgzfMaxBlock {
+		// Incompressible data: store it (a stored block adds 5 bytes).
+		bw.cbuf.Reset()
+		sw, _ := flate.NewWriter(&bw.cbuf, flate.NoCompression)
+		sw.Write(bw.buf)
+		sw.Close()
+		cdata = bw.cbuf.Bytes()
+	}
+	err = bw.writeBlock(cdata, crc32.ChecksumIEEE(bw.buf), len(bw.buf))
+	bw.buf = bw.buf[:0]
+	return err
+}
+
+func (bw *BGZFWriter) writeBlock(cdata []byte, crc uint32, isize int) error {
+	h := bw.hdr[:]
+	copy(h, bgzfEOF[:16])
+	binary.LittleEndian.PutUint16(h[16:18], uint16(len(cdata)+25))
+	var tail [8]byte
+	binary.LittleEndian.PutUint32(tail[0:4], crc)
+	binary.LittleEndian.PutUint32(tail[4:8], uint32(isize))
+	for _, p := range [][]byte{h, cdata, tail[:]} {
+		if _, err := bw.w.Write(p); err != nil {
+			bw.err = err
+			return err
+		}
+	}
+	return nil
+}
+
+// Close flushes the last block and writes the EOF block. It does not close
+// the underlying writer.
+func (bw *BGZFWriter) Close() error {
+	if bw.err != nil {
+		return bw.err
+	}
+	if err := bw.Flush(); err != nil {
+		return err
+	}
+	if _, err := bw.w.Write(bgzfEOF); err != nil {
+		bw.err = err
+		return err
+	}
+	bw.err = errWriterClosed
+	return nil
+}
+
+var errWriterClosed = errors.New("vcfscan: write to closed BGZFWriter")

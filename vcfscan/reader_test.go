@@ -1,0 +1,183 @@
+package vcfscan
+
+import (
+	"bufio"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// siteCounts is one kept record with its genotype counts.
+type siteCounts struct {
+	chrom string
+	pos   int64
+	c     [4]int64 // hom_ref het hom_alt missing
+}
+
+// scanResult is everything a test compares after reading a whole input.
+type scanResult struct {
+	samples []string
+	sites   []siteCounts
+	persamp [][4]int64
+	skipped [NumSkipReasons]int64
+	read    int64
+	masked  int64
+	haploid int64
+	gts     []Geno // all calls, record-major
+	pls     []uint16
+	lines   []int64
+	format  Format
+	warns   []Warning
+}
+
+func countIndex(g Geno) int {
+	switch g {
+	case HomRef:
+		return 0
+	case Het:
+		return 1
+	case HomAlt:
+		return 2
+	}
+	return 3
+}
+
+func collect(t testing.TB, r *Reader) (*scanResult, error) {
+	t.Helper()
+	res := &scanResult{samples: r.Samples(), format: r.Format()}
+	res.persamp = make([][4]int64, len(res.samples))
+	var seq int64
+	for {
+		b, err := r.Next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return res, err
+		}
+		if b.Seq != seq {
+			t.Fatalf("batch Seq %d, want %d", b.Seq, seq)
+		}
+		seq++
+		for i, rec := range b.Records {
+			s := siteCounts{chrom: r.Header().Contigs[rec.ChromID].Name, pos: rec.Pos}
+			for j, g := range b.Calls(i) {
+				k := countIndex(g)
+				if g == HaploidRef || g == HaploidAlt {
+					res.haploid++
+				}
+				s.c[k]++
+				res.persamp[j][k]++
+			}
+			res.sites = append(res.sites, s)
+			res.lines = append(res.lines, rec.Line)
+		}
+		res.gts = append(res.gts, b.GT...)
+		res.pls = append(res.pls, b.PL...)
+		for k, n := range b.Skipped {
+			res.skipped[k] += n
+		}
+		res.read += b.Read
+		res.masked += b.Masked
+		r.Release(b)
+	}
+	res.warns = r.Warnings()
+	return res, nil
+}
+
+func readFile(t testing.TB, path string, opt Options) (*scanResult, error) {
+	t.Helper()
+	r, err := Open(path, opt)
+	if err != nil {
+		return nil, err
+	}
+	defer r.Close()
+	return collect(t, r)
+}
+
+// readTSV reads a tab-separated file with a header line.
+func readTSV(t *testing.T, path string) [][]string {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	var rows [][]string
+	sc := bufio.NewScanner(f)
+	sc.Scan()
+	for sc.Scan() {
+		rows = append(rows, strings.Split(sc.Text(), "\t"))
+	}
+	return rows
+}
+
+func atoi(t *testing.T, s string) int64 {
+	t.Helper()
+	n, err := strconv.ParseInt(s, 10, 64)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return n
+}
+
+// TestCountsMatchCyvcf2 compares per-site and per-sample genotype counts
+// with the reference tables in testdata/expected, computed by python3-cyvcf2
+// 0.30.18 with testdata/tools/site_sample_counts.py (site policy: one ALT,
+// REF and ALT single ACGT bases, any FILTER; any missing allele => missing).
+func TestCountsMatchCyvcf2(t *testing.T) {
+	for _, name := range []string{"chr22_1000g", "cohort189"} {
+		for _, threads := range []int{1, 3} {
+			t.Run(fmt.Sprintf("%s/threads=%d", name, threads), func(t *testing.T) {
+				res, err := readFile(t, filepath.Join("..", "testdata", name+".vcf.gz"),
+					Options{IncludeFiltered: true, Threads: threads})
+				if err != nil {
+					t.Fatal(err)
+				}
+				if res.format != FormatVCFBGZF {
+					t.Errorf("format %v, want BGZF VCF", res.format)
+				}
+				want := readTSV(t, filepath.Join("..", "testdata", "expected", name+".sites.tsv"))
+				if len(res.sites) != len(want) {
+					t.Fatalf("%d kept sites, cyvcf2 keeps %d", len(res.sites), len(want))
+				}
+				for i, w := range want {
+					got := res.sites[i]
+					if got.chrom != w[0] || got.pos != atoi(t, w[1]) {
+						t.Fatalf("site %d is %s:%d, cyvcf2 has %s:%s", i, got.chrom, got.pos, w[0], w[1])
+					}
+					for k := 0; k < 4; k++ {
+						if got.c[k] != atoi(t, w[2+k]) {
+							t.Fatalf("%s:%d counts %v, cyvcf2 %v", got.chrom, got.pos, got.c, w[2:6])
+						}
+					}
+				}
+				ws := readTSV(t, filepath.Join("..", "testdata", "expected", name+".samples.tsv"))
+				if len(ws) != len(res.samples) {
+					t.Fatalf("%d samples, cyvcf2 has %d", len(res.samples), len(ws))
+				}
+				for j, w := range ws {
+					if res.samples[j] != w[0] {
+						t.Fatalf("sample %d is %q, cyvcf2 %q", j, res.samples[j], w[0])
+					}
+					for k := 0; k < 4; k++ {
+						if res.persamp[j][k] != atoi(t, w[1+k]) {
+							t.Fatalf("sample %s counts %v, cyvcf2 %v", w[0], res.persamp[j], w[1:])
+						}
+					}
+				}
+				var skipped int64
+				for _, n := range res.skipped {
+					skipped += n
+				}
+				if res.read != int64(len(res.sites))+skipped {
+					t.Errorf("read %d != kept %d + skipped %d", res.read, len(res.sites), skipped)
+				}
+			})
+		}
+	}
+}

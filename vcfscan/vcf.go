@@ -1,0 +1,709 @@
+package vcfscan
+
+import (
+	"bytes"
+	"fmt"
+	"math"
+	"strconv"
+	"unsafe"
+)
+
+// This file parses VCF data lines (VCF 4.1-4.4, section 1.6 "Data lines")
+// into batches. A worker owns one vcfParser and parses whole chunks of
+// lines; nothing here allocates per record or per sample once the batch
+// buffers have grown to their working size.
+
+// warnKind enumerates the warnings counted while parsing.
+type warnKind int
+
+const (
+	warnHaploid warnKind = iota
+	warnPolyploid
+	warnBlankLine
+	warnContigNotInHeader
+	numWarnKinds
+)
+
+var warnNames = [...]string{"haploid_calls", "polyploid_calls_as_missing", "blank_lines", "contig_not_in_header"}
+
+// chromBlock is a run of consecutive records on one chromosome in a chunk.
+type chromBlock struct {
+	id                  int // contig id, or -(k+1) for the chunk's k-th new name
+	firstPos, lastPos   int64
+	firstLine, lastLine int64
+}
+
+// unsortedAt records the first position decrease inside a chunk.
+type unsortedAt struct {
+	line        int64
+	chrom       int
+	prev, pos   int64
+	prevLineRel int64
+}
+
+// batchState is the per-batch bookkeeping that the ordered stage of the
+// reader finishes (line numbers, new contigs, sortedness, warnings).
+type batchState struct {
+	lines     int64
+	newChroms [][]byte
+	blocks    []chromBlock
+	unsorted  *unsortedAt
+	unsortedV unsortedAt
+	warn      [numWarnKinds]int64
+	warnLine  [numWarnKinds]int64
+	err       error
+	done      chan struct{}
+	terminal  bool
+	data      []byte // the text of the chunk, inside Batch.arena
+}
+
+func (st *batchState) reset() {
+	st.lines = 0
+	st.newChroms = st.newChroms[:0]
+	st.blocks = st.blocks[:0]
+	st.unsorted = nil
+	st.warn = [numWarnKinds]int64{}
+	st.warnLine = [numWarnKinds]int64{}
+	st.err = nil
+	st.terminal = false
+	st.data = nil
+}
+
+func (st *batchState) addWarn(k warnKind, line int64, n int64) {
+	if st.warn[k] == 0 {
+		st.warnLine[k] = line
+	}
+	st.warn[k] += n
+}
+
+// allele class of a GT byte for the fast path: '0', '1', '.', other.
+var alleleClass = func() (t [256]uint8) {
+	for i := range t {
+		t[i] = 3
+	}
+	t['0'], t['1'], t['.'] = 0, 1, 2
+	return
+}()
+
+const slowGT Geno = 255
+
+// gt3 maps the classes of the two alleles of a diploid call to its code.
+var gt3 = [4][4]Geno{
+	{HomRef, Het, Missing, slowGT},
+	{Het, HomAlt, Missing, slowGT},
+	{Missing, Missing, Missing, slowGT},
+	{slowGT, slowGT, slowGT, slowGT},
+}
+
+var isACGT = func() (t [256]bool) {
+	for _, c := range "ACGTacgt" {
+		t[c] = true
+	}
+	return
+}()
+
+// regionFilter says whether [lo, hi] on chrom overlaps a requested region.
+type regionFilter interface {
+	overlaps(chrom string, lo, hi int64) bool
+}
+
+// vcfParser is a worker's parser state. The fields above the format cache
+// are shared read-only between workers.
+type vcfParser struct {
+	name      string
+	opt       *Options
+	nFile     int     // sample columns in the file
+	dest      []int32 // file column -> output position, -1 to drop; nil = identity
+	nOut      int
+	samples   []string // file sample names, for messages
+	contigs   map[string]int
+	regions   regionFilter
+	hasFormat bool
+
+	// FORMAT cache
+	fmtBuf                            []byte
+	fmtValid                          bool
+	gtIdx, dpIdx, gqIdx, plIdx, glIdx int
+
+	st *batchState
+}
+
+func (p *vcfParser) errf(line int64, sentinel error, field, format string, args ...any) error {
+	return &ParseError{File: p.name, Line: line, Offset: -1, Record: -1, Field: field,
+		Err: fmt.Errorf("%w: %s", sentinel, fmt.Sprintf(format, args...))}
+}
+
+// parseChunk parses data, which holds whole lines each ending in '\n'.
+// Line numbers in records and errors are relative to the chunk (1-based);
+// the reader adds the chunk's base.
+func (p *vcfParser) parseChunk(b *Batch, data []byte) error {
+	st := p.st
+	var lineNo int64
+	for len(data) > 0 {
+		nl := bytes.IndexByte(data, '\n')
+		var line []byte
+		if nl < 0 {
+			line, data = data, nil
+		} else {
+			line, data = data[:nl], data[nl+1:]
+		}
+		lineNo++
+		if n := len(line); n > 0 && line[n-1] == '\r' {
+			line = line[:n-1]
+		}
+		if len(line) == 0 {
+			st.addWarn(warnBlankLine, lineNo, 1)
+			continue
+		}
+		if err := p.parseLine(b, line, lineNo); err != nil {
+			st.lines = lineNo
+			return err
+		}
+	}
+	st.lines = lineNo
+	return nil
+}
+
+// cut returns the field up to the next tab, the rest after it, and whether
+// a tab was found.
+func cut(s []byte) (field, rest []byte, found bool) {
+	if i := bytes.IndexByte(s, '\t'); i >= 0 {
+		return s[:i], s[i+1:], true
+	}
+	return s, nil, false
+}
+
+var colNames = [...]string{"CHROM", "POS", "ID", "REF", "ALT", "QUAL", "FILTER", "INFO"}
+
+func (p *vcfParser) parseLine(b *Batch, line []byte, lineNo int64) error {
+	b.Read++
+	var f [8][]byte
+	rest := line
+	found := true
+	for i := 0; i < 8; i++ {
+		if !found {
+			return p.errf(lineNo, ErrMalformed, colNames[i], "line has %d tab-separated columns, expected at least 8 (CHROM to INFO); are the columns separated by spaces?", i)
+		}
+		f[i], rest, found = cut(rest)
+	}
+	chrom, posF, ref, alt, filter := f[0], f[1], f[3], f[4], f[6]
+	if len(chrom) == 0 {
+		return p.errf(lineNo, ErrMalformed, "CHROM", "empty chromosome name")
+	}
+	if chrom[0] == '#' {
+		return p.errf(lineNo, ErrMalformed, "CHROM", "header line %q among the data lines; header lines must come before #CHROM", clip(line))
+	}
+	pos, ok := parsePos(posF)
+	if !ok {
+		return p.errf(lineNo, ErrMalformed, "POS", "expected a non-negative integer position, found %q", clip(posF))
+	}
+	if len(ref) == 0 {
+		return p.errf(lineNo, ErrMalformed, "REF", "empty reference allele")
+	}
+	if len(alt) == 0 {
+		return p.errf(lineNo, ErrMalformed, "ALT", "empty ALT column; write \".\" when there is no alternate allele")
+	}
+
+	// Columns after INFO: FORMAT and the samples.
+	var format, samp []byte
+	hasSamples := false
+	if found {
+		format, samp, hasSamples = cut(rest)
+	}
+	if p.nFile == 0 {
+		if hasSamples {
+			return p.errf(lineNo, ErrSampleCount, "FORMAT", "the header names no samples but this line has %d sample columns", bytes.Count(samp, []byte{'\t'})+1)
+		}
+	} else if !hasSamples {
+		return p.errf(lineNo, ErrSampleCount, "FORMAT", "expected FORMAT and %d sample columns after INFO, found none", p.nFile)
+	}
+
+	id := p.chromID(chrom)
+	p.track(id, pos, lineNo)
+
+	reason := SkipReason(-1)
+	switch {
+	case p.regions != nil && !p.regions.overlaps(string(chrom), pos, pos+int64(len(ref))-1):
+		reason = SkipOutsideRegion
+	case bytes.IndexByte(alt, ',') >= 0:
+		if n := bytes.Count(alt, []byte{','}) + 2; n > p.opt.Limits.MaxAlleles {
+			return p.errf(lineNo, ErrLimit, "ALT", "%d alleles, more than the limit of %d; raise --max-alleles if the file is genuine", n, p.opt.Limits.MaxAlleles)
+		}
+		reason = SkipMultiallelic
+	case isSymbolic(alt):
+		reason = SkipSymbolic
+	case len(ref) != 1 || len(alt) != 1 || !isACGT[ref[0]] || !isACGT[alt[0]]:
+		reason = SkipIndel
+	case !p.opt.IncludeFiltered && !(len(filter) == 1 && filter[0] == '.') && string(filter) != "PASS":
+		reason = SkipFiltered
+	case p.nFile == 0:
+		reason = SkipNoGT
+	}
+	if reason < 0 {
+		p.parseFormat(format)
+		if p.gtIdx < 0 {
+			reason = SkipNoGT
+		}
+	}
+	if reason >= 0 {
+		if p.nFile > 0 {
+			if n := bytes.Count(samp, []byte{'\t'}) + 1; n != p.nFile {
+				return p.errf(lineNo, ErrSampleCount, "samples", "expected %d sample columns as in the #CHROM line, found %d", p.nFile, n)
+			}
+		}
+		b.Skipped[reason]++
+		return nil
+	}
+
+	// Kept: a biallelic SNP with genotypes.
+	ri := len(b.Records)
+	b.Records = append(b.Records, Record{
+		ChromID: id, Pos: pos, Ref: ref, Alt: alt, ID: f[2], Filter: filter,
+		InfoValue: NaN, Line: lineNo,
+	})
+	if p.opt.InfoKey != "" {
+		b.Records[ri].InfoValue = infoValue(f[7], p.opt.InfoKey)
+	}
+	base := len(b.GT)
+	b.GT = growGeno(b.GT, p.nOut)
+	gt := b.GT[base : base+p.nOut]
+	var pl []uint16
+	wantPL := p.opt.WantPL
+	if wantPL {
+		pbase := len(b.PL)
+		b.PL = growU16(b.PL, 3*p.nOut)
+		pl = b.PL[pbase : pbase+3*p.nOut]
+		has := p.plIdx >= 0 || p.glIdx >= 0
+		b.HasPL = append(b.HasPL, has)
+		if !has {
+			clear(pl)
+			wantPL = false
+		}
+	}
+	if p.gtIdx == 0 && !wantPL && p.opt.MinDP <= 0 && p.opt.MinGQ <= 0 {
+		return p.fastSamples(b, gt, samp, lineNo)
+	}
+	return p.slowSamples(b, gt, pl, wantPL, samp, lineNo)
+}
+
+// fastSamples decodes sample columns whose first FORMAT key is GT and
+// nothing else is needed: "a/b" fields are decoded by table lookup.
+func (p *vcfParser) fastSamples(b *Batch, gt []Geno, samp []byte, lineNo int64) error {
+	n := len(samp)
+	i := 0
+	dest := p.dest
+	for j := 0; j < p.nFile; j++ {
+		if i > n {
+			return p.errf(lineNo, ErrSampleCount, "samples", "expected %d sample columns as in the #CHROM line, found %d", p.nFile, j)
+		}
+		code := slowGT
+		if i+3 <= n && (samp[i+1] == '/' || samp[i+1] == '|') && (i+3 == n || samp[i+3] == '\t' || samp[i+3] == ':') {
+			code = gt3[alleleClass[samp[i]]][alleleClass[samp[i+2]]]
+		}
+		var next int
+		if code != slowGT && (i+3 == n || samp[i+3] == '\t') {
+			next = i + 4
+		} else {
+			k := bytes.IndexByte(samp[i:], '\t')
+			end := n
+			if k >= 0 {
+				end = i + k
+			}
+			next = end + 1
+			if code == slowGT {
+				g := samp[i:end]
+				if c := bytes.IndexByte(g, ':'); c >= 0 {
+					g = g[:c]
+				}
+				var err error
+				code, err = p.parseGT(g, lineNo, j)
+				if err != nil {
+					return err
+				}
+			}
+		}
+		if dest == nil {
+			gt[j] = code
+		} else if o := dest[j]; o >= 0 {
+			gt[o] = code
+		}
+		i = next
+	}
+	if i <= n {
+		return p.errf(lineNo, ErrSampleCount, "samples", "expected %d sample columns as in the #CHROM line, found %d", p.nFile, p.nFile+bytes.Count(samp[i:], []byte{'\t'})+1)
+	}
+	return nil
+}
+
+// slowSamples decodes sample columns with GT anywhere in FORMAT, masking
+// by DP/GQ and decoding PL/GL.
+func (p *vcfParser) slowSamples(b *Batch, gt []Geno, pl []uint16, wantPL bool, samp []byte, lineNo int64) error {
+	n := len(samp)
+	i := 0
+	minDP, minGQ := float64(p.opt.MinDP), float64(p.opt.MinGQ)
+	for j := 0; j < p.nFile; j++ {
+		if i > n {
+			return p.errf(lineNo, ErrSampleCount, "samples", "expected %d sample columns as in the #CHROM line, found %d", p.nFile, j)
+		}
+		end := n
+		if k := bytes.IndexByte(samp[i:], '\t'); k >= 0 {
+			end = i + k
+		}
+		field := samp[i:end]
+		i = end + 1
+		o := j
+		if p.dest != nil {
+			o = int(p.dest[j])
+			if o < 0 {
+				continue
+			}
+		}
+		code, err := p.parseGT(subfield(field, p.gtIdx), lineNo, j)
+		if err != nil {
+			return err
+		}
+		if code != Missing && (minDP > 0 || minGQ > 0) {
+			masked := false
+			if minDP > 0 && p.dpIdx >= 0 {
+				if v, ok := parseNum(subfield(field, p.dpIdx)); ok && v < minDP {
+					masked = true
+				}
+			}
+			if minGQ > 0 && p.gqIdx >= 0 {
+				if v, ok := parseNum(subfield(field, p.gqIdx)); ok && v < minGQ {
+					masked = true
+				}
+			}
+			if masked {
+				code = Missing
+				b.Masked++
+			}
+		}
+		gt[o] = code
+		if wantPL {
+			dst := pl[3*o : 3*o+3]
+			if p.plIdx >= 0 {
+				decodeLikelihoods(dst, subfield(field, p.plIdx), false)
+			} else {
+				decodeLikelihoods(dst, subfield(field, p.glIdx), true)
+			}
+		}
+	}
+	if i <= n {
+		return p.errf(lineNo, ErrSampleCount, "samples", "expected %d sample columns as in the #CHROM line, found %d", p.nFile, p.nFile+bytes.Count(samp[i:], []byte{'\t'})+1)
+	}
+	return nil
+}
+
+// parseGT decodes one GT value of a biallelic record (VCF 4.4 section
+// 1.6.2: alleles separated by / or |, "." for a missing allele, an
+// optional leading phasing character). Any missing allele gives Missing;
+// one allele gives a haploid code; more than two gives Missing and a
+// warning.
+func (p *vcfParser) parseGT(s []byte, lineNo int64, col int) (Geno, error) {
+	if len(s) == 0 || (len(s) == 1 && s[0] == '.') {
+		return Missing, nil
+	}
+	i := 0
+	if s[0] == '/' || s[0] == '|' {
+		i = 1
+	}
+	ploidy, alts, miss := 0, 0, 0
+	for {
+		if i >= len(s) {
+			return 0, p.gtErr(s, lineNo, col, "an allele is missing after a separator")
+		}
+		if s[i] == '.' {
+			miss++
+			i++
+		} else {
+			start := i
+			idx := 0
+			for i < len(s) && s[i] >= '0' && s[i] <= '9' {
+				if idx < 1<<20 {
+					idx = idx*10 + int(s[i]-'0')
+				}
+				i++
+			}
+			if i == start {
+				return 0, p.gtErr(s, lineNo, col, "expected an allele number or '.'")
+			}
+			if idx > 1 {
+				return 0, p.gtErr(s, lineNo, col, fmt.Sprintf("allele %d is used but ALT lists only 1 allele", idx))
+			}
+			alts += idx
+		}
+		ploidy++
+		if i == len(s) {
+			break
+		}
+		if s[i] != '/' && s[i] != '|' {
+			return 0, p.gtErr(s, lineNo, col, "expected '/' or '|' between alleles")
+		}
+		i++
+	}
+	switch {
+	case ploidy == 1:
+		p.st.addWarn(warnHaploid, lineNo, 1)
+		switch {
+		case miss > 0:
+			return Missing, nil
+		case alts > 0:
+			return HaploidAlt, nil
+		}
+		return HaploidRef, nil
+	case ploidy > 2:
+		p.st.addWarn(warnPolyploid, lineNo, 1)
+		return Missing, nil
+	case miss > 0:
+		return Missing, nil
+	}
+	return Geno(alts), nil
+}
+
+func (p *vcfParser) gtErr(s []byte, lineNo int64, col int, msg string) error {
+	name := ""
+	if col < len(p.samples) {
+		name = p.samples[col]
+	}
+	return p.errf(lineNo, ErrMalformed, "GT", "sample %q: genotype %q: %s", name, clip(s), msg)
+}
+
+// parseFormat finds the keys of interest in FORMAT, reusing the previous
+// result when FORMAT did not change.
+func (p *vcfParser) parseFormat(format []byte) {
+	if p.fmtValid && bytes.Equal(format, p.fmtBuf) {
+		return
+	}
+	p.fmtBuf = append(p.fmtBuf[:0], format...)
+	p.fmtValid = true
+	p.gtIdx, p.dpIdx, p.gqIdx, p.plIdx, p.glIdx = -1, -1, -1, -1, -1
+	k := 0
+	for len(format) > 0 {
+		key := format
+		if c := bytes.IndexByte(format, ':'); c >= 0 {
+			key, format = format[:c], format[c+1:]
+		} else {
+			format = nil
+		}
+		switch string(key) {
+		case "GT":
+			p.gtIdx = k
+		case "DP":
+			p.dpIdx = k
+		case "GQ":
+			p.gqIdx = k
+		case "PL":
+			p.plIdx = k
+		case "GL":
+			p.glIdx = k
+		}
+		k++
+	}
+}
+
+// subfield returns the k-th ':'-separated value of a sample field, or nil
+// when the field has fewer values (trailing values may be dropped, VCF
+// 4.4 section 1.6.2).
+func subfield(field []byte, k int) []byte {
+	for ; k > 0; k-- {
+		c := bytes.IndexByte(field, ':')
+		if c < 0 {
+			return nil
+		}
+		field = field[c+1:]
+	}
+	if c := bytes.IndexByte(field, ':'); c >= 0 {
+		return field[:c]
+	}
+	return field
+}
+
+// decodeLikelihoods fills dst (0/0, 0/1, 1/1) from a PL value, or from GL
+// (log10 likelihoods) converted to phred as round(-10*GL). A haploid list
+// of two values is stored as (R, 65535, A). Absent values give zeros.
+func decodeLikelihoods(dst []uint16, s []byte, gl bool) {
+	dst[0], dst[1], dst[2] = 0, 0, 0
+	if len(s) == 0 || (len(s) == 1 && s[0] == '.') {
+		return
+	}
+	var v [3]uint16
+	k := 0
+	for len(s) > 0 && k < 3 {
+		item := s
+		if c := bytes.IndexByte(s, ','); c >= 0 {
+			item, s = s[:c], s[c+1:]
+		} else {
+			s = nil
+		}
+		x, ok := parseNum(item)
+		if !ok {
+			return
+		}
+		if gl {
+			x = math.Round(-10 * x)
+		}
+		v[k] = clampU16(x)
+		k++
+	}
+	switch {
+	case k == 3 && len(s) == 0:
+		dst[0], dst[1], dst[2] = v[0], v[1], v[2]
+	case k == 2:
+		dst[0], dst[1], dst[2] = v[0], math.MaxUint16, v[1]
+	}
+}
+
+func clampU16(x float64) uint16 {
+	switch {
+	case x <= 0 || x != x:
+		return 0
+	case x >= math.MaxUint16:
+		return math.MaxUint16
+	}
+	return uint16(x)
+}
+
+// parseNum parses a decimal number without allocating; ok is false for
+// "." and anything that is not a number.
+func parseNum(s []byte) (float64, bool) {
+	if len(s) == 0 || len(s) > 64 || (len(s) == 1 && s[0] == '.') {
+		return 0, false
+	}
+	// Fast path: optional '-', digits, optional '.digits'.
+	i, neg := 0, false
+	if s[0] == '-' {
+		neg, i = true, 1
+	}
+	var v float64
+	digits := 0
+	for ; i < len(s) && s[i] >= '0' && s[i] <= '9'; i++ {
+		v = v*10 + float64(s[i]-'0')
+		digits++
+	}
+	if i < len(s) && s[i] == '.' {
+		i++
+		scale := 0.1
+		for ; i < len(s) && s[i] >= '0' && s[i] <= '9'; i++ {
+			v += float64(s[i]-'0') * scale
+			scale /= 10
+			digits++
+		}
+	}
+	if i == len(s) && digits > 0 && len(s) < 16 {
+		if neg {
+			v = -v
+		}
+		return v, true
+	}
+	x, err := strconv.ParseFloat(unsafe.String(&s[0], len(s)), 64)
+	if err != nil {
+		return 0, false
+	}
+	return x, true
+}
+
+// parsePos parses POS.
+func parsePos(s []byte) (int64, bool) {
+	if len(s) == 0 || len(s) > 18 {
+		return 0, false
+	}
+	var v int64
+	for _, c := range s {
+		if c < '0' || c > '9' {
+			return 0, false
+		}
+		v = v*10 + int64(c-'0')
+	}
+	return v, true
+}
+
+// isSymbolic reports ALT values that are not bases: "<...>", breakends,
+// "*", "." and single breakends like ".A" or "A.".
+func isSymbolic(alt []byte) bool {
+	return alt[0] == '<' || alt[0] == '.' || alt[0] == '*' || alt[len(alt)-1] == '.' ||
+		bytes.IndexByte(alt, '[') >= 0 || bytes.IndexByte(alt, ']') >= 0
+}
+
+// infoValue returns the first value of key in an INFO column as float, 1
+// for a flag, NaN when absent or not numeric.
+func infoValue(info []byte, key string) float64 {
+	for len(info) > 0 {
+		item := info
+		if c := bytes.IndexByte(info, ';'); c >= 0 {
+			item, info = info[:c], info[c+1:]
+		} else {
+			info = nil
+		}
+		if len(item) < len(key) || string(item[:len(key)]) != key {
+			continue
+		}
+		if len(item) == len(key) {
+			return 1
+		}
+		if item[len(key)] != '=' {
+			continue
+		}
+		v := item[len(key)+1:]
+		if c := bytes.IndexByte(v, ','); c >= 0 {
+			v = v[:c]
+		}
+		if x, ok := parseNum(v); ok {
+			return x
+		}
+		return NaN
+	}
+	return NaN
+}
+
+// chromID returns the contig id of name, or a negative chunk-local id for
+// a name the header does not declare.
+func (p *vcfParser) chromID(name []byte) int {
+	if id, ok := p.contigs[string(name)]; ok {
+		return id
+	}
+	st := p.st
+	for k, n := range st.newChroms {
+		if bytes.Equal(n, name) {
+			return -(k + 1)
+		}
+	}
+	st.newChroms = append(st.newChroms, name)
+	return -len(st.newChroms)
+}
+
+// track extends the chromosome blocks of the chunk and notes the first
+// position that goes backwards within a block.
+func (p *vcfParser) track(id int, pos, lineNo int64) {
+	st := p.st
+	if nb := len(st.blocks); nb > 0 && st.blocks[nb-1].id == id {
+		blk := &st.blocks[nb-1]
+		if pos < blk.lastPos && st.unsorted == nil {
+			st.unsortedV = unsortedAt{line: lineNo, chrom: id, prev: blk.lastPos, pos: pos, prevLineRel: blk.lastLine}
+			st.unsorted = &st.unsortedV
+		}
+		blk.lastPos, blk.lastLine = pos, lineNo
+		return
+	}
+	st.blocks = append(st.blocks, chromBlock{id: id, firstPos: pos, lastPos: pos, firstLine: lineNo, lastLine: lineNo})
+}
+
+func growGeno(s []Geno, n int) []Geno {
+	need := len(s) + n
+	if need > cap(s) {
+		t := make([]Geno, len(s), max(need, 2*cap(s)))
+		copy(t, s)
+		s = t
+	}
+	return s[:need]
+}
+
+func growU16(s []uint16, n int) []uint16 {
+	need := len(s) + n
+	if need > cap(s) {
+		t := make([]uint16, len(s), max(need, 2*cap(s)))
+		copy(t, s)
+		s = t
+	}
+	return s[:need]
+}
