@@ -160,44 +160,17 @@ func (t *Totals) WritePairwise(w io.Writer) error {
 	return bw.Flush()
 }
 
-// Summary returns the run.json sections produced here: "sites" (HWE
-// summary), "populations" (nil without populations) and "frequencies".
+// HasPopulations reports whether populations were given.
+func (t *Totals) HasPopulations() bool { return t.PopOf != nil }
+
+// Summary returns the run.json "sites" section: HWE tests ("tested",
+// "hwe_method", counts "hwe_p_below_1e3/1e6/1e10"), the genomic inflation
+// "lambda" of the HWE chi-square statistics, "mean_f_site", "qq" points
+// [expected, observed] of -log10 p, and "frequencies" (where the
+// estimators' allele frequencies came from, with the counts of sites
+// without one).
 func (t *Totals) Summary() map[string]any {
 	h := &t.HWE
-	sites := map[string]any{
-		"hwe_method":       t.HWEMethod,
-		"tested":           h.Tested,
-		"hwe_p_below_1e3":  h.Below[0],
-		"hwe_p_below_1e6":  h.Below[1],
-		"hwe_p_below_1e10": h.Below[2],
-		"lambda":           jsonFloat(t.lambda()),
-		"mean_f_site":      jsonFloat(ratio(h.FSite.Float64(), float64(h.FSiteN))),
-		"qq":               t.qq(defaultQQPoint),
-	}
-	out := map[string]any{"sites": sites}
-	if t.PopOf != nil {
-		all := func(b *BlockAcc) *WCSums { return &b.All }
-		fst, fstSE, g, n := t.wcJackknife(all, (*WCSums).theta)
-		fis, fisSE, _, _ := t.wcJackknife(all, (*WCSums).fis)
-		fit, fitSE, _, _ := t.wcJackknife(all, (*WCSums).fit)
-		ns := t.popSampleCounts()
-		per := map[string]any{}
-		for i, name := range t.PopNames {
-			per[name] = ns[i]
-		}
-		unassigned := int64(len(t.PopOf)) - ns[len(t.PopNames)]
-		out["populations"] = map[string]any{
-			"names":              t.PopNames,
-			"n_samples":          per,
-			"samples_unassigned": unassigned,
-			"f_st":               jsonFloat(fst), "f_st_se": jsonFloat(fstSE),
-			"f_is": jsonFloat(fis), "f_is_se": jsonFloat(fisSE),
-			"f_it": jsonFloat(fit), "f_it_se": jsonFloat(fitSE),
-			"sites_used":         n,
-			"jackknife_blocks":   g,
-			"jackknife_block_bp": t.JackknifeBlockBP,
-		}
-	}
 	fr := map[string]any{"source": t.Freqs.String()}
 	switch t.Freqs {
 	case FreqInfo:
@@ -212,8 +185,47 @@ func (t *Totals) Summary() map[string]any {
 		fr["data_sites_absent_from_panel"] = t.Freq.PanelAbsent
 		fr["data_sites_allele_mismatch"] = t.Freq.PanelMismatch
 	}
-	out["frequencies"] = fr
-	return out
+	return map[string]any{
+		"hwe_method":       t.HWEMethod,
+		"tested":           h.Tested,
+		"hwe_p_below_1e3":  h.Below[0],
+		"hwe_p_below_1e6":  h.Below[1],
+		"hwe_p_below_1e10": h.Below[2],
+		"lambda":           jsonFloat(t.lambda()),
+		"mean_f_site":      jsonFloat(ratio(h.FSite.Float64(), float64(h.FSiteN))),
+		"qq":               t.qq(defaultQQPoint),
+		"frequencies":      fr,
+	}
+}
+
+// PopulationSummary returns the run.json "populations" section (nil
+// without populations): names, samples per population, unassigned
+// samples, and the genome-wide Weir & Cockerham f_st, f_is, f_it with
+// their block jackknife SEs, sites used and blocks.
+func (t *Totals) PopulationSummary() map[string]any {
+	if t.PopOf == nil {
+		return nil
+	}
+	all := func(b *BlockAcc) *WCSums { return &b.All }
+	fst, fstSE, g, n := t.wcJackknife(all, (*WCSums).theta)
+	fis, fisSE, _, _ := t.wcJackknife(all, (*WCSums).fis)
+	fit, fitSE, _, _ := t.wcJackknife(all, (*WCSums).fit)
+	ns := t.popSampleCounts()
+	per := map[string]any{}
+	for i, name := range t.PopNames {
+		per[name] = ns[i]
+	}
+	return map[string]any{
+		"names":              t.PopNames,
+		"n_samples":          per,
+		"samples_unassigned": int64(len(t.PopOf)) - ns[len(t.PopNames)],
+		"f_st":               jsonFloat(fst), "f_st_se": jsonFloat(fstSE),
+		"f_is": jsonFloat(fis), "f_is_se": jsonFloat(fisSE),
+		"f_it": jsonFloat(fit), "f_it_se": jsonFloat(fitSE),
+		"sites_used":         n,
+		"jackknife_blocks":   g,
+		"jackknife_block_bp": t.JackknifeBlockBP,
+	}
 }
 
 func popcount(x uint64) int {

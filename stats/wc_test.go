@@ -116,7 +116,7 @@ func TestIslandModel(t *testing.T) {
 		}
 		cfg := &Config{Samples: names, PopOf: popOf, PopNames: pops, Freqs: FreqPopulation, JackknifeBlockBP: 20_000, MinCallRate: 0.9}
 		tot, _ := runCalls(t, cfg, calls, nil)
-		s := tot.Summary()["populations"].(map[string]any)
+		s := tot.PopulationSummary()
 		fst, se, fis := s["f_st"].(float64), s["f_st_se"].(float64), s["f_is"].(float64)
 		want := 1 / (1 + 4*N*m)
 		wantFinite := 1 / (1 + 4*N*m*math.Pow(float64(d)/float64(d-1), 2))

@@ -131,7 +131,7 @@ func outputs(t *testing.T, tot *Totals) string {
 			t.Fatal(err)
 		}
 	}
-	j, err := json.Marshal(tot.Summary())
+	j, err := json.Marshal([]any{tot.Summary(), tot.PopulationSummary()})
 	if err != nil {
 		t.Fatal(err)
 	}
