@@ -366,7 +366,7 @@ func (c *Collector) detect(sc *hmmScratch, j job) {
 			transitions(sc.tr, ch.cm, f, a)
 			tr = sc.tr
 		}
-		sc.forward(tr)
+		sc.forward(tr, false)
 		sc.backward(tr, ch.cm, nil)
 		sc.viterbi(tr)
 		j.w.perSample[s] = hmmRuns(ch, s, sc.code, sc.path, sc.post, maxGap)

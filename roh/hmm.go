@@ -86,14 +86,13 @@ var plLinear = func() (t [256]float64) {
 }()
 
 // hmmScratch holds one worker's per-site buffers, reused across samples
-// and chromosomes: 2 emissions, 2 forward values, 1 scale factor, 1 path
-// byte and 1 genotype byte per site (41 bytes per site), plus the
+// and chromosomes: 2 emissions, 2 forward values, 1 posterior, 1 path
+// byte and 1 genotype byte per site (42 bytes per site), plus the
 // per-sample transitions when fitting (32 bytes per site).
 type hmmScratch struct {
 	code  []uint8
 	em    []float64
 	alpha []float64
-	scale []float64
 	path  []uint8
 	post  []float64
 	tr    []float64
@@ -133,32 +132,47 @@ func (w *hmmScratch) fillEmissions(ch *chromData, s int) {
 	}
 }
 
-// forward runs the scaled forward pass and returns the log-likelihood.
-func (w *hmmScratch) forward(tr []float64) float64 {
+// rescaleEvery is how often (in sites) the forward, backward and Viterbi
+// values are renormalised. Between renormalisations the values shrink by
+// at most the product of the smallest emissions (at least 1e-12 each for a
+// genotype error above 2e-12), far from float64 underflow; renormalising
+// every site would put a division on the critical path of every step.
+const rescaleEvery = 8
+
+// forward runs the forward pass, storing per site the forward values
+// (scaled by an arbitrary positive factor per site) in w.alpha. It returns
+// the log-likelihood when wantLL is set (else 0).
+func (w *hmmScratch) forward(tr []float64, wantLL bool) float64 {
 	n := len(w.em) / 2
 	w.alpha = grow(w.alpha, 2*n)
-	w.scale = grow(w.scale, n)
-	em, al, sc := w.em, w.alpha, w.scale
+	em, al := w.em, w.alpha
 	a := tr[0] * em[0]
 	b := tr[1] * em[1]
-	c := a + b
-	al[0], al[1], sc[0] = a/c, b/c, c
-	ll := math.Log(c)
+	al[0], al[1] = a, b
+	ll := 0.0
 	for t := 1; t < n; t++ {
 		k := tr[4*t : 4*t+4 : 4*t+4]
-		pa, pn := al[2*t-2], al[2*t-1]
-		a = (pa*k[0] + pn*k[2]) * em[2*t]
-		b = (pa*k[1] + pn*k[3]) * em[2*t+1]
-		c = a + b
-		inv := 1 / c
-		al[2*t], al[2*t+1], sc[t] = a*inv, b*inv, c
-		ll += math.Log(c)
+		e := em[2*t : 2*t+2 : 2*t+2]
+		a, b = (a*k[0]+b*k[2])*e[0], (a*k[1]+b*k[3])*e[1]
+		if t%rescaleEvery == 0 {
+			c := a + b
+			inv := 1 / c
+			a, b = a*inv, b*inv
+			if wantLL {
+				ll += math.Log(c)
+			}
+		}
+		al[2*t], al[2*t+1] = a, b
+	}
+	if wantLL {
+		ll += math.Log(a + b)
 	}
 	return ll
 }
 
 // viterbi writes the most probable state path (stA or stN per site) into
-// w.path, in scaled linear space.
+// w.path, in linear space with periodic renormalisation. Ties go to the
+// non-autozygous state.
 func (w *hmmScratch) viterbi(tr []float64) {
 	n := len(w.em) / 2
 	w.path = grow(w.path, n)
@@ -168,33 +182,28 @@ func (w *hmmScratch) viterbi(tr []float64) {
 	bp[0] = 0
 	for t := 1; t < n; t++ {
 		k := tr[4*t : 4*t+4 : 4*t+4]
-		var b uint8
-		// into A
+		e := em[2*t : 2*t+2 : 2*t+2]
+		// into A and into N, branch-free: the comparisons are
+		// unpredictable, so max and flag-setting beat branches.
 		xa, xn := va*k[0], vn*k[2]
-		na := xa
-		if xn > xa {
-			na = xn
-			b |= 1 // A came from N
-		}
-		// into N
 		ya, yn := va*k[1], vn*k[3]
-		nn := yn
+		na, nn := max(xa, xn), max(ya, yn)
+		var b uint8
+		if xn >= xa {
+			b = 1 // A came from N
+		}
 		if ya > yn {
-			nn = ya
 			b |= 2 // N came from A
 		}
-		na *= em[2*t]
-		nn *= em[2*t+1]
-		m := na
-		if nn > m {
-			m = nn
+		va, vn = na*e[0], nn*e[1]
+		if t%rescaleEvery == 0 {
+			inv := 1 / max(va, vn)
+			va, vn = va*inv, vn*inv
 		}
-		inv := 1 / m
-		va, vn = na*inv, nn*inv
 		bp[t] = b
 	}
 	st := uint8(stA)
-	if vn > va {
+	if vn >= va {
 		st = stN
 	}
 	for t := n - 1; t >= 0; t-- {
@@ -216,33 +225,36 @@ type emStats struct {
 	switchAN, switches float64 // expected A->N and all switches
 }
 
-// backward runs the scaled backward pass after forward, writing the
-// posterior probability of the autozygous state per site into w.post and,
-// when st is not nil, accumulating EM statistics over intervals of cm.
+// backward runs the backward pass after forward, writing the posterior
+// probability of the autozygous state per site into w.post and, when st
+// is not nil, accumulating EM statistics over intervals of cm.
 func (w *hmmScratch) backward(tr []float64, cm []float64, st *emStats) {
 	n := len(w.em) / 2
 	w.post = grow(w.post, n)
-	em, al, sc, post := w.em, w.alpha, w.scale, w.post
+	em, al, post := w.em, w.alpha, w.post
 	ba, bn := 1.0, 1.0
-	post[n-1] = al[2*n-2]
+	post[n-1] = al[2*n-2] / (al[2*n-2] + al[2*n-1])
 	for t := n - 1; t >= 1; t-- {
 		k := tr[4*t : 4*t+4 : 4*t+4]
-		inv := 1 / sc[t]
-		ea, en := em[2*t]*ba*inv, em[2*t+1]*bn*inv
+		ea, en := em[2*t]*ba, em[2*t+1]*bn
 		pa, pn := al[2*t-2], al[2*t-1]
 		if st != nil {
 			xaa, xan := pa*k[0]*ea, pa*k[1]*en
 			xna, xnn := pn*k[2]*ea, pn*k[3]*en
+			z := 1 / (xaa + xan + xna + xnn)
+			xaa, xan, xna, xnn = xaa*z, xan*z, xna*z, xnn*z
 			d := (cm[t] - cm[t-1]) / 100
 			st.timeA += d * (xaa + 0.5*(xan+xna))
 			st.timeN += d * (xnn + 0.5*(xan+xna))
 			st.switchAN += xan
 			st.switches += xan + xna
 		}
-		ba = k[0]*ea + k[1]*en
-		bn = k[2]*ea + k[3]*en
-		p := pa * ba
-		q := pn * bn
+		ba, bn = k[0]*ea+k[1]*en, k[2]*ea+k[3]*en
+		if t%rescaleEvery == 0 {
+			inv := 1 / (ba + bn)
+			ba, bn = ba*inv, bn*inv
+		}
+		p, q := pa*ba, pn*bn
 		post[t-1] = p / (p + q)
 	}
 }
@@ -260,7 +272,7 @@ func (w *hmmScratch) fitSample(cm []float64, f0, a0 float64, iters int) (float64
 	prev := math.Inf(-1)
 	for it := 0; it < iters; it++ {
 		transitions(w.tr, cm, f, a)
-		ll := w.forward(w.tr)
+		ll := w.forward(w.tr, true)
 		var st emStats
 		w.backward(w.tr, cm, &st)
 		tot := st.timeA + st.timeN

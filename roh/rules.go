@@ -23,6 +23,14 @@ func rulesRuns(ch *chromData, s int, code []uint8, r *Rules, maxGap int64) []Run
 	n := len(code)
 	hom := func(t int) bool { return code[t] == 0 || code[t] == 2 }
 	var cands candHeap
+	minBP := r.MinKB * 1000
+	// ok applies the length, count and density thresholds; a window that
+	// fails them has no part that passes, so it is never queued.
+	ok := func(a, b int) bool {
+		bp := float64(ch.pos[b] - ch.pos[a] + 1)
+		ns := b - a + 1
+		return bp >= minBP && ns >= r.MinSites && bp/1000/float64(ns) <= r.MaxKBPerSite
+	}
 	// segments between large gaps
 	lo := 0
 	for lo < n {
@@ -57,7 +65,9 @@ func rulesRuns(ch *chromData, s int, code []uint8, r *Rules, maxGap int64) []Run
 					e--
 				}
 				if e >= l && e > lastEnd {
-					cands = append(cands, cand{ch.pos[e] - ch.pos[l] + 1, l, e})
+					if ok(l, e) {
+						cands = append(cands, cand{ch.pos[e] - ch.pos[l] + 1, l, e})
+					}
 					lastEnd = e
 				}
 			}
@@ -74,17 +84,8 @@ func rulesRuns(ch *chromData, s int, code []uint8, r *Rules, maxGap int64) []Run
 	}
 	heap.Init(&cands)
 	var acc [][2]int // accepted, sorted by start index
-	minBP := r.MinKB * 1000
-	ok := func(a, b int) bool {
-		bp := float64(ch.pos[b] - ch.pos[a] + 1)
-		ns := b - a + 1
-		return bp >= minBP && ns >= r.MinSites && bp/1000/float64(ns) <= r.MaxKBPerSite
-	}
 	for cands.Len() > 0 {
 		c := heap.Pop(&cands).(cand)
-		if !ok(c.a, c.b) {
-			continue
-		}
 		// first accepted run ending at or after c.a
 		i := sort.Search(len(acc), func(i int) bool { return acc[i][1] >= c.a })
 		if i == len(acc) || acc[i][0] > c.b {
@@ -97,12 +98,12 @@ func rulesRuns(ch *chromData, s int, code []uint8, r *Rules, maxGap int64) []Run
 		a := c.a
 		for k := i; k < len(acc) && acc[k][0] <= c.b; k++ {
 			if acc[k][0]-1 >= a {
-				pushTrimmed(&cands, ch, code, a, acc[k][0]-1)
+				pushTrimmed(&cands, ch, code, a, acc[k][0]-1, ok)
 			}
 			a = acc[k][1] + 1
 		}
 		if a <= c.b {
-			pushTrimmed(&cands, ch, code, a, c.b)
+			pushTrimmed(&cands, ch, code, a, c.b, ok)
 		}
 	}
 	runs := make([]Run, 0, len(acc))
@@ -122,14 +123,14 @@ func rulesRuns(ch *chromData, s int, code []uint8, r *Rules, maxGap int64) []Run
 	return runs
 }
 
-func pushTrimmed(h *candHeap, ch *chromData, code []uint8, a, b int) {
+func pushTrimmed(h *candHeap, ch *chromData, code []uint8, a, b int, ok func(a, b int) bool) {
 	for a <= b && code[a] != 0 && code[a] != 2 {
 		a++
 	}
 	for b >= a && code[b] != 0 && code[b] != 2 {
 		b--
 	}
-	if a <= b {
+	if a <= b && ok(a, b) {
 		heap.Push(h, cand{ch.pos[b] - ch.pos[a] + 1, a, b})
 	}
 }

@@ -1,0 +1,99 @@
+package roh_test
+
+import (
+	"fmt"
+	"os"
+	"strings"
+
+	"fgauge/roh"
+	"fgauge/vcfscan"
+)
+
+// A made-up calf typed at 400 sites, one every 25 kb on chromosome 1,
+// homozygous from 2 Mb to 7 Mb and cycling 0/0, 0/1, 1/1 outside. The two
+// homozygous calls just before 2 Mb (1.95 and 1.975 Mb) are part of the
+// stretch as far as any detector can tell, and the rule-based detector
+// tolerates one heterozygous call (at 1.925 Mb), reaching 1.875 Mb.
+func calfBatch() (*vcfscan.Batch, []float64) {
+	b := &vcfscan.Batch{NSamples: 1}
+	var freqs []float64
+	for i := 0; i < 400; i++ {
+		pos := int64(i+1) * 25_000
+		g := vcfscan.Geno(i % 3) // 0/0, 0/1, 1/1, ...
+		if pos >= 2_000_000 && pos < 7_000_000 {
+			g = vcfscan.Geno(2 * (i % 2))
+		}
+		b.Records = append(b.Records, vcfscan.Record{ChromID: 0, Pos: pos})
+		b.GT = append(b.GT, g)
+		freqs = append(freqs, 0.5)
+	}
+	return b, freqs
+}
+
+func ExampleNewCollector() {
+	cfg := roh.DefaultConfig() // HMM detector
+	c, err := roh.NewCollector(cfg, []string{"calf_07"}, []vcfscan.Contig{{Name: "1", Length: 10_000_000}})
+	if err != nil {
+		panic(err)
+	}
+	b, freqs := calfBatch()
+	if err := c.AddBatch(b, freqs); err != nil {
+		panic(err)
+	}
+	res, err := c.Finish()
+	if err != nil {
+		panic(err)
+	}
+	for _, run := range res.Chroms[0].Runs {
+		fmt.Println(run.Start, run.End, run.NHet)
+	}
+	// Output:
+	// 1950000 7000000 0
+}
+
+func ExampleResult_SampleTable() {
+	c, _ := roh.NewCollector(roh.DefaultConfig(), []string{"calf_07"}, []vcfscan.Contig{{Name: "1", Length: 10_000_000}})
+	b, freqs := calfBatch()
+	c.AddBatch(b, freqs)
+	res, _ := c.Finish()
+	h, rows := res.SampleTable()
+	fmt.Println(strings.Join(h, "\t"))
+	fmt.Println(strings.Join(rows[0], "\t"))
+	// Output:
+	// n_runs	roh_total_bp	f_roh	f_roh_gt_1mb	f_roh_gt_2mb	f_roh_gt_4mb	f_roh_gt_8mb	f_roh_gt_16mb
+	// 1	5050001	0.5050001	0.5050001	0.5050001	0.5050001	0	0
+}
+
+func ExampleResult_WriteRuns() {
+	cfg := roh.DefaultConfig()
+	cfg.Method = roh.MethodRules
+	c, _ := roh.NewCollector(cfg, []string{"calf_07"}, []vcfscan.Contig{{Name: "1", Length: 10_000_000}})
+	b, freqs := calfBatch()
+	c.AddBatch(b, freqs)
+	res, _ := c.Finish()
+	res.WriteRuns(os.Stdout)
+	// Output:
+	// sample	chrom	start	end	length_bp	length_cm	n_sites	n_het	n_missing	quality	generations_back
+	// calf_07	1	1875000	7000000	5125001	5.125	206	1	0	NA	9.75609756097561
+}
+
+func ExampleReadGeneticMap() {
+	m, err := roh.ReadGeneticMap(strings.NewReader("chrom pos cm\n1 1000000 1.0\n1 3000000 5.0\n"), "map.txt")
+	if err != nil {
+		panic(err)
+	}
+	fmt.Println(m.Chroms["1"].At(2_000_000, 1.0))
+	// Output:
+	// 3
+}
+
+func ExampleResult_Summary() {
+	c, _ := roh.NewCollector(roh.DefaultConfig(), []string{"calf_07"}, []vcfscan.Contig{{Name: "1", Length: 10_000_000}})
+	b, freqs := calfBatch()
+	c.AddBatch(b, freqs)
+	res, _ := c.Finish()
+	s := res.Summary()
+	fmt.Println(s["method"], s["covered_bp"], s["covered_source"], s["autosomes_used"])
+	// Output:
+	// hmm 10000000 contig_lengths [1]
+}
