@@ -2,6 +2,7 @@ package htmlreport
 
 import (
 	"fmt"
+	"image/color"
 	"math"
 	"sort"
 
@@ -14,7 +15,8 @@ import (
 // cohort is the per-sample view of the tables used by all figures.
 type cohort struct {
 	d         *data
-	names     []string
+	raw       []string // sample names as in samples.tsv (keys into runs)
+	names     []string // the same, control characters made visible
 	pops      []string // nil without a population column
 	cols      map[string][]float64
 	ests      []string // estimator columns present, f_roh first when present
@@ -28,15 +30,17 @@ func newCohort(d *data, highlight []string) *cohort {
 	c := &cohort{d: d, cols: map[string][]float64{}, classes: parseClasses(t.header), highlight: map[int]bool{}}
 	n := len(t.rows)
 	c.names = make([]string, n)
+	c.raw = make([]string, n)
 	c.flags = make([][]string, n)
 	for r := range t.rows {
-		c.names[r] = t.str(r, "sample")
+		c.raw[r] = t.str(r, "sample")
+		c.names[r] = visible(c.raw[r])
 		c.flags[r] = splitFlags(t.str(r, "flags"))
 	}
 	if t.has("population") {
 		c.pops = make([]string, n)
 		for r := range t.rows {
-			c.pops[r] = t.str(r, "population")
+			c.pops[r] = visible(t.str(r, "population"))
 		}
 	}
 	for _, h := range t.header {
@@ -58,7 +62,7 @@ func newCohort(d *data, highlight []string) *cohort {
 	for _, h := range highlight {
 		want[h] = true
 	}
-	for r, nm := range c.names {
+	for r, nm := range c.raw {
 		if want[nm] {
 			c.highlight[r] = true
 		}
@@ -282,15 +286,15 @@ func (c *cohort) layout() genomeLayout {
 		ext[name] = math.Max(ext[name], end)
 	}
 	for _, k := range c.d.sites.contigs {
-		add(k.name, float64(k.maxPos)/1e6)
+		add(visible(k.name), float64(k.maxPos)/1e6)
 	}
 	hasRuns := map[string]bool{}
-	names := append([]string(nil), c.names...)
+	names := append([]string(nil), c.raw...)
 	sort.Strings(names)
 	for _, nm := range names {
 		for _, r := range c.d.runs[nm] {
-			add(r.chrom, float64(r.end)/1e6)
-			hasRuns[r.chrom] = true
+			add(visible(r.chrom), float64(r.end)/1e6)
+			hasRuns[visible(r.chrom)] = true
 		}
 	}
 	if used := c.d.info.ROH.AutosomesUsed; len(used) > 0 {
@@ -395,15 +399,15 @@ func (c *cohort) figPainting() (figure, error) {
 	for j := len(idx) - 1; j >= 0; j-- {
 		i := idx[j]
 		row := paintRow{label: clip(c.names[i], 20), bands: bandsBG}
-		for _, r := range c.d.runs[c.names[i]] {
-			off, ok := g.offset[r.chrom]
+		for _, r := range c.d.runs[c.raw[i]] {
+			off, ok := g.offset[visible(r.chrom)]
 			if !ok {
 				continue
 			}
 			row.segs = append(row.segs, span{start: off + float64(r.start)/1e6, end: off + float64(r.end)/1e6, class: c.classOf(r.lengthBP)})
 			f.Points++
 		}
-		f.Total += len(c.d.runs[c.names[i]])
+		f.Total += len(c.d.runs[c.raw[i]])
 		pt.rows = append(pt.rows, row)
 		ylab = append(ylab, row.label)
 	}
@@ -606,7 +610,12 @@ func (c *cohort) figFST() (figure, error) {
 				for i := range lb.TextStyle {
 					lb.TextStyle[i].XAlign = draw.XCenter
 					lb.TextStyle[i].YAlign = draw.YCenter
+					lb.TextStyle[i].Font.Size = fontMark
 					lb.TextStyle[i].Color = colInk
+					xy := l.XYs[i]
+					if m.v[int(xy.Y)*n+int(xy.X)] > hi/2 {
+						lb.TextStyle[i].Color = color.White
+					}
 				}
 				p.Add(lb)
 			}
@@ -614,9 +623,9 @@ func (c *cohort) figFST() (figure, error) {
 	}
 	f.Points, f.Total = n*n, n*n
 	f.Caption = fmt.Sprintf("%d populations; darker cells are more differentiated pairs (scale 0 to %s).", n, fmtG(hi))
-	side := vg.Length(math.Min(14, 4+0.7*float64(n))) * vg.Centimeter
+	side := vg.Length(math.Min(17, 8+0.5*float64(n))) * vg.Centimeter
 	var err error
-	f.SVG, err = renderPlot(p, side, side)
+	f.SVG, err = renderPlot(p, side, side*0.85)
 	return f, err
 }
 
@@ -683,6 +692,6 @@ func (c *cohort) figQuality() (figure, error) {
 		f.Note = fmt.Sprintf("%d of %d samples drawn: every flagged sample (up to %d) and an even subsample of the rest.", f.Points, f.Total, maxScatterPoints)
 	}
 	var err error
-	f.SVG, err = renderPlot(p, plotW*0.75, plotH)
+	f.SVG, err = renderPlot(p, plotW, plotH)
 	return f, err
 }

@@ -6,6 +6,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"unicode"
 )
 
 // estimatorCols lists the per-sample F columns the report knows, in the
@@ -223,26 +224,56 @@ func splitFlags(s string) []string {
 	var out []string
 	for _, w := range strings.Split(s, ",") {
 		if w = strings.TrimSpace(w); w != "" {
-			out = append(out, w)
+			out = append(out, visible(w))
 		}
 	}
 	return out
 }
 
-// fmtG formats a number for display with 4 significant digits; NA for NaN.
+// fmtG formats a number for display: whole numbers in full, others with
+// 4 significant digits (one decimal from 1000 up); NA for NaN.
 func fmtG(x float64) string {
-	if math.IsNaN(x) {
+	switch {
+	case math.IsNaN(x):
 		return "NA"
+	case math.IsInf(x, 0):
+		return strconv.FormatFloat(x, 'g', -1, 64)
+	case x == math.Trunc(x) && math.Abs(x) < 1e15:
+		return strconv.FormatFloat(x, 'f', 0, 64)
+	case math.Abs(x) >= 1000:
+		return strconv.FormatFloat(x, 'f', 1, 64)
 	}
 	return strconv.FormatFloat(x, 'g', 4, 64)
 }
 
-// fmtExact formats a number so it round-trips; NA for NaN.
+// fmtExact formats a number so it round-trips (whole numbers without an
+// exponent); NA for NaN.
 func fmtExact(x float64) string {
-	if math.IsNaN(x) {
+	switch {
+	case math.IsNaN(x):
 		return "NA"
+	case x == math.Trunc(x) && math.Abs(x) < 1e15:
+		return strconv.FormatFloat(x, 'f', 0, 64)
 	}
 	return strconv.FormatFloat(x, 'g', -1, 64)
+}
+
+// visible replaces control characters in a name with a visible escape
+// (\x01), so what the page shows can be told apart and copied.
+func visible(s string) string {
+	if strings.IndexFunc(s, unicode.IsControl) < 0 {
+		return s
+	}
+	var b strings.Builder
+	for _, r := range s {
+		if unicode.IsControl(r) {
+			q := strconv.QuoteRune(r)
+			b.WriteString(q[1 : len(q)-1])
+			continue
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
 }
 
 // fmtPct formats a share in [0,1] as a percentage with 1 decimal.

@@ -94,7 +94,25 @@ type figures struct {
 
 type strTable struct {
 	Header []string
-	Rows   [][]string
+	Rows   [][]cell
+}
+
+// popTable shows populations.tsv with numbers rounded for reading (the
+// exact value stays in data-value).
+func popTable(t *table) *strTable {
+	out := &strTable{Header: t.header}
+	for _, r := range t.rows {
+		row := make([]cell, len(r))
+		for i, s := range r {
+			if x := parseNum(s); !math.IsNaN(x) {
+				row[i] = newCell(x)
+			} else {
+				row[i] = cell{Show: s, Exact: s}
+			}
+		}
+		out.Rows = append(out.Rows, row)
+	}
+	return out
 }
 
 type reportView struct {
@@ -189,7 +207,7 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 	}
 	v.HasPops = d.pops != nil || d.pairs != nil
 	if d.pops != nil {
-		v.PopTable = &strTable{Header: d.pops.header, Rows: d.pops.rows}
+		v.PopTable = popTable(d.pops)
 	}
 	v.HasPopCol = c.pops != nil
 	v.TableCols = append([]string{"call_rate", "het_rate"}, c.ests...)

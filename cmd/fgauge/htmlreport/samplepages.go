@@ -73,7 +73,7 @@ func writeSamplePages(outDir string, c *cohort, tpl *template.Template, opt Opti
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, fmt.Errorf("report: %w", err)
 	}
-	st := stems(c.names)
+	st := stems(c.raw)
 	which := make([]int, 0, len(c.names))
 	for i := range c.names {
 		if len(c.highlight) == 0 || c.highlight[i] {
@@ -188,7 +188,7 @@ type runJSON struct {
 func (c *cohort) sampleView(i int, stem string, g genomeLayout, cr map[string]ranker, pr map[string]map[string]ranker, popSize map[string]int) (*sampleView, *sampleJSON) {
 	t := c.d.samples
 	v := &sampleView{Name: c.names[i], Stem: stem, CohortN: len(c.names), Info: &c.d.info}
-	js := &sampleJSON{Sample: v.Name, Page: stem + ".html", Values: map[string]jsonNum{}, PctCohort: map[string]jsonNum{},
+	js := &sampleJSON{Sample: c.raw[i], Page: stem + ".html", Values: map[string]jsonNum{}, PctCohort: map[string]jsonNum{},
 		Cautions: cautionText, CohortSize: len(c.names), Flags: []flagJSON{}, LongestRuns: []runJSON{}}
 	if c.pops != nil {
 		v.Pop = c.pops[i]
@@ -241,19 +241,19 @@ func (c *cohort) sampleView(i int, stem string, g genomeLayout, cr map[string]ra
 		v.Flags = append(v.Flags, flagView{f, txt})
 		js.Flags = append(js.Flags, flagJSON{f, txt})
 	}
-	runs := append([]rohRun(nil), c.d.runs[v.Name]...)
+	runs := append([]rohRun(nil), c.d.runs[c.raw[i]]...)
 	v.NRuns = len(runs)
 	sort.SliceStable(runs, func(a, b int) bool { return runs[a].lengthBP > runs[b].lengthBP })
 	for k, r := range runs {
 		if k == maxLongestRuns {
 			break
 		}
-		v.Runs = append(v.Runs, runView{Chrom: r.chrom, Start: r.start, End: r.end, LengthMb: fmtG(r.lengthBP / 1e6),
+		v.Runs = append(v.Runs, runView{Chrom: visible(r.chrom), Start: r.start, End: r.end, LengthMb: fmtG(r.lengthBP / 1e6),
 			LengthCM: fmtG(r.lengthCM), NSites: fmtG(r.nSites), NHet: fmtG(r.nHet), GenBack: fmtG(r.genBack)})
 		js.LongestRuns = append(js.LongestRuns, runJSON{r.chrom, r.start, r.end, jsonNum(r.lengthBP), jsonNum(r.lengthCM), jsonNum(r.nSites), jsonNum(r.genBack)})
 	}
 	if c.d.runsPresent {
-		f := c.samplePainting(v.Name, g)
+		f := c.samplePainting(c.raw[i], g)
 		v.Painting = &f
 	}
 	return v, js
@@ -286,7 +286,7 @@ func (c *cohort) samplePainting(name string, g genomeLayout) figure {
 	}
 	for _, r := range c.d.runs[name] {
 		f.Total++
-		j, ok := row[r.chrom]
+		j, ok := row[visible(r.chrom)]
 		if !ok {
 			continue
 		}
