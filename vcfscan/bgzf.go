@@ -147,7 +147,7 @@ func newBGZFReader(src io.Reader, name string, threads, maxISize int, chunks []b
 
 func (z *bgzfReader) blockErr(coff int64, sentinel error, format string, args ...any) error {
 	return &ParseError{File: z.name, Offset: coff << 16, Record: -1, Field: "BGZF block",
-		Err: fmt.Errorf("%w: %s", sentinel, fmt.Sprintf(format, args...))}
+		Err: fmt.Errorf("%w: block at byte %d: %s", sentinel, coff, fmt.Sprintf(format, args...))}
 }
 
 // readRaw reads one raw block at file offset coff into j.raw. It returns
@@ -316,14 +316,14 @@ func (z *bgzfReader) inflate(j *bgzfJob, fr *io.ReadCloser, br *bytes.Reader) er
 	n, err := io.ReadFull(*fr, out)
 	switch {
 	case err == nil:
-		return z.blockErr(j.coff, ErrMalformed, "block inflates to more than its ISIZE of %d bytes", isize)
+		return z.blockErr(j.coff, ErrChecksum, "block inflates to more than its ISIZE of %d bytes; the file is damaged", isize)
 	case errors.Is(err, io.ErrUnexpectedEOF) || err == io.EOF:
 		// expected: the stream ends at or before isize+1 bytes
 	default:
 		return z.blockErr(j.coff, ErrMalformed, "deflate data is corrupt: %v", err)
 	}
 	if n != isize {
-		return z.blockErr(j.coff, ErrMalformed, "block inflates to %d bytes but its ISIZE says %d", n, isize)
+		return z.blockErr(j.coff, ErrChecksum, "block inflates to %d bytes but its ISIZE says %d; the file is damaged", n, isize)
 	}
 	out = out[:n]
 	if got := crc32.ChecksumIEEE(out); got != wantCRC {

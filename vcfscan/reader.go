@@ -361,6 +361,10 @@ func (r *Reader) chunkLoop() {
 	var carry []byte
 	eof := false
 	maxLine := r.opt.Limits.MaxLineBytes
+	chunk := r.opt.chunkBytes
+	if chunk <= 0 {
+		chunk = chunkTarget
+	}
 	for {
 		select {
 		case r.slots <- struct{}{}:
@@ -375,8 +379,8 @@ func (r *Reader) chunkLoop() {
 			return
 		}
 		buf := b.arena[:0]
-		if cap(buf) < chunkTarget+len(carry) {
-			buf = make([]byte, 0, chunkTarget+len(carry))
+		if cap(buf) < chunk+len(carry) {
+			buf = make([]byte, 0, chunk+len(carry))
 		}
 		buf = append(buf, carry...)
 		carry = carry[:0]

@@ -132,6 +132,8 @@ type Options struct {
 	// into separate blocks; the error names the first out-of-order pair.
 	RequireSorted bool
 	Limits        Limits
+
+	chunkBytes int // size of the text chunks parsed in parallel; 0 = chunkTarget (tests shrink it)
 }
 
 // Region is a chromosome interval, 1-based and inclusive; End 0 means to the end.

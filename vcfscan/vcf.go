@@ -177,6 +177,9 @@ var colNames = [...]string{"CHROM", "POS", "ID", "REF", "ALT", "QUAL", "FILTER",
 
 func (p *vcfParser) parseLine(b *Batch, line []byte, lineNo int64) error {
 	b.Read++
+	if line[0] == '#' {
+		return p.errf(lineNo, ErrMalformed, "CHROM", "header line %q among the data lines; header lines must come before #CHROM", clip(line))
+	}
 	var f [8][]byte
 	rest := line
 	found := true
@@ -189,9 +192,6 @@ func (p *vcfParser) parseLine(b *Batch, line []byte, lineNo int64) error {
 	chrom, posF, ref, alt, filter := f[0], f[1], f[3], f[4], f[6]
 	if len(chrom) == 0 {
 		return p.errf(lineNo, ErrMalformed, "CHROM", "empty chromosome name")
-	}
-	if chrom[0] == '#' {
-		return p.errf(lineNo, ErrMalformed, "CHROM", "header line %q among the data lines; header lines must come before #CHROM", clip(line))
 	}
 	pos, ok := parsePos(posF)
 	if !ok {
