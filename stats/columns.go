@@ -39,6 +39,7 @@ func ColumnDocs() []ColumnDoc {
 		{ps, "f_site", "1 - Ho/He in the population; NA when He is 0"},
 		{ps, "hwe_p", "Hardy-Weinberg p in the population (method as for sites.tsv.gz)"},
 
+		{sm, "sample", "sample name from the input header"},
 		{sm, "population", "population from --populations; NA for samples not listed (they use cohort frequencies and are left out of population statistics)"},
 		{sm, "sites_called", "kept sites with a diploid call"},
 		{sm, "n_hom_ref", "homozygous-reference calls"},

@@ -7,6 +7,10 @@
 // byte-identical output whatever the order of merging. A Worker consumes
 // batches on one goroutine; Workers' Totals are merged with Totals.Merge.
 //
+// Sums are exact on a grid of 2^-32 per summed term, so values derived
+// from them (means, ratios, estimators) carry a rounding of about 1e-10:
+// printed digits beyond the tenth decimal place are not significant.
+//
 // Methods implemented, each cited where it is coded:
 //   - exact Hardy-Weinberg test (Wigginton, Cutler & Abecasis 2005) with
 //     mid-p (Graffelman & Moreno 2013) and one-sided variants;

@@ -134,6 +134,11 @@ func TestHWEExactWorked(t *testing.T) {
 		if rel := math.Abs(got.P-want) / want; rel > 1e-9 {
 			t.Errorf("%v: p=%.17g, R %.17g", c, got.P, want)
 		}
+		// R genetics HWE.chisq(correct = FALSE, simulate.p.value = FALSE).
+		wantChi, _ := strconv.ParseFloat(fl[4], 64)
+		if gc := HWEChiSq(c[0], c[1], c[2]); math.Abs(gc.P-wantChi) > 1e-9*wantChi {
+			t.Errorf("%v: chisq p=%.17g, R HWE.chisq %.17g", c, gc.P, wantChi)
+		}
 		_, pObs, low, high := hweDefinition(c[0], c[1], c[2])
 		if rel := math.Abs(got.Deficit-low) / low; rel > 1e-9 {
 			t.Errorf("%v: deficit %v, enumeration %v", c, got.Deficit, low)

@@ -1,0 +1,126 @@
+package stats
+
+import (
+	"math"
+	"math/big"
+	"math/rand/v2"
+	"testing"
+)
+
+// exactFixed is the obviously-correct path: round(v*2^32) with big.Float,
+// summed in big.Int.
+func exactFixed(vs []float64) *big.Int {
+	sum := new(big.Int)
+	for _, v := range vs {
+		f := new(big.Float).SetFloat64(v)
+		f.SetMantExp(f, fracBits)
+		// round half to even
+		i, _ := f.Int(nil) // truncates toward zero
+		frac := new(big.Float).Sub(f, new(big.Float).SetInt(i))
+		half := big.NewFloat(0.5)
+		a := new(big.Float).Abs(frac)
+		switch a.Cmp(half) {
+		case 1:
+			i.Add(i, big.NewInt(int64(frac.Sign())))
+		case 0:
+			if i.Bit(0) == 1 {
+				i.Add(i, big.NewInt(int64(frac.Sign())))
+			}
+		}
+		sum.Add(sum, i)
+	}
+	return sum
+}
+
+func sumToBig(s Sum128) *big.Int {
+	b := new(big.Int).SetInt64(s.Hi)
+	b.Lsh(b, 64)
+	return b.Add(b, new(big.Int).SetUint64(s.Lo))
+}
+
+func TestSum128(t *testing.T) {
+	for _, tc := range []struct {
+		name string
+		vs   []float64
+	}{
+		{"small", []float64{0.1, 0.2, -0.3}},
+		{"negative", []float64{-1e-3, -2.5, -1e6}},
+		{"ties", []float64{0.5 / (1 << 32), 1.5 / (1 << 32), -0.5 / (1 << 32)}},
+		{"large", []float64{3e18, 3e18, -1e20, 7.25e25, 1e-9}},
+		{"cancel", []float64{1e25, 1, -1e25}},
+	} {
+		var s Sum128
+		for _, v := range tc.vs {
+			s.Add(v)
+		}
+		if got, want := sumToBig(s), exactFixed(tc.vs); got.Cmp(want) != 0 {
+			t.Errorf("%s: %v, want %v", tc.name, got, want)
+		}
+	}
+	var s Sum128
+	s.Add(-2.75)
+	if s.Float64() != -2.75 {
+		t.Errorf("Float64 %v", s.Float64())
+	}
+}
+
+// TestSum128OrderFree: any order and split gives identical bits.
+func TestSum128OrderFree(t *testing.T) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	vs := make([]float64, 5000)
+	for i := range vs {
+		vs[i] = (rng.Float64() - 0.3) * math.Pow(10, float64(rng.IntN(30)-10))
+	}
+	var a Sum128
+	for _, v := range vs {
+		a.Add(v)
+	}
+	for trial := 0; trial < 5; trial++ {
+		rng.Shuffle(len(vs), func(i, j int) { vs[i], vs[j] = vs[j], vs[i] })
+		cut := rng.IntN(len(vs))
+		var x, y Sum128
+		for _, v := range vs[:cut] {
+			x.Add(v)
+		}
+		for _, v := range vs[cut:] {
+			y.Add(v)
+		}
+		y.AddSum(x)
+		if y != a {
+			t.Fatalf("trial %d: %+v != %+v", trial, y, a)
+		}
+	}
+	if got, want := sumToBig(a), exactFixed(vs); got.Cmp(want) != 0 {
+		t.Fatalf("%v vs %v", got, want)
+	}
+}
+
+// FuzzSum128 compares the fast fixed-point path with big arithmetic.
+func FuzzSum128(f *testing.F) {
+	f.Add(0.1, -3.5, 1e20)
+	f.Add(1e-12, 2.5e-10, -7e27)
+	f.Fuzz(func(t *testing.T, a, b, c float64) {
+		vs := []float64{a, b, c}
+		for _, v := range vs {
+			if math.IsNaN(v) || math.IsInf(v, 0) || math.Abs(v) > 1e27 {
+				return
+			}
+		}
+		var s Sum128
+		for _, v := range vs {
+			s.Add(v)
+		}
+		if got, want := sumToBig(s), exactFixed(vs); got.Cmp(want) != 0 {
+			t.Fatalf("%v: %v, want %v", vs, got, want)
+		}
+	})
+}
+
+func BenchmarkSum128Add(b *testing.B) {
+	var s Sum128
+	v := fixed(0.123456)
+	for i := 0; i < b.N; i++ {
+		s.AddSum(v)
+	}
+	_ = s
+}
