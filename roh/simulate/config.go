@@ -1,0 +1,259 @@
+package simulate
+
+import (
+	"bufio"
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+	"sort"
+	"strconv"
+	"strings"
+
+	"fgauge/stats/pedigree"
+)
+
+// ErrConfig is wrapped by errors about an invalid Config or design string.
+var ErrConfig = errors.New("invalid simulation settings")
+
+// Chromosome is one simulated chromosome: physical length in bp and
+// genetic length in centiMorgans (ignored when a GeneticMap covers it).
+type Chromosome struct {
+	Name     string
+	LengthBP int64
+	LengthCM float64
+}
+
+// DefaultChromosomes returns three chromosomes of 100, 80 and 60 Mb at
+// 1 cM/Mb, a small genome that still shows long and short runs.
+func DefaultChromosomes() []Chromosome {
+	return []Chromosome{{"1", 100_000_000, 100}, {"2", 80_000_000, 80}, {"3", 60_000_000, 60}}
+}
+
+// ParseChromosomes parses "name:length_bp:length_cm,..." (length_cm
+// optional, default 1 cM per Mb). Lengths accept forms like 1e8.
+func ParseChromosomes(s string) ([]Chromosome, error) {
+	var out []Chromosome
+	for _, part := range strings.Split(s, ",") {
+		f := strings.Split(strings.TrimSpace(part), ":")
+		if len(f) < 2 || len(f) > 3 || f[0] == "" {
+			return nil, fmt.Errorf("%w: chromosome %q: want name:length_bp[:length_cm]", ErrConfig, part)
+		}
+		bp, err := strconv.ParseFloat(f[1], 64)
+		if err != nil || bp < 1 || bp > 1e10 {
+			return nil, fmt.Errorf("%w: chromosome %q: length_bp %q is not a positive number", ErrConfig, part, f[1])
+		}
+		c := Chromosome{Name: f[0], LengthBP: int64(bp), LengthCM: bp / 1e6}
+		if len(f) == 3 {
+			cm, err := strconv.ParseFloat(f[2], 64)
+			if err != nil || cm <= 0 {
+				return nil, fmt.Errorf("%w: chromosome %q: length_cm %q is not a positive number", ErrConfig, part, f[2])
+			}
+			c.LengthCM = cm
+		}
+		out = append(out, c)
+	}
+	return out, nil
+}
+
+// Spectrum is the distribution of ancestral allele frequencies.
+type Spectrum int
+
+// Allele frequency spectra.
+const (
+	// SpectrumUShaped draws p from Beta(1/2, 1/2): many common variants,
+	// like a SNP array ascertained for polymorphism.
+	SpectrumUShaped Spectrum = iota
+	// SpectrumNeutral draws the derived-allele frequency from the neutral
+	// 1/x density (log-uniform), with many rare variants, like sequence.
+	SpectrumNeutral
+)
+
+// Config describes one simulation. Zero values take the documented defaults.
+type Config struct {
+	Seed        uint64
+	Chromosomes []Chromosome // default DefaultChromosomes()
+	Map         GeneticMap   // optional per-chromosome genetic map
+	// SiteSpacing is the mean distance between sites in bp (default
+	// 30,000, array-like; use ~1,000 or less for sequence-like data).
+	SiteSpacing float64
+	Spectrum    Spectrum
+	// MinMAF drops sites whose minor allele frequency in the ancestral pool
+	// is below it (default 0: keep every polymorphic site).
+	MinMAF float64
+	// AncestralHaplotypes is the size of the pool founders are built from
+	// (default 40); AncestralSegmentCM the mean length of the pieces
+	// (default 0.5 cM). Smaller pools and longer pieces make unrelated
+	// founders share more by state.
+	AncestralHaplotypes int
+	AncestralSegmentCM  float64
+	// NoSites skips sites and genotypes: only the identity-by-descent
+	// truth is simulated (fast, for gene-drop checks).
+	NoSites bool
+
+	// Pedigree to drop genomes through; Designs are built-in pedigrees
+	// added to it. At least one of them is needed.
+	Pedigree *pedigree.Pedigree
+	Designs  []Design
+	// Replicates repeats the whole pedigree with fresh founders; ids get
+	// a suffix "_r1", "_r2", ... when Replicates > 1 (default 1).
+	Replicates int
+
+	// GenotypeError is the chance a call is replaced by one of the two
+	// other genotypes; MissingRate the chance it is set missing.
+	GenotypeError float64
+	MissingRate   float64
+	// Depth > 0 simulates reads (Poisson depth with this mean, base error
+	// ReadError, default 0.01) and writes GT:DP:PL; GT is the most likely
+	// genotype and GenotypeError is not applied on top.
+	Depth     float64
+	ReadError float64
+}
+
+func (c *Config) normalize() error {
+	if len(c.Chromosomes) == 0 {
+		c.Chromosomes = DefaultChromosomes()
+	}
+	if c.SiteSpacing == 0 {
+		c.SiteSpacing = 30_000
+	}
+	if c.AncestralHaplotypes == 0 {
+		c.AncestralHaplotypes = 40
+	}
+	if c.AncestralSegmentCM == 0 {
+		c.AncestralSegmentCM = 0.5
+	}
+	if c.Replicates == 0 {
+		c.Replicates = 1
+	}
+	if c.ReadError == 0 {
+		c.ReadError = 0.01
+	}
+	switch {
+	case c.Pedigree == nil && len(c.Designs) == 0:
+		return fmt.Errorf("%w: no pedigree and no design", ErrConfig)
+	case c.SiteSpacing < 1:
+		return fmt.Errorf("%w: site spacing %v bp is below 1", ErrConfig, c.SiteSpacing)
+	case c.AncestralHaplotypes < 2 || c.AncestralHaplotypes > 30000:
+		return fmt.Errorf("%w: ancestral pool of %d haplotypes (want 2..30000)", ErrConfig, c.AncestralHaplotypes)
+	case c.AncestralSegmentCM < 0:
+		return fmt.Errorf("%w: negative ancestral segment length", ErrConfig)
+	case c.Replicates < 0:
+		return fmt.Errorf("%w: negative replicate count", ErrConfig)
+	case c.GenotypeError < 0 || c.GenotypeError > 1, c.MissingRate < 0 || c.MissingRate > 1:
+		return fmt.Errorf("%w: genotype error and missing rates must lie in [0, 1]", ErrConfig)
+	case c.MinMAF < 0 || c.MinMAF >= 0.5:
+		return fmt.Errorf("%w: minimum MAF %v outside [0, 0.5)", ErrConfig, c.MinMAF)
+	case c.Depth < 0 || c.ReadError < 0 || c.ReadError >= 0.5:
+		return fmt.Errorf("%w: depth must be >= 0 and read error in [0, 0.5)", ErrConfig)
+	}
+	seen := map[string]bool{}
+	for i := range c.Chromosomes {
+		ch := &c.Chromosomes[i]
+		if seen[ch.Name] {
+			return fmt.Errorf("%w: chromosome %q listed twice", ErrConfig, ch.Name)
+		}
+		seen[ch.Name] = true
+		if ch.LengthBP < 1 {
+			return fmt.Errorf("%w: chromosome %q has length %d bp", ErrConfig, ch.Name, ch.LengthBP)
+		}
+		if pts := c.Map[ch.Name]; len(pts) > 0 {
+			ch.LengthCM = mapCM(pts, ch.LengthBP)
+		}
+		if !(ch.LengthCM > 0) {
+			return fmt.Errorf("%w: chromosome %q has genetic length %v cM", ErrConfig, ch.Name, ch.LengthCM)
+		}
+	}
+	return nil
+}
+
+// MapPoint is one marker of a genetic map.
+type MapPoint struct {
+	Pos int64   // bp, 1-based
+	CM  float64 // cumulative centiMorgans
+}
+
+// GeneticMap holds sorted map points per chromosome name. Positions
+// between points are interpolated linearly; before the first point the
+// map runs linearly from (0, 0), after the last at the chromosome's mean
+// rate (last.CM / last.Pos).
+type GeneticMap map[string][]MapPoint
+
+// ReadGeneticMap reads a map table with columns chrom, pos (bp), cM; a
+// header line and '#' comments are skipped. cM must not decrease along a
+// chromosome. name is used in error messages.
+func ReadGeneticMap(r io.Reader, name string) (GeneticMap, error) {
+	m := GeneticMap{}
+	sc := bufio.NewScanner(r)
+	line := 0
+	for sc.Scan() {
+		line++
+		b := bytes.TrimSpace(sc.Bytes())
+		if len(b) == 0 || b[0] == '#' {
+			continue
+		}
+		f := bytes.Fields(b)
+		if len(f) < 3 {
+			return nil, fmt.Errorf("%s:%d: %w: want chrom, pos, cM", name, line, ErrConfig)
+		}
+		pos, err1 := strconv.ParseInt(string(f[1]), 10, 64)
+		cm, err2 := strconv.ParseFloat(string(f[2]), 64)
+		if err1 != nil || err2 != nil {
+			if line == 1 || len(m) == 0 {
+				continue // header
+			}
+			return nil, fmt.Errorf("%s:%d: %w: pos %q or cM %q is not a number", name, line, ErrConfig, f[1], f[2])
+		}
+		if pos < 1 || cm < 0 {
+			return nil, fmt.Errorf("%s:%d: %w: pos must be >= 1 and cM >= 0", name, line, ErrConfig)
+		}
+		ch := string(f[0])
+		pts := m[ch]
+		if n := len(pts); n > 0 && (pos <= pts[n-1].Pos || cm < pts[n-1].CM) {
+			return nil, fmt.Errorf("%s:%d: %w: map positions must increase and cM must not decrease", name, line, ErrConfig)
+		}
+		m[ch] = append(pts, MapPoint{pos, cm})
+	}
+	if err := sc.Err(); err != nil {
+		return nil, fmt.Errorf("%s:%d: %w", name, line+1, err)
+	}
+	return m, nil
+}
+
+// mapCM interpolates the genetic position of pos.
+func mapCM(pts []MapPoint, pos int64) float64 {
+	first, last := pts[0], pts[len(pts)-1]
+	if pos <= first.Pos {
+		return first.CM * float64(pos) / float64(first.Pos)
+	}
+	if pos >= last.Pos {
+		return last.CM + float64(pos-last.Pos)*last.CM/float64(last.Pos)
+	}
+	k := sort.Search(len(pts), func(i int) bool { return pts[i].Pos >= pos })
+	a, b := pts[k-1], pts[k]
+	return a.CM + (b.CM-a.CM)*float64(pos-a.Pos)/float64(b.Pos-a.Pos)
+}
+
+// mapBP inverts mapCM (the smallest position at or past cm).
+func mapBP(pts []MapPoint, cm float64) float64 {
+	first, last := pts[0], pts[len(pts)-1]
+	if cm <= first.CM {
+		if first.CM == 0 {
+			return 0
+		}
+		return cm / first.CM * float64(first.Pos)
+	}
+	if cm >= last.CM {
+		rate := last.CM / float64(last.Pos)
+		if rate == 0 {
+			return float64(last.Pos)
+		}
+		return float64(last.Pos) + (cm-last.CM)/rate
+	}
+	k := sort.Search(len(pts), func(i int) bool { return pts[i].CM >= cm })
+	a, b := pts[k-1], pts[k]
+	if b.CM == a.CM {
+		return float64(a.Pos)
+	}
+	return float64(a.Pos) + (cm-a.CM)/(b.CM-a.CM)*float64(b.Pos-a.Pos)
+}

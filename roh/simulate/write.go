@@ -1,0 +1,316 @@
+package simulate
+
+import (
+	"bufio"
+	"fmt"
+	"io"
+	"os"
+	"strconv"
+
+	"github.com/biogo/hts/bgzf"
+	"github.com/biogo/hts/tabix"
+
+	"fgauge/vcfscan"
+)
+
+// header returns the VCF header text.
+func (r *Result) header() []byte {
+	cfg := &r.Config
+	b := []byte("##fileformat=VCFv4.3\n")
+	b = fmt.Appendf(b, "##simulation=<tool=fgauge_simulate,seed=%d,site_spacing_bp=%s,ancestral_haplotypes=%d,ancestral_segment_cm=%s,genotype_error=%s,missing_rate=%s,depth=%s>\n",
+		cfg.Seed, ftoa(cfg.SiteSpacing), cfg.AncestralHaplotypes, ftoa(cfg.AncestralSegmentCM),
+		ftoa(cfg.GenotypeError), ftoa(cfg.MissingRate), ftoa(cfg.Depth))
+	for _, c := range r.Chromosomes {
+		b = fmt.Appendf(b, "##contig=<ID=%s,length=%d>\n", c.Name, c.LengthBP)
+	}
+	b = append(b, "##INFO=<ID=POOL_AF,Number=A,Type=Float,Description=\"ALT allele frequency in the simulated ancestral haplotype pool\">\n"...)
+	b = append(b, "##FORMAT=<ID=GT,Number=1,Type=String,Description=\"Genotype\">\n"...)
+	if cfg.Depth > 0 {
+		b = append(b, "##FORMAT=<ID=DP,Number=1,Type=Integer,Description=\"Simulated read depth\">\n"...)
+		b = append(b, "##FORMAT=<ID=PL,Number=G,Type=Integer,Description=\"Phred-scaled genotype likelihoods\">\n"...)
+	}
+	b = append(b, "#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT"...)
+	for _, s := range r.Samples {
+		b = append(b, '\t')
+		b = append(b, s.ID...)
+	}
+	return append(b, '\n')
+}
+
+func ftoa(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+
+var gtText = [...]string{vcfscan.HomRef: "0/0", vcfscan.Het: "0/1", vcfscan.HomAlt: "1/1", vcfscan.Missing: "./."}
+
+// appendRecord appends one VCF data line for s.
+func (r *Result) appendRecord(b []byte, s *Site) []byte {
+	b = append(b, r.Chromosomes[s.Chrom].Name...)
+	b = append(b, '\t')
+	b = strconv.AppendInt(b, s.Pos, 10)
+	b = append(b, "\t.\t"...)
+	b = append(b, s.Ref, '\t', s.Alt)
+	b = append(b, "\t.\tPASS\tPOOL_AF="...)
+	b = strconv.AppendFloat(b, s.PoolFreq, 'g', 6, 64)
+	depth := s.DP != nil
+	if depth {
+		b = append(b, "\tGT:DP:PL"...)
+	} else {
+		b = append(b, "\tGT"...)
+	}
+	for i, g := range s.GT {
+		b = append(b, '\t')
+		b = append(b, gtText[g]...)
+		if depth {
+			b = append(b, ':')
+			b = strconv.AppendInt(b, int64(s.DP[i]), 10)
+			b = append(b, ':')
+			if s.DP[i] == 0 {
+				b = append(b, '.')
+				continue
+			}
+			for k := 0; k < 3; k++ {
+				if k > 0 {
+					b = append(b, ',')
+				}
+				b = strconv.AppendUint(b, uint64(s.PL[3*i+k]), 10)
+			}
+		}
+	}
+	return append(b, '\n')
+}
+
+// WriteVCF writes the simulated calls as plain VCF text.
+func WriteVCF(w io.Writer, r *Result) error {
+	bw := bufio.NewWriterSize(w, 1<<16)
+	if _, err := bw.Write(r.header()); err != nil {
+		return err
+	}
+	var line []byte
+	err := r.ForEachSite(func(s *Site) error {
+		line = r.appendRecord(line[:0], s)
+		_, err := bw.Write(line)
+		return err
+	})
+	if err != nil {
+		return err
+	}
+	return bw.Flush()
+}
+
+// countWriter counts bytes written, to know BGZF block offsets.
+type countWriter struct {
+	w io.Writer
+	n int64
+}
+
+func (c *countWriter) Write(p []byte) (int, error) {
+	n, err := c.w.Write(p)
+	c.n += int64(n)
+	return n, err
+}
+
+type tbiRecord struct {
+	chrom string
+	pos   int64
+}
+
+func (t tbiRecord) RefName() string { return t.chrom }
+
+// Start and End are 0-based; End = Start keeps biogo's linear index from
+// splitting a one-base record across a 16 kb tile boundary. The bin is
+// still one that contains the record.
+func (t tbiRecord) Start() int { return int(t.pos - 1) }
+func (t tbiRecord) End() int   { return int(t.pos - 1) }
+
+// WriteVCFBGZF writes the calls as BGZF-compressed VCF to path and a
+// tabix index to path + ".tbi" (SAMtools hts-specs, "The Tabix index
+// file format"). Output is byte-identical for the same Config.
+func WriteVCFBGZF(path string, r *Result) (err error) {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	defer func() {
+		if cerr := f.Close(); err == nil {
+			err = cerr
+		}
+	}()
+	cw := &countWriter{w: f}
+	bg, err := bgzf.NewWriterLevel(cw, 6, 1)
+	if err != nil {
+		return err
+	}
+	// flush writes buf as whole block(s) and returns the file offset after.
+	var buf []byte
+	flush := func() (int64, error) {
+		if len(buf) > 0 {
+			if _, err := bg.Write(buf); err != nil {
+				return 0, err
+			}
+			buf = buf[:0]
+		}
+		if err := bg.Flush(); err != nil {
+			return 0, err
+		}
+		if err := bg.Wait(); err != nil {
+			return 0, err
+		}
+		return cw.n, nil
+	}
+	buf = append(buf, r.header()...)
+	blockStart, err := flush()
+	if err != nil {
+		return err
+	}
+	idx := tabix.New()
+	idx.Format, idx.NameColumn, idx.BeginColumn, idx.EndColumn = 2, 1, 2, 0
+	idx.MetaChar, idx.Skip = '#', 0
+	var pending *tbiRecord
+	var pendingBegin bgzf.Offset
+	addPending := func(end bgzf.Offset) error {
+		if pending == nil {
+			return nil
+		}
+		return idx.Add(*pending, bgzf.Chunk{Begin: pendingBegin, End: end}, true, true)
+	}
+	var line []byte
+	err = r.ForEachSite(func(s *Site) error {
+		line = r.appendRecord(line[:0], s)
+		if len(buf)+len(line) > bgzf.BlockSize {
+			if blockStart, err = flush(); err != nil {
+				return err
+			}
+		}
+		begin := bgzf.Offset{File: blockStart, Block: uint16(len(buf))}
+		if err := addPending(begin); err != nil {
+			return err
+		}
+		pending, pendingBegin = &tbiRecord{r.Chromosomes[s.Chrom].Name, s.Pos}, begin
+		buf = append(buf, line...)
+		if len(buf) > bgzf.BlockSize { // one line longer than a block
+			if blockStart, err = flush(); err != nil {
+				return err
+			}
+		}
+		return nil
+	})
+	if err != nil {
+		return err
+	}
+	end, err := flush()
+	if err != nil {
+		return err
+	}
+	if err := addPending(bgzf.Offset{File: end}); err != nil {
+		return err
+	}
+	if err := bg.Close(); err != nil {
+		return err
+	}
+	return writeTabix(path+".tbi", idx)
+}
+
+func writeTabix(path string, idx *tabix.Index) (err error) {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	defer func() {
+		if cerr := f.Close(); err == nil {
+			err = cerr
+		}
+	}()
+	bg, err := bgzf.NewWriterLevel(f, 6, 1)
+	if err != nil {
+		return err
+	}
+	if err := tabix.WriteTo(bg, idx); err != nil {
+		return err
+	}
+	return bg.Close()
+}
+
+// WriteSamplesTruth writes one line per sample: sample replicate design
+// class f_pedigree f_realized autozygous_bp n_segments.
+func WriteSamplesTruth(w io.Writer, r *Result) error {
+	bw := bufio.NewWriter(w)
+	bw.WriteString("sample\treplicate\tdesign\tclass\tf_pedigree\tf_realized\tautozygous_bp\tn_segments\n")
+	var b []byte
+	for _, s := range r.Samples {
+		b = append(b[:0], s.ID...)
+		b = append(b, '\t')
+		b = strconv.AppendInt(b, int64(s.Replicate), 10)
+		b = append(b, '\t')
+		b = append(b, s.Design...)
+		b = append(b, '\t')
+		b = append(b, s.Class...)
+		b = append(b, '\t')
+		b = strconv.AppendFloat(b, s.FPedigree, 'g', -1, 64)
+		b = append(b, '\t')
+		b = strconv.AppendFloat(b, s.FRealized, 'g', -1, 64)
+		b = append(b, '\t')
+		b = strconv.AppendInt(b, s.AutozygousBP, 10)
+		b = append(b, '\t')
+		b = strconv.AppendInt(b, int64(s.NSegments), 10)
+		b = append(b, '\n')
+		bw.Write(b)
+	}
+	return bw.Flush()
+}
+
+// WriteSegmentsTruth writes every autozygous segment: sample chrom start
+// end length_bp start_cm end_cm n_sites (start and end 1-based inclusive).
+func WriteSegmentsTruth(w io.Writer, r *Result) error {
+	bw := bufio.NewWriter(w)
+	bw.WriteString("sample\tchrom\tstart\tend\tlength_bp\tstart_cm\tend_cm\tn_sites\n")
+	var b []byte
+	for _, g := range r.Segments {
+		b = append(b[:0], r.Samples[g.Sample].ID...)
+		b = append(b, '\t')
+		b = append(b, r.Chromosomes[g.Chrom].Name...)
+		b = append(b, '\t')
+		b = strconv.AppendInt(b, g.Start, 10)
+		b = append(b, '\t')
+		b = strconv.AppendInt(b, g.End, 10)
+		b = append(b, '\t')
+		b = strconv.AppendInt(b, g.LengthBP(), 10)
+		b = append(b, '\t')
+		b = strconv.AppendFloat(b, g.StartCM, 'g', -1, 64)
+		b = append(b, '\t')
+		b = strconv.AppendFloat(b, g.EndCM, 'g', -1, 64)
+		b = append(b, '\t')
+		if r.sites == nil {
+			b = append(b, "NA"...)
+		} else {
+			b = strconv.AppendInt(b, int64(g.NSites), 10)
+		}
+		b = append(b, '\n')
+		bw.Write(b)
+	}
+	return bw.Flush()
+}
+
+// WritePedigree writes the simulated pedigree as id sire dam sex, with 0
+// for unknown parents and sex as M, F or 0; pedigree.Read reads it back.
+func WritePedigree(w io.Writer, r *Result) error {
+	bw := bufio.NewWriter(w)
+	bw.WriteString("id\tsire\tdam\tsex\n")
+	p := r.Pedigree
+	for i := 0; i < p.Len(); i++ {
+		sire, dam := "0", "0"
+		if s := p.Sire(i); s >= 0 {
+			sire = p.ID(s)
+		}
+		if d := p.Dam(i); d >= 0 {
+			dam = p.ID(d)
+		}
+		sex := "0"
+		switch p.SexOf(i) {
+		case 1:
+			sex = "M"
+		case 2:
+			sex = "F"
+		}
+		fmt.Fprintf(bw, "%s\t%s\t%s\t%s\n", p.ID(i), sire, dam, sex)
+	}
+	return bw.Flush()
+}
