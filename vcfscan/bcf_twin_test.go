@@ -1,0 +1,297 @@
+//go:build bcfseam
+
+package vcfscan
+
+import (
+	"bufio"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// Tests of BCF input through Open: the BCF twins must give exactly the
+// batches of their VCF sources.
+
+// bcfFlatRecord is a kept record with its calls, detached from its batch.
+type bcfFlatRecord struct {
+	Chrom                string
+	Pos                  int64
+	ID, Filter, Ref, Alt string
+	Info                 float64
+	GT                   []Geno
+	PL                   []uint16
+	HasPL                bool
+}
+
+type bcfScanResult struct {
+	format  Format
+	samples []string
+	recs    []bcfFlatRecord
+	read    int64
+	skipped [NumSkipReasons]int64
+	masked  int64
+}
+
+// bcfScanFile reads path with Open and flattens every batch.
+func bcfScanFile(t testing.TB, path string, opt Options) bcfScanResult {
+	t.Helper()
+	r, err := Open(path, opt)
+	if err != nil {
+		t.Fatalf("Open(%s): %v", path, err)
+	}
+	defer r.Close()
+	res := bcfScanResult{format: r.Format(), samples: append([]string(nil), r.Samples()...)}
+	for {
+		b, err := r.Next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			t.Fatalf("%s: Next: %v", path, err)
+		}
+		res.read += b.Read
+		res.masked += b.Masked
+		for k := range b.Skipped {
+			res.skipped[k] += b.Skipped[k]
+		}
+		for i, rec := range b.Records {
+			f := bcfFlatRecord{
+				Chrom: r.Header().Contigs[rec.ChromID].Name, Pos: rec.Pos,
+				ID: string(rec.ID), Filter: string(rec.Filter), Ref: string(rec.Ref), Alt: string(rec.Alt),
+				Info: rec.InfoValue,
+				GT:   append([]Geno(nil), b.Calls(i)...),
+			}
+			if opt.WantPL {
+				f.HasPL = b.HasPL[i]
+				f.PL = append([]uint16(nil), b.PL[3*i*b.NSamples:3*(i+1)*b.NSamples]...)
+			}
+			res.recs = append(res.recs, f)
+		}
+		r.Release(b)
+	}
+	return res
+}
+
+// bcfCompareScans reports the first differences between two scans.
+func bcfCompareScans(t *testing.T, what string, a, b bcfScanResult, counts bool) {
+	t.Helper()
+	if strings.Join(a.samples, ",") != strings.Join(b.samples, ",") {
+		t.Fatalf("%s: samples differ: %v vs %v", what, a.samples, b.samples)
+	}
+	if len(a.recs) != len(b.recs) {
+		t.Errorf("%s: %d vs %d kept records", what, len(a.recs), len(b.recs))
+	}
+	if counts {
+		if a.read != b.read || a.skipped != b.skipped || a.masked != b.masked {
+			t.Errorf("%s: counts differ: read %d/%d skipped %v/%v masked %d/%d", what, a.read, b.read, a.skipped, b.skipped, a.masked, b.masked)
+		}
+	}
+	bad := 0
+	for i := 0; i < len(a.recs) && i < len(b.recs) && bad < 5; i++ {
+		x, y := a.recs[i], b.recs[i]
+		if x.Chrom != y.Chrom || x.Pos != y.Pos || x.ID != y.ID || x.Filter != y.Filter || x.Ref != y.Ref || x.Alt != y.Alt ||
+			!bcfSameFloat(x.Info, y.Info) || x.HasPL != y.HasPL {
+			t.Errorf("%s: record %d differs:\n %+v\n %+v", what, i, x, y)
+			bad++
+			continue
+		}
+		for j := range x.GT {
+			if x.GT[j] != y.GT[j] {
+				t.Errorf("%s: %s:%d sample %d: GT %d vs %d", what, x.Chrom, x.Pos, j, x.GT[j], y.GT[j])
+				bad++
+				break
+			}
+		}
+		for j := range x.PL {
+			if x.PL[j] != y.PL[j] {
+				t.Errorf("%s: %s:%d PL value %d: %d vs %d", what, x.Chrom, x.Pos, j, x.PL[j], y.PL[j])
+				bad++
+				break
+			}
+		}
+	}
+}
+
+// bcfTwins pairs each VCF fixture with the BCF written from it by
+// testdata/tools/make_bcf_twins.py (python3-pysam 0.20.0, htslib's BCF 2.2
+// encoder): an independent encoder, so agreement checks our decoder against
+// htslib's reading of the same text.
+var bcfTwins = []struct{ vcf, bcf string }{
+	{"../testdata/chr22_1000g.vcf.gz", "../testdata/bcf/chr22_1000g.bcf"},
+	{"../testdata/cohort189.vcf.gz", "../testdata/bcf/cohort189.bcf"},
+	{"../testdata/annotated_small.vcf", "../testdata/bcf/annotated_small.bcf"},
+	{"../testdata/annotated_small.vcf", "../testdata/annotated_small.bcf"}, // shipped upstream twin
+	{"../testdata/edge/test-haploidX.vcf", "../testdata/bcf/test-haploidX.bcf"},
+	{"../testdata/edge/gl_chr1.vcf", "../testdata/bcf/gl_chr1.bcf"},
+	{"../testdata/edge/test.mnp.vcf", "../testdata/bcf/test.mnp.bcf"},
+}
+
+func TestBCFTwinsMatchVCF(t *testing.T) {
+	opts := []struct {
+		name string
+		opt  Options
+	}{
+		{"default", Options{}},
+		{"all_fields", Options{IncludeFiltered: true, WantPL: true, InfoKey: "AF"}},
+		{"masking", Options{IncludeFiltered: true, MinGQ: 20, MinDP: 8, WantPL: true}},
+		{"one_thread_small_batches", Options{Threads: 1, BatchSize: 7, InfoKey: "DP"}},
+	}
+	for _, tw := range bcfTwins {
+		for _, o := range opts {
+			t.Run(filepath.Base(tw.bcf)+"/"+o.name, func(t *testing.T) {
+				v := bcfScanFile(t, tw.vcf, o.opt)
+				b := bcfScanFile(t, tw.bcf, o.opt)
+				if b.format != FormatBCF {
+					t.Errorf("format %v, want %v", b.format, FormatBCF)
+				}
+				if len(v.recs) == 0 && tw.vcf != "../testdata/edge/test.mnp.vcf" {
+					t.Fatalf("no kept records in %s: the comparison would prove nothing", tw.vcf)
+				}
+				bcfCompareScans(t, tw.bcf, v, b, true)
+			})
+		}
+	}
+}
+
+func TestBCFSampleSelection(t *testing.T) {
+	// Selection and reordering must pick the same columns as the VCF path.
+	vcf, bcf := "../testdata/cohort189.vcf.gz", "../testdata/bcf/cohort189.bcf"
+	full := bcfScanFile(t, bcf, Options{})
+	opt := Options{Samples: []string{full.samples[5], full.samples[0], full.samples[100]}, WantPL: true}
+	v := bcfScanFile(t, vcf, opt)
+	b := bcfScanFile(t, bcf, opt)
+	bcfCompareScans(t, "samples", v, b, true)
+	if len(b.samples) != 3 || b.samples[0] != full.samples[5] {
+		t.Fatalf("samples %v", b.samples)
+	}
+	for i, r := range b.recs {
+		if r.GT[0] != full.recs[i].GT[5] || r.GT[1] != full.recs[i].GT[0] || r.GT[2] != full.recs[i].GT[100] {
+			t.Fatalf("record %d: selected calls %v do not match full scan", i, r.GT)
+		}
+	}
+	ex := bcfScanFile(t, bcf, Options{ExcludeSamples: []string{full.samples[0]}})
+	bcfCompareScans(t, "exclude", bcfScanFile(t, vcf, Options{ExcludeSamples: []string{full.samples[0]}}), ex, true)
+}
+
+// TestBCFCountsMatchReference checks per-site genotype counts decoded from
+// the BCF twins against testdata/expected/*.sites.tsv, computed from the VCF
+// with python3-cyvcf2 0.30.18 (tools/site_sample_counts.py); that script's
+// site policy is one ALT, single ACGT bases, any FILTER, and a call with a
+// missing allele counts as missing.
+func TestBCFCountsMatchReference(t *testing.T) {
+	for _, c := range []struct{ bcf, expected string }{
+		{"../testdata/bcf/chr22_1000g.bcf", "../testdata/expected/chr22_1000g.sites.tsv"},
+		{"../testdata/bcf/cohort189.bcf", "../testdata/expected/cohort189.sites.tsv"},
+	} {
+		got := bcfScanFile(t, c.bcf, Options{IncludeFiltered: true})
+		f, err := os.Open(c.expected)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sc := bufio.NewScanner(f)
+		sc.Scan() // header
+		i := 0
+		for sc.Scan() {
+			fs := strings.Split(sc.Text(), "\t")
+			if i >= len(got.recs) {
+				t.Fatalf("%s: only %d kept records, reference has more", c.bcf, len(got.recs))
+			}
+			r := got.recs[i]
+			var n [4]int
+			for _, g := range r.GT {
+				switch g {
+				case HomRef, HomAlt, Het:
+					n[g]++
+				default:
+					n[3]++
+				}
+			}
+			want := fmt.Sprintf("%s:%s %s %s %s %s", fs[0], fs[1], fs[2], fs[3], fs[4], fs[5])
+			have := fmt.Sprintf("%s:%d %d %d %d %d", r.Chrom, r.Pos, n[0], n[1], n[2], n[3])
+			if want != have {
+				t.Errorf("%s: site %d: got %s, reference %s", c.bcf, i, have, want)
+			}
+			i++
+		}
+		f.Close()
+		if i != len(got.recs) || i == 0 {
+			t.Errorf("%s: %d kept records, reference %d", c.bcf, len(got.recs), i)
+		}
+	}
+}
+
+func TestBCFHeader(t *testing.T) {
+	r, err := Open("../testdata/bcf/cohort189.bcf", Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	v, err := Open("../testdata/cohort189.vcf.gz", Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer v.Close()
+	hb, hv := r.Header(), v.Header()
+	if len(hb.Samples) != 189 || strings.Join(hb.Samples, ",") != strings.Join(hv.Samples, ",") {
+		t.Errorf("samples: %d in BCF, %d in VCF", len(hb.Samples), len(hv.Samples))
+	}
+	if len(hb.Contigs) != len(hv.Contigs) || hb.Contigs[0] != hv.Contigs[0] {
+		t.Errorf("contigs: %v vs %v", hb.Contigs[:1], hv.Contigs[:1])
+	}
+	if hb.FileFormat != hv.FileFormat {
+		t.Errorf("fileformat %q vs %q", hb.FileFormat, hv.FileFormat)
+	}
+	if hb.FormatDefs["GT"].Type != "String" || hb.Info["AF"].Number != hv.Info["AF"].Number {
+		t.Errorf("definitions: GT %+v AF %+v", hb.FormatDefs["GT"], hb.Info["AF"])
+	}
+}
+
+func TestBCFTruncatedFile(t *testing.T) {
+	// A BCF cut inside a BGZF block must fail with a ParseError, not
+	// succeed quietly or panic.
+	raw, err := os.ReadFile("../testdata/bcf/cohort189.bcf")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := filepath.Join(t.TempDir(), "cut.bcf")
+	if err := os.WriteFile(p, raw[:len(raw)/2], 0o644); err != nil {
+		t.Fatal(err)
+	}
+	r, err := Open(p, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	for {
+		_, err = r.Next()
+		if err != nil {
+			break
+		}
+	}
+	var pe *ParseError
+	if err == io.EOF || !errors.As(err, &pe) {
+		t.Fatalf("cut file: %v, want a ParseError", err)
+	}
+}
+
+// BenchmarkBCFScan reads the chr22 twin end to end through Open.
+func BenchmarkBCFScan(b *testing.B) {
+	for i := 0; i < b.N; i++ {
+		r, err := Open("../testdata/bcf/chr22_1000g.bcf", Options{Threads: 1})
+		if err != nil {
+			b.Fatal(err)
+		}
+		for {
+			bt, err := r.Next()
+			if err != nil {
+				break
+			}
+			r.Release(bt)
+		}
+		r.Close()
+	}
+}
