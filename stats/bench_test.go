@@ -57,3 +57,21 @@ func BenchmarkProcessBatch1000(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkCountFloor is the floor for BenchmarkProcessBatch1000: the
+// least per-call work any per-sample statistic needs (one counter
+// increment per call), on the same batch. Compare ns/call of the two in
+// the same run; the machine may be shared.
+func BenchmarkCountFloor(b *testing.B) {
+	batch, _ := benchBatch(1000, 256)
+	counts := make([][6]int64, 1000)
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		for r := range batch.Records {
+			for s, g := range batch.Calls(r) {
+				counts[s][g]++
+			}
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*len(batch.Records)*1000), "ns/call")
+}

@@ -252,3 +252,60 @@ func TestFlags(t *testing.T) {
 		t.Errorf("flags %q, want .", rows[1][len(rows[1])-1])
 	}
 }
+
+// TestPopulationFrequencies: each sample uses its own population's
+// frequency; samples outside every population use the cohort frequency.
+// Two herds fixed for different alleles are monomorphic within herds, so
+// their samples have no informative site (NA), while the unassigned
+// sample, read against the cohort frequency 1/2, is informative.
+func TestPopulationFrequencies(t *testing.T) {
+	const n = 10
+	var calls [][]vcfscan.Geno
+	for i := 0; i < n; i++ {
+		calls = append(calls, []vcfscan.Geno{vcfscan.HomRef, vcfscan.HomRef, vcfscan.HomAlt, vcfscan.HomAlt, vcfscan.Het})
+	}
+	cfg := &Config{Samples: []string{"a1", "a2", "b1", "b2", "stray"}, PopOf: []int{0, 0, 1, 1, -1},
+		PopNames: []string{"herd_a", "herd_b"}, Freqs: FreqPopulation, MinCallRate: 0.9}
+	tot, cols := runCalls(t, cfg, calls, nil)
+	for s := 0; s < 4; s++ {
+		if cols["sites_informative"][s] != 0 || !math.IsNaN(cols["f_grm"][s]) {
+			t.Errorf("sample %d: informative %v f_grm %v, want 0 and NA", s, cols["sites_informative"][s], cols["f_grm"][s])
+		}
+	}
+	// Cohort p = 5/10 = 1/2 over 5 samples; the stray heterozygote has
+	// f_grm = (1-1)^2/(1/2) - 1 = -1 and f_uniting = (1-2+1/2)/(1/2) = -1.
+	if cols["sites_informative"][4] != n || math.Abs(cols["f_grm"][4]+1) > 1e-9 || math.Abs(cols["f_uniting_gametes"][4]+1) > 1e-9 {
+		t.Errorf("stray: informative %v f_grm %v f_uniting %v", cols["sites_informative"][4], cols["f_grm"][4], cols["f_uniting_gametes"][4])
+	}
+	// Fixed different alleles: theta = 1 (Weir & Cockerham 1984).
+	if s := tot.PopulationSummary(); math.Abs(s["f_st"].(float64)-1) > 1e-9 {
+		t.Errorf("f_st %v, want 1", s["f_st"])
+	}
+}
+
+// TestHaploidCalls: haploid calls are counted apart and left out of
+// diploid statistics and of the estimators.
+func TestHaploidCalls(t *testing.T) {
+	calls := [][]vcfscan.Geno{
+		{vcfscan.HomRef, vcfscan.Het, vcfscan.HaploidAlt},
+		{vcfscan.HomAlt, vcfscan.Het, vcfscan.HaploidRef},
+	}
+	cfg := &Config{Samples: []string{"bull", "cow_1", "cow_2"}, MinCallRate: 0.9}
+	w := NewWorker(cfg, func(int) string { return "X" })
+	b := &vcfscan.Batch{NSamples: 3}
+	for i, c := range calls {
+		b.Records = append(b.Records, vcfscan.Record{Pos: int64(i + 1), Ref: []byte("A"), Alt: []byte("C"), InfoValue: math.NaN()})
+		b.GT = append(b.GT, c...)
+	}
+	var sites bytes.Buffer
+	w.ProcessBatch(b, &sites, nil, make([]float64, 2))
+	row := strings.Split(strings.SplitN(sites.String(), "\n", 2)[0], "\t")
+	// n_hom_ref n_het n_hom_alt n_missing n_haploid = 1 1 0 0 1; alt_freq 1/4; call_rate 2/3.
+	if strings.Join(row[4:12], " ") != "1 1 0 0 1 0.25 0.25 0.6666666666666666" {
+		t.Errorf("site row %v", row)
+	}
+	hdr, rows := w.Totals().SampleTable()
+	if rows[2][col(hdr, "n_haploid")] != "2" || rows[2][col(hdr, "sites_informative")] != "0" || rows[2][col(hdr, "f_hom")] != "NA" {
+		t.Errorf("haploid sample row %v", rows[2])
+	}
+}

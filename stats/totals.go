@@ -8,12 +8,22 @@ import (
 	"strings"
 )
 
-// SampleAcc is one sample's accumulated counts and fixed-point sums.
+// SampleAcc is one sample's accumulated counts and fixed-point sums,
+// relative to its frequency group's GroupBase: the sample's estimator sums
+// are Base.Sums + Sums, its informative sites Base.Sites - Uncalled.
 type SampleAcc struct {
 	Counts         [6]int64 // by vcfscan.Geno code
-	Informative    int64    // called diploid at sites with 0 < p < 1
-	HomInformative int64    // of those, homozygous
+	Uncalled       int64    // informative sites of its group without a diploid call
+	HetInformative int64    // heterozygous calls at informative sites
 	Sums           [nSums]Sum128
+}
+
+// GroupBase holds, for one frequency group (the cohort, or one
+// population), the homozygous-reference contributions of every
+// informative site (0 < p < 1) of that group.
+type GroupBase struct {
+	Sites int64
+	Sums  [nSums]Sum128
 }
 
 // GroupAcc accumulates one population's (or the pooled sample's)
@@ -119,7 +129,9 @@ type Totals struct {
 
 	Sites     int64 // kept records
 	PerSample []SampleAcc
-	Groups    []GroupAcc // per population, then the pooled sample
+	GroupOf   []int32     // per sample: its frequency group, index into Base
+	Base      []GroupBase // per frequency group
+	Groups    []GroupAcc  // per population, then the pooled sample
 	Blocks    map[BlockKey]*BlockAcc
 	HWE       HWESummary
 	Freq      FreqCounts
@@ -143,6 +155,7 @@ func newTotals(cfg *Config) *Totals {
 	if cfg.PopOf != nil {
 		t.Groups = make([]GroupAcc, len(cfg.PopNames)+1)
 	}
+	t.GroupOf, t.Base = freqGroups(cfg)
 	if cfg.Panel != nil {
 		t.Freq.PanelSize = int64(cfg.Panel.Len())
 	}
@@ -174,8 +187,18 @@ func (t *Totals) Merge(o *Totals) error {
 		for k := range a.Counts {
 			a.Counts[k] += b.Counts[k]
 		}
-		a.Informative += b.Informative
-		a.HomInformative += b.HomInformative
+		a.Uncalled += b.Uncalled
+		a.HetInformative += b.HetInformative
+		for k := range a.Sums {
+			a.Sums[k].AddSum(b.Sums[k])
+		}
+	}
+	if !slices.Equal(t.GroupOf, o.GroupOf) || len(t.Base) != len(o.Base) {
+		return fmt.Errorf("stats: merge: frequency groups differ: %w", ErrIncompatible)
+	}
+	for i := range t.Base {
+		a, b := &t.Base[i], &o.Base[i]
+		a.Sites += b.Sites
 		for k := range a.Sums {
 			a.Sums[k].AddSum(b.Sums[k])
 		}
@@ -242,26 +265,36 @@ func (t *Totals) Merge(o *Totals) error {
 
 // sampleEstimates are one sample's derived values.
 type sampleEstimates struct {
-	called                                 int64
+	called, informative, homInformative    int64
 	callRate, hetRate, homExp              float64
 	fHom, fGRM, fExcess, fUniting, fVanRad float64
 }
 
-func (t *Totals) estimates(a *SampleAcc) sampleEstimates {
+func (t *Totals) estimates(i int) sampleEstimates {
+	a := &t.PerSample[i]
+	base := &t.Base[t.GroupOf[i]]
 	var e sampleEstimates
 	e.called = a.Counts[0] + a.Counts[1] + a.Counts[2]
+	e.informative = base.Sites - a.Uncalled
+	e.homInformative = e.informative - a.HetInformative
 	e.callRate = ratio(float64(e.called), float64(t.Sites))
 	e.hetRate = ratio(float64(a.Counts[1]), float64(e.called))
-	n := float64(a.Informative)
-	e.homExp = a.Sums[sumHomExpected].Float64()
+	var sums [nSums]float64
+	for k := range sums {
+		s := base.Sums[k]
+		s.AddSum(a.Sums[k])
+		sums[k] = s.Float64()
+	}
+	n := float64(e.informative)
+	e.homExp = sums[sumHomExpected]
 	e.fHom, e.fGRM, e.fExcess, e.fUniting, e.fVanRad = nan, nan, nan, nan, nan
-	if a.Informative > 0 {
-		e.fHom = ratio(float64(a.HomInformative)-e.homExp, n-e.homExp)
-		e.fGRM = a.Sums[sumGRM].Float64() / n
-		e.fExcess = a.Sums[sumExcessHom].Float64() / n
-		e.fUniting = a.Sums[sumUniting].Float64() / n
-		if d := a.Sums[sumVRDen].Float64(); d > 0 {
-			e.fVanRad = a.Sums[sumVRNum].Float64()/d - 1
+	if e.informative > 0 {
+		e.fHom = ratio(float64(e.homInformative)-e.homExp, n-e.homExp)
+		e.fGRM = sums[sumGRM] / n
+		e.fExcess = sums[sumExcessHom] / n
+		e.fUniting = sums[sumUniting] / n
+		if d := sums[sumVRDen]; d > 0 {
+			e.fVanRad = sums[sumVRNum]/d - 1
 		}
 	} else {
 		e.homExp = nan
@@ -284,7 +317,7 @@ func (t *Totals) SampleTable() (header []string, rows [][]string) {
 	// Cohort mean and SD of het_rate for het_rate_outlier (fixed order).
 	var sum, sum2, m float64
 	for i := range t.PerSample {
-		est[i] = t.estimates(&t.PerSample[i])
+		est[i] = t.estimates(i)
 		if h := est[i].hetRate; !math.IsNaN(h) {
 			sum += h
 			m++
@@ -312,12 +345,12 @@ func (t *Totals) SampleTable() (header []string, rows [][]string) {
 			row = append(row, pop)
 		}
 		homObs := "NA"
-		if a.Informative > 0 {
-			homObs = itoa(a.HomInformative)
+		if e.informative > 0 {
+			homObs = itoa(e.homInformative)
 		}
 		row = append(row, itoa(e.called), itoa(a.Counts[0]), itoa(a.Counts[1]), itoa(a.Counts[2]),
 			itoa(a.Counts[3]), itoa(a.Counts[4]+a.Counts[5]),
-			ftoa(e.callRate), ftoa(e.hetRate), homObs, ftoa(e.homExp), itoa(a.Informative),
+			ftoa(e.callRate), ftoa(e.hetRate), homObs, ftoa(e.homExp), itoa(e.informative),
 			ftoa(e.fHom), ftoa(e.fGRM), ftoa(e.fExcess), ftoa(e.fUniting), ftoa(e.fVanRad))
 		var flags []string
 		if e.called == 0 {
@@ -339,4 +372,24 @@ func (t *Totals) SampleTable() (header []string, rows [][]string) {
 		rows = append(rows, row)
 	}
 	return header, rows
+}
+
+// freqGroups returns each sample's frequency group and the empty group
+// bases: one group (cohort or external frequencies), or with population
+// frequencies one per population plus the cohort group of unassigned
+// samples (last).
+func freqGroups(cfg *Config) ([]int32, []GroupBase) {
+	of := make([]int32, len(cfg.Samples))
+	if cfg.Freqs != FreqPopulation || cfg.PopOf == nil {
+		return of, make([]GroupBase, 1)
+	}
+	np := len(cfg.PopNames)
+	for s := range of {
+		if p := cfg.PopOf[s]; p >= 0 {
+			of[s] = int32(p)
+		} else {
+			of[s] = int32(np)
+		}
+	}
+	return of, make([]GroupBase, np+1)
 }

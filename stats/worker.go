@@ -10,23 +10,33 @@ import (
 
 var nan = math.NaN()
 
-// Per-sample fixed-point sums, indexes into SampleAcc.Sums.
+// Per-sample fixed-point sums, indexes into SampleAcc.Sums. The first
+// nVarying depend on the genotype; the others only on the site.
 const (
-	sumHomExpected = iota // E of f_hom: sum of 1 - 2pq*2n/(2n-1)
-	sumGRM                // Yang et al. F-hat-I terms
+	sumGRM         = iota // Yang et al. F-hat-I terms
 	sumExcessHom          // Yang et al. F-hat-II terms
 	sumUniting            // Yang et al. F-hat-III terms
 	sumVRNum              // VanRaden (x-2p)^2
+	sumHomExpected        // E of f_hom: sum of 1 - 2pq*2n/(2n-1)
 	sumVRDen              // VanRaden 2p(1-p)
 	nSums
+	nVarying = sumHomExpected
 )
 
-// siteTab is the per-site, per-frequency-group table of contributions of
-// each diploid genotype code, precomputed so that per-sample work is one
-// table look-up and a few 128-bit adds.
+// siteTab is the per-site, per-frequency-group table of contributions,
+// precomputed so that per-sample work is a table look-up and a few
+// 128-bit adds. Every informative site adds its homozygous-reference
+// contribution v0 once to the group's base (GroupBase); a sample then adds
+// only the difference for a heterozygous or homozygous-alternate call
+// (delta, genotype-varying sums only), or subtracts v0 when it has no
+// diploid call. Most calls at most sites are homozygous reference, so the
+// per-call work is small; the totals are the same integers as adding each
+// call's own contribution.
 type siteTab struct {
 	informative bool
-	v           [3][nSums]Sum128
+	v0          [nSums]Sum128
+	neg0        [nSums]Sum128       // -v0
+	delta       [3][nVarying]Sum128 // v[g] - v0 (delta[0] unused)
 }
 
 // fill computes the table for alternate-allele frequency p; corr is the
@@ -38,16 +48,25 @@ func (t *siteTab) fill(p, corr float64) {
 		return
 	}
 	d := 2 * p * (1 - p)
-	e := fixed(1 - d*corr)
-	den := fixed(d)
+	var v [3][nSums]Sum128
 	for g := 0; g < 3; g++ {
 		x := float64(g)
-		t.v[g][sumHomExpected] = e
-		t.v[g][sumGRM] = fixed((x-2*p)*(x-2*p)/d - 1)
-		t.v[g][sumExcessHom] = fixed(1 - x*(2-x)/d)
-		t.v[g][sumUniting] = fixed((x*x - (1+2*p)*x + 2*p*p) / d)
-		t.v[g][sumVRNum] = fixed((x - 2*p) * (x - 2*p))
-		t.v[g][sumVRDen] = den
+		v[g][sumGRM] = fixed((x-2*p)*(x-2*p)/d - 1)
+		v[g][sumExcessHom] = fixed(1 - x*(2-x)/d)
+		v[g][sumUniting] = fixed((x*x - (1+2*p)*x + 2*p*p) / d)
+		v[g][sumVRNum] = fixed((x - 2*p) * (x - 2*p))
+	}
+	v[0][sumHomExpected] = fixed(1 - d*corr)
+	v[0][sumVRDen] = fixed(d)
+	t.v0 = v[0]
+	for k := range t.v0 {
+		t.neg0[k] = t.v0[k].neg()
+	}
+	for g := 1; g < 3; g++ {
+		for k := 0; k < nVarying; k++ {
+			t.delta[g][k] = v[g][k]
+			t.delta[g][k].SubSum(v[0][k])
+		}
 	}
 }
 
@@ -83,19 +102,8 @@ func NewWorker(cfg *Config, contigName func(id int) string) *Worker {
 	if cfg.PopOf == nil {
 		w.nPop = 0
 	}
-	ns := len(cfg.Samples)
-	w.tabOf = make([]int32, ns)
-	nt := 1
-	if cfg.Freqs == FreqPopulation {
-		nt = w.nPop + 1 // last: cohort table for unassigned samples
-		for s := range w.tabOf {
-			if p := cfg.PopOf[s]; p >= 0 {
-				w.tabOf[s] = int32(p)
-			} else {
-				w.tabOf[s] = int32(w.nPop)
-			}
-		}
-	}
+	w.tabOf = w.t.GroupOf
+	nt := len(w.t.Base)
 	w.tabs = make([]siteTab, nt)
 	if w.nPop > 0 {
 		w.popCnt = make([][4]int64, w.nPop+1)
@@ -226,15 +234,20 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 
 	// Per-sample accumulation.
 	accs := t.PerSample
+	for k := range w.tabs {
+		if tab := &w.tabs[k]; tab.informative {
+			base := &t.Base[k]
+			base.Sites++
+			for j := range base.Sums {
+				base.Sums[j].AddSum(tab.v0[j])
+			}
+		}
+	}
 	if len(w.tabs) == 1 {
 		tab := &w.tabs[0]
 		if tab.informative {
 			for s, g := range calls {
-				acc := &accs[s]
-				acc.Counts[g]++
-				if g <= vcfscan.HomAlt {
-					acc.addInformative(g, &tab.v[g])
-				}
+				accs[s].addCall(g, tab)
 			}
 		} else {
 			for s, g := range calls {
@@ -243,16 +256,38 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 		}
 	} else {
 		for s, g := range calls {
-			acc := &accs[s]
-			acc.Counts[g]++
-			if g <= vcfscan.HomAlt {
-				if tab := &w.tabs[w.tabOf[s]]; tab.informative {
-					acc.addInformative(g, &tab.v[g])
-				}
+			if tab := &w.tabs[w.tabOf[s]]; tab.informative {
+				accs[s].addCall(g, tab)
+			} else {
+				accs[s].Counts[g]++
 			}
 		}
 	}
 	return used
+}
+
+// addCall adds one call at an informative site (see siteTab).
+func (a *SampleAcc) addCall(g vcfscan.Geno, tab *siteTab) {
+	a.Counts[g]++
+	switch g {
+	case vcfscan.HomRef:
+	case vcfscan.Het:
+		a.HetInformative++
+		d := &tab.delta[1]
+		for k := range d {
+			a.Sums[k].AddSum(d[k])
+		}
+	case vcfscan.HomAlt:
+		d := &tab.delta[2]
+		for k := range d {
+			a.Sums[k].AddSum(d[k])
+		}
+	default:
+		a.Uncalled++
+		for k := range tab.neg0 {
+			a.Sums[k].AddSum(tab.neg0[k])
+		}
+	}
 }
 
 func first(b []byte) byte {
@@ -268,16 +303,6 @@ func nCorr(n int64) float64 {
 		return 1
 	}
 	return float64(2*n) / float64(2*n-1)
-}
-
-func (a *SampleAcc) addInformative(g vcfscan.Geno, v *[nSums]Sum128) {
-	a.Informative++
-	if g != vcfscan.Het {
-		a.HomInformative++
-	}
-	for k := range a.Sums {
-		a.Sums[k].AddSum(v[k])
-	}
 }
 
 // siteStats returns observed and expected heterozygosity, f_site and the
