@@ -187,6 +187,7 @@ func newReader(src io.Reader, name, path string, opt Options, total int64) (*Rea
 		text = raw
 	}
 	tb := bufio.NewReaderSize(text, 1<<20)
+	src2 := text
 	if r.format == FormatVCFBGZF || r.format == FormatVCFGzip {
 		if m, _ := tb.Peek(4); bytes.Equal(m, bcfMagic2) {
 			if r.format == FormatVCFGzip {
@@ -226,9 +227,12 @@ func newReader(src io.Reader, name, path string, opt Options, total int64) (*Rea
 			return nil, err
 		}
 		tb = bufio.NewReaderSize(s, 1<<20)
+		src2 = s
 		r.lineBase = 0 // line numbers are unknown after a jump; errors carry the BGZF offset instead
 	}
-	r.text = tb
+	// Hand the chunker what the header reader buffered, then the stream
+	// itself, so that large reads skip the extra copy through bufio.
+	r.text = drainBuffered(tb, src2)
 	r.start(p)
 	return r, nil
 }
@@ -669,4 +673,17 @@ func (r *Reader) Close() error {
 		return err
 	}
 	return nil
+}
+
+// drainBuffered returns a reader of the bytes buffered in br followed by
+// the rest of br's source read directly.
+func drainBuffered(br *bufio.Reader, under io.Reader) io.Reader {
+	n := br.Buffered()
+	if n == 0 {
+		return under
+	}
+	head, _ := br.Peek(n)
+	head = append([]byte(nil), head...)
+	br.Discard(n)
+	return io.MultiReader(bytes.NewReader(head), under)
 }

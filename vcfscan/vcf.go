@@ -2,6 +2,7 @@ package vcfscan
 
 import (
 	"bytes"
+	"encoding/binary"
 	"fmt"
 	"math"
 	"strconv"
@@ -292,34 +293,62 @@ func (p *vcfParser) fastSamples(b *Batch, gt []Geno, samp []byte, lineNo int64) 
 	n := len(samp)
 	i := 0
 	dest := p.dest
-	for j := 0; j < p.nFile; j++ {
+	nFile := p.nFile
+	for j := 0; j < nFile; j++ {
+		// Two calls at a time: "a|b\tc|d\t" (or with '/') as one word.
+		if dest == nil {
+			for j+2 <= nFile && i+8 <= n {
+				w := binary.LittleEndian.Uint64(samp[i:])
+				if m := w & pairSepMask; m != pairPhased && m != pairUnphased {
+					break
+				}
+				c0 := gtPair[(w&0xff)|(w>>8)&0xff00]
+				c1 := gtPair[(w>>32)&0xff|(w>>40)&0xff00]
+				if c0 == slowGT || c1 == slowGT {
+					break
+				}
+				gt[j], gt[j+1] = c0, c1
+				i += 8
+				j += 2
+			}
+			if j >= nFile {
+				break
+			}
+		}
+		// Word at a time: "a/b\t" or "a|b\t" with a, b in {0, 1, .}.
+		if i+4 <= n {
+			w := binary.LittleEndian.Uint32(samp[i:])
+			if byte(w>>24) == '\t' && isPhaseSep[byte(w>>8)] {
+				if code := gt3[alleleClass[byte(w)]][alleleClass[byte(w>>16)]]; code != slowGT {
+					if dest == nil {
+						gt[j] = code
+					} else if o := dest[j]; o >= 0 {
+						gt[o] = code
+					}
+					i += 4
+					continue
+				}
+			}
+		}
 		if i > n {
-			return p.errf(lineNo, ErrSampleCount, "samples", "expected %d sample columns as in the #CHROM line, found %d", p.nFile, j)
+			return p.errf(lineNo, ErrSampleCount, "samples", "expected %d sample columns as in the #CHROM line, found %d", nFile, j)
+		}
+		end := n
+		if k := bytes.IndexByte(samp[i:], '\t'); k >= 0 {
+			end = i + k
+		}
+		g := samp[i:end]
+		if c := bytes.IndexByte(g, ':'); c >= 0 {
+			g = g[:c]
 		}
 		code := slowGT
-		if i+3 <= n && (samp[i+1] == '/' || samp[i+1] == '|') && (i+3 == n || samp[i+3] == '\t' || samp[i+3] == ':') {
-			code = gt3[alleleClass[samp[i]]][alleleClass[samp[i+2]]]
+		if len(g) == 3 && isPhaseSep[g[1]] {
+			code = gt3[alleleClass[g[0]]][alleleClass[g[2]]]
 		}
-		var next int
-		if code != slowGT && (i+3 == n || samp[i+3] == '\t') {
-			next = i + 4
-		} else {
-			k := bytes.IndexByte(samp[i:], '\t')
-			end := n
-			if k >= 0 {
-				end = i + k
-			}
-			next = end + 1
-			if code == slowGT {
-				g := samp[i:end]
-				if c := bytes.IndexByte(g, ':'); c >= 0 {
-					g = g[:c]
-				}
-				var err error
-				code, err = p.parseGT(g, lineNo, j)
-				if err != nil {
-					return err
-				}
+		if code == slowGT {
+			var err error
+			if code, err = p.parseGT(g, lineNo, j); err != nil {
+				return err
 			}
 		}
 		if dest == nil {
@@ -327,13 +356,31 @@ func (p *vcfParser) fastSamples(b *Batch, gt []Geno, samp []byte, lineNo int64) 
 		} else if o := dest[j]; o >= 0 {
 			gt[o] = code
 		}
-		i = next
+		i = end + 1
 	}
 	if i <= n {
-		return p.errf(lineNo, ErrSampleCount, "samples", "expected %d sample columns as in the #CHROM line, found %d", p.nFile, p.nFile+bytes.Count(samp[i:], []byte{'\t'})+1)
+		return p.errf(lineNo, ErrSampleCount, "samples", "expected %d sample columns as in the #CHROM line, found %d", nFile, nFile+bytes.Count(samp[i:], []byte{'\t'})+1)
 	}
 	return nil
 }
+
+var isPhaseSep = [256]bool{'/': true, '|': true}
+
+// Separator bytes of two calls read as one little-endian word.
+const (
+	pairSepMask  = 0xff00ff00ff00ff00
+	pairPhased   = uint64('|')<<8 | uint64('\t')<<24 | uint64('|')<<40 | uint64('\t')<<56
+	pairUnphased = uint64('/')<<8 | uint64('\t')<<24 | uint64('/')<<40 | uint64('\t')<<56
+)
+
+// gtPair maps first allele | second allele<<8 to the call code.
+var gtPair = func() *[65536]Geno {
+	var t [65536]Geno
+	for i := range t {
+		t[i] = gt3[alleleClass[byte(i)]][alleleClass[byte(i>>8)]]
+	}
+	return &t
+}()
 
 // slowSamples decodes sample columns with GT anywhere in FORMAT, masking
 // by DP/GQ and decoding PL/GL.
