@@ -204,16 +204,16 @@ func TestGenotypeDecoding(t *testing.T) {
 // skipped.
 func TestSitePolicy(t *testing.T) {
 	data := mini(
-		"1\t1\t.\tA\tG\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1", // kept
-		"1\t2\t.\tA\tG,T\t.\tPASS\t.\tGT\t0/0\t0/2\t1/1", // multiallelic (allele 2 is fine there)
-		"1\t3\t.\tAT\tA\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1", // indel
-		"1\t4\t.\tAT\tGC\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1", // MNP
+		"1\t1\t.\tA\tG\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1",     // kept
+		"1\t2\t.\tA\tG,T\t.\tPASS\t.\tGT\t0/0\t0/2\t1/1",   // multiallelic (allele 2 is fine there)
+		"1\t3\t.\tAT\tA\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1",    // indel
+		"1\t4\t.\tAT\tGC\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1",   // MNP
 		"1\t5\t.\tA\t<DEL>\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1", // symbolic
-		"1\t6\t.\tA\t*\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1", // spanning deletion
-		"1\t7\t.\tA\t.\t.\tPASS\t.\tGT\t0/0\t0/0\t0/0", // no ALT
-		"1\t8\t.\tA\tG\t.\tq10\t.\tGT\t0/0\t0/1\t1/1", // filtered
-		"1\t9\t.\tA\tG\t.\t.\t.\tDP\t1\t2\t3", // no GT
-		"1\t10\t.\tN\tG\t.\t.\t.\tGT\t0/0\t0/1\t1/1", // N is not a SNP base
+		"1\t6\t.\tA\t*\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1",     // spanning deletion
+		"1\t7\t.\tA\t.\t.\tPASS\t.\tGT\t0/0\t0/0\t0/0",     // no ALT
+		"1\t8\t.\tA\tG\t.\tq10\t.\tGT\t0/0\t0/1\t1/1",      // filtered
+		"1\t9\t.\tA\tG\t.\t.\t.\tDP\t1\t2\t3",              // no GT
+		"1\t10\t.\tN\tG\t.\t.\t.\tGT\t0/0\t0/1\t1/1",       // N is not a SNP base
 	)
 	res, err := readBytes(t, data, Options{})
 	if err != nil {
