@@ -215,11 +215,18 @@ func (t *Totals) PopulationSummary() map[string]any {
 	for i, name := range t.PopNames {
 		per[name] = ns[i]
 	}
+	var unassigned []string
+	for i, p := range t.PopOf {
+		if p < 0 && len(unassigned) < 100 {
+			unassigned = append(unassigned, t.Samples[i])
+		}
+	}
 	return map[string]any{
-		"names":              t.PopNames,
-		"n_samples":          per,
-		"samples_unassigned": int64(len(t.PopOf)) - ns[len(t.PopNames)],
-		"f_st":               jsonFloat(fst), "f_st_se": jsonFloat(fstSE),
+		"names":                t.PopNames,
+		"unassigned_first_100": unassigned,
+		"n_samples":            per,
+		"samples_unassigned":   int64(len(t.PopOf)) - ns[len(t.PopNames)],
+		"f_st":                 jsonFloat(fst), "f_st_se": jsonFloat(fstSE),
 		"f_is": jsonFloat(fis), "f_is_se": jsonFloat(fisSE),
 		"f_it": jsonFloat(fit), "f_it_se": jsonFloat(fitSE),
 		"sites_used":         n,

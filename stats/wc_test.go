@@ -146,3 +146,30 @@ func TestIslandModel(t *testing.T) {
 		}
 	}
 }
+
+// TestWeirCockerhamAgainstR compares the genome-wide theta, f and F on
+// cohort189 in three invented herds (popConfig) with an independent plain-R
+// implementation of Weir & Cockerham (1984) summed over both alleles
+// (testdata/snpstats/wc_theta.R, output wc_theta.tsv; R 4.2.2). Debian's
+// archive has no r-cran-hierfstat, which was tried first
+// (apt-cache policy r-cran-hierfstat: no candidate).
+func TestWeirCockerhamAgainstR(t *testing.T) {
+	fx := readVCFFixture(t, "../testdata/cohort189.vcf.gz")
+	tot, _, _ := fx.run(t, popConfig(fx, 1_000_000), 0, len(fx.recs), 40)
+	_, ref, _ := readTSV(t, "../testdata/snpstats/wc_theta.tsv")
+	s := tot.PopulationSummary()
+	for _, c := range [][2]string{{"theta", "f_st"}, {"f", "f_is"}, {"F", "f_it"}, {"sites", "sites_used"}} {
+		want, _ := strconv.ParseFloat(ref[c[0]][1], 64)
+		var got float64
+		switch v := s[c[1]].(type) {
+		case float64:
+			got = v
+		case int64:
+			got = float64(v)
+		}
+		// Fixed-point sums: about 1e-10 per site.
+		if math.Abs(got-want) > 1e-8 {
+			t.Errorf("%s: %v, R %v", c[1], got, want)
+		}
+	}
+}
