@@ -8,7 +8,6 @@ import (
 	"strconv"
 
 	"github.com/biogo/hts/bgzf"
-	"github.com/biogo/hts/tabix"
 
 	"fgauge/vcfscan"
 )
@@ -113,17 +112,11 @@ type tbiRecord struct {
 	pos   int64
 }
 
-func (t tbiRecord) RefName() string { return t.chrom }
-
-// Start and End are 0-based; End = Start keeps biogo's linear index from
-// splitting a one-base record across a 16 kb tile boundary. The bin is
-// still one that contains the record.
-func (t tbiRecord) Start() int { return int(t.pos - 1) }
-func (t tbiRecord) End() int   { return int(t.pos - 1) }
+func voff(o bgzf.Offset) uint64 { return uint64(o.File)<<16 | uint64(o.Block) }
 
 // WriteVCFBGZF writes the calls as BGZF-compressed VCF to path and a
 // tabix index to path + ".tbi" (SAMtools hts-specs, "The Tabix index
-// file format"). Output is byte-identical for the same Config.
+// file format"; see tabixIndex). Output is byte-identical for the same Config.
 func WriteVCFBGZF(path string, r *Result) (err error) {
 	f, err := os.Create(path)
 	if err != nil {
@@ -161,16 +154,14 @@ func WriteVCFBGZF(path string, r *Result) (err error) {
 	if err != nil {
 		return err
 	}
-	idx := tabix.New()
-	idx.Format, idx.NameColumn, idx.BeginColumn, idx.EndColumn = 2, 1, 2, 0
-	idx.MetaChar, idx.Skip = '#', 0
+	idx := &tabixIndex{}
 	var pending *tbiRecord
 	var pendingBegin bgzf.Offset
 	addPending := func(end bgzf.Offset) error {
-		if pending == nil {
-			return nil
+		if pending != nil {
+			idx.add(pending.chrom, pending.pos-1, pending.pos, voff(pendingBegin), voff(end))
 		}
-		return idx.Add(*pending, bgzf.Chunk{Begin: pendingBegin, End: end}, true, true)
+		return nil
 	}
 	var line []byte
 	err = r.ForEachSite(func(s *Site) error {
@@ -209,7 +200,7 @@ func WriteVCFBGZF(path string, r *Result) (err error) {
 	return writeTabix(path+".tbi", idx)
 }
 
-func writeTabix(path string, idx *tabix.Index) (err error) {
+func writeTabix(path string, idx *tabixIndex) (err error) {
 	f, err := os.Create(path)
 	if err != nil {
 		return err
@@ -223,7 +214,7 @@ func writeTabix(path string, idx *tabix.Index) (err error) {
 	if err != nil {
 		return err
 	}
-	if err := tabix.WriteTo(bg, idx); err != nil {
+	if err := idx.writeTo(bg); err != nil {
 		return err
 	}
 	return bg.Close()

@@ -103,6 +103,10 @@ func (p *Pedigree) Dam(i int) int { return int(p.dam[i]) }
 // SexOf returns the sex of animal i as given (SexUnknown when not given).
 func (p *Pedigree) SexOf(i int) Sex { return p.sex[i] }
 
+// Line returns the input line of animal i, or 0 for an animal added because
+// it appears only as a parent (or built in memory).
+func (p *Pedigree) Line(i int) int { return p.line[i] }
+
 // Index returns the position of id, and false when id is not in the pedigree.
 func (p *Pedigree) Index(id string) (int, bool) {
 	i, ok := p.index[id]

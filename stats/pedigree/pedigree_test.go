@@ -267,3 +267,20 @@ func FuzzRead(f *testing.F) {
 		}
 	})
 }
+
+func TestReadPairs(t *testing.T) {
+	p := mustRead(t, "s\t0\t0\nd\t0\t0\nb\ts\td\ng\ts\td\n")
+	pairs, err := p.ReadPairs(strings.NewReader("id_a id_b\nb g\n# note\ns\tb\n"), "pairs.tsv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	co, _ := p.Coancestry(pairs, nil)
+	// Full sibs 1/4, parent-offspring 1/4 (common practice).
+	if len(co) != 2 || co[0] != 0.25 || co[1] != 0.25 {
+		t.Errorf("coancestries %v, want [0.25 0.25]", co)
+	}
+	_, err = p.ReadPairs(strings.NewReader("b\tg\nb\tzz\n"), "pairs.tsv")
+	if !errors.Is(err, ErrUnknownID) || !strings.HasPrefix(err.Error(), "pairs.tsv:2:") {
+		t.Errorf("unknown id error = %v", err)
+	}
+}

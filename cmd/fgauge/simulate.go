@@ -1,0 +1,177 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+
+	"fgauge/roh/simulate"
+)
+
+func simulateHelp() string {
+	var b strings.Builder
+	b.WriteString(`Drops genomes through a pedigree and writes, to the output folder:
+  simulated.vcf.gz (+ .tbi)  BGZF VCF of the observed calls
+  truth_samples.tsv          sample replicate design class f_pedigree f_realized autozygous_bp n_segments
+  truth_segments.tsv         sample chrom start end length_bp start_cm end_cm n_sites, one line per
+                             autozygous segment (both copies from the same founder chromosome copy)
+  pedigree.tsv               id sire dam sex of every simulated animal
+
+Founder chromosomes are mosaics of a small ancestral haplotype pool, so
+unrelated founders share short old segments by state; only segments that
+trace to the same founder copy count as autozygous in the truth.
+Crossovers follow Haldane's no-interference model along the genetic map.
+The same --seed gives byte-identical files.
+
+Built-in designs (--design, comma-separated or repeated; kind[:generations[:herd_size[:sires]]]):
+`)
+	kinds := make([]string, 0, len(simulate.DesignKinds))
+	for k := range simulate.DesignKinds {
+		kinds = append(kinds, k)
+	}
+	sort.Strings(kinds)
+	for _, k := range kinds {
+		fmt.Fprintf(&b, "  %-17s %s\n", k, simulate.DesignKinds[k])
+	}
+	return b.String()
+}
+
+// runSimulate simulates a pedigree's genomes and writes VCF and truth.
+func runSimulate(ctx context.Context, env *runEnv, args []string) error {
+	fs := newFlagSet(env.stderr, "simulate", "simulate [options] [-o DIR]", simulateHelp())
+	var designs listFlag
+	outDir := fs.String("o", "fgauge_simulated", "output `DIR`ectory (created if needed)")
+	seed := fs.Uint64("seed", 1, "random seed; the same seed gives the same files")
+	pedFile := fs.String("pedigree", "", "pedigree `FILE` (id sire dam [sex]) to drop genomes through")
+	fs.Var(&designs, "design", "built-in `DESIGN` to add (see below); repeatable or comma-separated")
+	reps := fs.Int("replicates", 1, "independent copies of the whole pedigree, ids suffixed _r1, _r2, ...")
+	chroms := fs.String("chromosomes", "1:100e6:100,2:80e6:80,3:60e6:60", "chromosomes as `name:length_bp:length_cm,...`")
+	mapFile := fs.String("genetic-map", "", "genetic map `FILE` (chrom pos cM) replacing the linear maps")
+	spacing := fs.Float64("site-spacing", 30000, "mean distance between sites in `bp` (array-like ~20000-50000, sequence-like ~1000)")
+	spectrum := fs.String("spectrum", "u_shaped", "ancestral allele frequencies: u_shaped (Beta(1/2,1/2), array-like) or neutral (1/x, sequence-like)")
+	minMAF := fs.Float64("min-maf", 0, "drop sites with ancestral-pool minor allele frequency below this")
+	pool := fs.Int("ancestral-haplotypes", 40, "size of the ancestral haplotype pool founders are built from")
+	pieceCM := fs.Float64("ancestral-segment-cm", 0.5, "mean length in cM of the ancestral pieces of founder chromosomes")
+	gErr := fs.Float64("genotype-error", 0, "chance a call is replaced by another genotype")
+	miss := fs.Float64("missing-rate", 0, "chance a call is set missing")
+	depth := fs.Float64("depth", 0, "mean read depth; > 0 simulates reads and writes GT:DP:PL")
+	readErr := fs.Float64("read-error", 0.01, "per-base error of simulated reads (with --depth)")
+	truthOnly := fs.Bool("truth-only", false, "skip sites and the VCF; write only the truth tables and the pedigree")
+	pos, err := parseInterleaved(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) != 0 {
+		return usagef("simulate: unexpected argument %q (run 'fgauge simulate --help')", pos[0])
+	}
+	cfg := simulate.Config{
+		Seed: *seed, SiteSpacing: *spacing, MinMAF: *minMAF,
+		AncestralHaplotypes: *pool, AncestralSegmentCM: *pieceCM,
+		Replicates: *reps, GenotypeError: *gErr, MissingRate: *miss,
+		Depth: *depth, ReadError: *readErr, NoSites: *truthOnly,
+	}
+	if *reps < 1 {
+		return usagef("simulate: --replicates must be at least 1")
+	}
+	if *pool < 2 || *pieceCM <= 0 || *spacing < 1 {
+		return usagef("simulate: --ancestral-haplotypes must be >= 2, --ancestral-segment-cm and --site-spacing positive")
+	}
+	switch *spectrum {
+	case "u_shaped":
+		cfg.Spectrum = simulate.SpectrumUShaped
+	case "neutral":
+		cfg.Spectrum = simulate.SpectrumNeutral
+	default:
+		return usagef("simulate: --spectrum %q: want u_shaped or neutral", *spectrum)
+	}
+	if cfg.Chromosomes, err = simulate.ParseChromosomes(*chroms); err != nil {
+		return usagef("simulate: --chromosomes: %v", err)
+	}
+	for _, list := range designs {
+		for _, s := range strings.Split(list, ",") {
+			d, err := simulate.ParseDesign(s)
+			if err != nil {
+				return usagef("simulate: --design: %v", err)
+			}
+			cfg.Designs = append(cfg.Designs, d)
+		}
+	}
+	if *pedFile != "" {
+		if cfg.Pedigree, err = readPedigreeFile(*pedFile); err != nil {
+			return err
+		}
+	}
+	if cfg.Pedigree == nil && len(cfg.Designs) == 0 {
+		return usagef("simulate: give --pedigree FILE or at least one --design (run 'fgauge simulate --help')")
+	}
+	if *mapFile != "" {
+		f, err := os.Open(*mapFile)
+		if err != nil {
+			return usagef("simulate: %v", err)
+		}
+		cfg.Map, err = simulate.ReadGeneticMap(f, *mapFile)
+		f.Close()
+		if err != nil {
+			return usagef("simulate: %v", err)
+		}
+	}
+	res, err := simulate.Run(cfg)
+	if errors.Is(err, simulate.ErrConfig) {
+		return usagef("simulate: %v", err)
+	}
+	if err != nil {
+		return err
+	}
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+	paths, err := writeSimulation(*outDir, res)
+	if err != nil {
+		return err
+	}
+	var nsites int
+	if !*truthOnly {
+		for c := range res.Chromosomes {
+			nsites += res.NumSites(c)
+		}
+	}
+	fmt.Fprintf(env.stderr, "fgauge simulate: %d animals, %d sites, %d autozygous segments; wrote %s\n",
+		len(res.Samples), nsites, len(res.Segments), strings.Join(paths, ", "))
+	return nil
+}
+
+// writeSimulation writes the VCF (unless the run has no sites), the truth
+// tables and the pedigree into dir and returns the paths written.
+func writeSimulation(dir string, res *simulate.Result) ([]string, error) {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return nil, err
+	}
+	var paths []string
+	if !res.Config.NoSites {
+		p := filepath.Join(dir, "simulated.vcf.gz")
+		if err := simulate.WriteVCFBGZF(p, res); err != nil {
+			return nil, fmt.Errorf("writing %s: %w", p, err)
+		}
+		paths = append(paths, p)
+	}
+	for _, t := range []struct {
+		name string
+		fn   func(io.Writer, *simulate.Result) error
+	}{
+		{"truth_samples.tsv", simulate.WriteSamplesTruth},
+		{"truth_segments.tsv", simulate.WriteSegmentsTruth},
+		{"pedigree.tsv", simulate.WritePedigree},
+	} {
+		p := filepath.Join(dir, t.name)
+		if err := writeFileOrStdout(nil, p, func(w io.Writer) error { return t.fn(w, res) }); err != nil {
+			return nil, fmt.Errorf("writing %s: %w", p, err)
+		}
+		paths = append(paths, p)
+	}
+	return paths, nil
+}

@@ -1,0 +1,50 @@
+package pedigree
+
+import (
+	"bufio"
+	"bytes"
+	"fmt"
+	"io"
+)
+
+// ReadPairs reads pairs of ids, two per line (tab- or space-separated),
+// for Coancestry. Blank lines and '#' comments are skipped; a first line
+// whose two ids are both unknown is taken as a header. Any other unknown id
+// is an error naming the line (ErrUnknownID).
+func (p *Pedigree) ReadPairs(r io.Reader, name string) ([][2]int, error) {
+	sc := bufio.NewScanner(r)
+	sc.Buffer(make([]byte, 64*1024), 1<<20)
+	var out [][2]int
+	line := 0
+	first := true
+	for sc.Scan() {
+		line++
+		b := bytes.TrimSpace(sc.Bytes())
+		if len(b) == 0 || b[0] == '#' {
+			continue
+		}
+		f := bytes.Fields(b)
+		if len(f) < 2 {
+			return nil, &Error{File: name, Line: line, Err: ErrMalformed, Msg: "want two ids"}
+		}
+		a, okA := p.index[string(f[0])]
+		c, okC := p.index[string(f[1])]
+		if first && !okA && !okC {
+			first = false
+			continue
+		}
+		first = false
+		if !okA || !okC {
+			missing := string(f[0])
+			if okA {
+				missing = string(f[1])
+			}
+			return nil, &Error{File: name, Line: line, Err: ErrUnknownID, Msg: fmt.Sprintf("%q", missing)}
+		}
+		out = append(out, [2]int{int(a), int(c)})
+	}
+	if err := sc.Err(); err != nil {
+		return nil, &Error{File: name, Line: line + 1, Err: ErrMalformed, Msg: err.Error()}
+	}
+	return out, nil
+}
