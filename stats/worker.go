@@ -23,6 +23,13 @@ const (
 	nVarying = sumHomExpected
 )
 
+// addCall unrolls the genotype-varying sums; these fail to compile if
+// their number changes.
+var (
+	_ [nVarying - 4]struct{}
+	_ [4 - nVarying]struct{}
+)
+
 // siteTab is the per-site, per-frequency-group table of contributions,
 // precomputed so that per-sample work is a table look-up and a few
 // 128-bit adds. Every informative site adds its homozygous-reference
@@ -36,7 +43,7 @@ type siteTab struct {
 	informative bool
 	v0          [nSums]Sum128
 	neg0        [nSums]Sum128       // -v0
-	delta       [3][nVarying]Sum128 // v[g] - v0 (delta[0] unused)
+	delta       [3][nVarying]Sum128 // v[g] - v0 (delta[0] is zero)
 }
 
 // fill computes the table for alternate-allele frequency p; corr is the
@@ -266,27 +273,23 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 	return used
 }
 
-// addCall adds one call at an informative site (see siteTab).
+// addCall adds one call at an informative site (see siteTab). Diploid
+// calls take the same branch-free path (delta[0] is zero) so random
+// genotypes cost no mispredicted branches.
 func (a *SampleAcc) addCall(g vcfscan.Geno, tab *siteTab) {
 	a.Counts[g]++
-	switch g {
-	case vcfscan.HomRef:
-	case vcfscan.Het:
-		a.HetInformative++
-		d := &tab.delta[1]
-		for k := range d {
-			a.Sums[k].AddSum(d[k])
-		}
-	case vcfscan.HomAlt:
-		d := &tab.delta[2]
-		for k := range d {
-			a.Sums[k].AddSum(d[k])
-		}
-	default:
-		a.Uncalled++
-		for k := range tab.neg0 {
-			a.Sums[k].AddSum(tab.neg0[k])
-		}
+	if g <= vcfscan.HomAlt {
+		a.HetInformative += int64(g & 1)
+		d := &tab.delta[g]
+		a.Sums[0].AddSum(d[0])
+		a.Sums[1].AddSum(d[1])
+		a.Sums[2].AddSum(d[2])
+		a.Sums[3].AddSum(d[3])
+		return
+	}
+	a.Uncalled++
+	for k := range tab.neg0 {
+		a.Sums[k].AddSum(tab.neg0[k])
 	}
 }
 
