@@ -3,7 +3,9 @@ package main
 import (
 	"bufio"
 	"context"
+	"errors"
 	"fmt"
+	"io/fs"
 	"os"
 	"strings"
 
@@ -43,6 +45,10 @@ func runReport(ctx context.Context, env *runEnv, args []string) error {
 		}
 	}
 	if err := htmlreport.Write(pos[0], opt); err != nil {
+		if errors.Is(err, fs.ErrNotExist) || errors.Is(err, htmlreport.ErrMalformed) {
+			// a folder that is not a scan's output is bad input (exit 2)
+			return usagef("%v", err)
+		}
 		return err
 	}
 	fmt.Fprintln(env.stderr, "fgauge: wrote", pos[0]+"/report.html")

@@ -340,6 +340,7 @@ func scanSites(path string, r io.Reader) (siteSummary, error) {
 
 // fSiteBin maps f in [-1,1] (clamped) to its histogram bin.
 func fSiteBin(x float64) int {
+	x = math.Max(-1, math.Min(1, x))
 	i := int((x + 1) / 2 * fSiteBins)
 	return max(0, min(fSiteBins-1, i))
 }

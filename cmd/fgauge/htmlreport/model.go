@@ -258,16 +258,17 @@ func fmtExact(x float64) string {
 	return strconv.FormatFloat(x, 'g', -1, 64)
 }
 
-// visible replaces control characters in a name with a visible escape
-// (\x01), so what the page shows can be told apart and copied.
+// visible replaces control and invisible format characters (such as
+// bidirectional overrides) in a name with a visible escape (\x01,
+// \u202e), so what the page shows can be told apart and copied.
 func visible(s string) string {
-	if strings.IndexFunc(s, unicode.IsControl) < 0 {
+	if strings.IndexFunc(s, hidden) < 0 {
 		return s
 	}
 	var b strings.Builder
 	for _, r := range s {
-		if unicode.IsControl(r) {
-			q := strconv.QuoteRune(r)
+		if hidden(r) {
+			q := strconv.QuoteRuneToASCII(r)
 			b.WriteString(q[1 : len(q)-1])
 			continue
 		}
@@ -275,6 +276,8 @@ func visible(s string) string {
 	}
 	return b.String()
 }
+
+func hidden(r rune) bool { return unicode.IsControl(r) || unicode.Is(unicode.Cf, r) }
 
 // fmtPct formats a share in [0,1] as a percentage with 1 decimal.
 func fmtPct(x float64) string {

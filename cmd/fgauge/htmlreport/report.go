@@ -97,6 +97,20 @@ type strTable struct {
 	Rows   [][]cell
 }
 
+// pooledView is the all_pooled row of populations.tsv: genome-wide Weir &
+// Cockerham estimates with jackknife standard errors.
+type pooledView struct{ FST, FSTSE, FIT, FITSE, FIS cell }
+
+func pooled(t *table) *pooledView {
+	for r := range t.rows {
+		if t.str(r, "population") == "all_pooled" {
+			return &pooledView{newCell(t.num(r, "f_st")), newCell(t.num(r, "f_st_se")), newCell(t.num(r, "f_it")),
+				newCell(t.num(r, "f_it_se")), newCell(t.num(r, "f_is"))}
+		}
+	}
+	return nil
+}
+
 // popTable shows populations.tsv with numbers rounded for reading (the
 // exact value stays in data-value).
 func popTable(t *table) *strTable {
@@ -130,6 +144,7 @@ type reportView struct {
 	Fig             figures
 	HasPops         bool
 	PopTable        *strTable
+	Pooled          *pooledView
 	HasPopCol       bool
 	TableCols       []string
 	SampleRows      []sampleRowView
@@ -208,6 +223,7 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 	v.HasPops = d.pops != nil || d.pairs != nil
 	if d.pops != nil {
 		v.PopTable = popTable(d.pops)
+		v.Pooled = pooled(d.pops)
 	}
 	v.HasPopCol = c.pops != nil
 	v.TableCols = append([]string{"call_rate", "het_rate"}, c.ests...)

@@ -407,3 +407,35 @@ func TestMedianAndFormats(t *testing.T) {
 		t.Errorf("shellJoin = %s", got)
 	}
 }
+
+func TestPooledAndHighlight(t *testing.T) {
+	dir, names := writeReport(t, fixtureOpts{n: 30, runs: true, populations: true, sitesPerChr: 20},
+		Options{PerSample: true, Highlight: []string{"MOOR-002", "HILL-003", "not-in-cohort"}})
+	b, err := os.ReadFile(filepath.Join(dir, "report.html"))
+	must(t, err)
+	s := string(b)
+	// values of the all_pooled row written by the fixture
+	for k, v := range map[string]string{"f_st": "0.05", "f_is": "0.03", "f_it": "0.08"} {
+		if !strings.Contains(s, `data-pooled="`+k+`" data-value="`+v+`"`) {
+			t.Errorf("pooled %s not shown as %s", k, v)
+		}
+	}
+	if !strings.Contains(s, "Shown: the samples listed with --highlight") {
+		t.Error("painting does not say it shows the highlighted samples")
+	}
+	m := regexp.MustCompile(`data-plot="fig_painting" data-kind="painting" data-points="(\d+)"`).FindStringSubmatch(s)
+	runs := 0
+	for _, r := range rowsOf(t, filepath.Join(dir, "runs.tsv")) {
+		if r["sample"] == "MOOR-002" || r["sample"] == "HILL-003" {
+			runs++
+		}
+	}
+	if m == nil || m[1] != strconv.Itoa(runs) {
+		t.Errorf("painting draws %v runs, the two highlighted samples have %d", m, runs)
+	}
+	entries, err := os.ReadDir(filepath.Join(dir, "samples"))
+	must(t, err)
+	if len(entries) != 5 { // 2 pages, 2 json, index
+		t.Errorf("%d files in samples/ with two highlighted samples (of %d)", len(entries), len(names))
+	}
+}
