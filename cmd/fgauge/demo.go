@@ -1,0 +1,443 @@
+package main
+
+import (
+	"bufio"
+	"context"
+	"fmt"
+	"io"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"sort"
+	"strconv"
+	"strings"
+
+	"fgauge/roh/simulate"
+	"fgauge/stats/pedigree"
+)
+
+const demoHelp = `The demo invents a small cooperative of four heritage-breed goat herds
+(Hillside, Brookend, Fernlea, Stonegate; ids like HILL-017). One buck,
+FERN-001, was used by artificial insemination in every herd; a few close-kin
+matings happened (a full-sib mating at Brookend, a half-sib mating at
+Hillside, a sire-daughter mating at Stonegate, a first-cousin mating at
+Fernlea); the rest of the herd is mostly unrelated. Genomes are simulated
+with a fixed seed at SNP-array density, written to DIR, and scanned with
+every statistic, ROH and the pedigree comparison on. Everything is
+invented: no real animals, farms or people.
+
+Files in DIR: cohort.vcf.gz (+ .tbi), pedigree.tsv, herds.tsv (sample, herd),
+truth_samples.tsv and truth_segments.tsv (what the simulation knows), and
+scan/ with the scan's tables.
+`
+
+// demoSeed fixes the demo's data.
+const demoSeed = 20260417
+
+// runDemo simulates the demo cohort, scans it and prints a summary.
+func runDemo(ctx context.Context, env *runEnv, args []string) error {
+	fs := newFlagSet(env.stderr, "demo", "demo [-o DIR]", demoHelp)
+	dir := fs.String("o", "fgauge_demo", "output `DIR`ectory (created if needed)")
+	pos, err := parseInterleaved(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) != 0 {
+		return usagef("demo: unexpected argument %q", pos[0])
+	}
+	if err := os.MkdirAll(*dir, 0o755); err != nil {
+		return err
+	}
+	recs, herdOf := demoHerdBook()
+	ped, err := pedigree.FromRecords(recs, "demo herd book")
+	if err != nil {
+		return fmt.Errorf("demo: %w", err)
+	}
+	res, err := simulate.Run(simulate.Config{
+		Seed: demoSeed,
+		Chromosomes: []simulate.Chromosome{
+			{Name: "1", LengthBP: 150_000_000, LengthCM: 140},
+			{Name: "2", LengthBP: 135_000_000, LengthCM: 125},
+			{Name: "3", LengthBP: 120_000_000, LengthCM: 112},
+			{Name: "4", LengthBP: 118_000_000, LengthCM: 108},
+			{Name: "5", LengthBP: 105_000_000, LengthCM: 100},
+		},
+		SiteSpacing:         35_000,
+		MinMAF:              0.02,
+		AncestralHaplotypes: 24, // a small heritage breed: founders share old segments
+		AncestralSegmentCM:  1,
+		Pedigree:            ped,
+		GenotypeError:       0.002,
+		MissingRate:         0.01,
+	})
+	if err != nil {
+		return fmt.Errorf("demo: %w", err)
+	}
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+	vcfPath := filepath.Join(*dir, "cohort.vcf.gz")
+	pedPath := filepath.Join(*dir, "pedigree.tsv")
+	popPath := filepath.Join(*dir, "herds.tsv")
+	if err := simulate.WriteVCFBGZF(vcfPath, res); err != nil {
+		return fmt.Errorf("demo: writing %s: %w", vcfPath, err)
+	}
+	files := []struct {
+		name string
+		fn   func(io.Writer) error
+	}{
+		{"pedigree.tsv", func(w io.Writer) error { return simulate.WritePedigree(w, res) }},
+		{"truth_samples.tsv", func(w io.Writer) error { return simulate.WriteSamplesTruth(w, res) }},
+		{"truth_segments.tsv", func(w io.Writer) error { return simulate.WriteSegmentsTruth(w, res) }},
+		{"herds.tsv", func(w io.Writer) error {
+			bw := bufio.NewWriter(w)
+			bw.WriteString("sample\tpopulation\n")
+			for _, s := range res.Samples {
+				fmt.Fprintf(bw, "%s\t%s\n", s.ID, herdOf[s.ID])
+			}
+			return bw.Flush()
+		}},
+	}
+	for _, f := range files {
+		p := filepath.Join(*dir, f.name)
+		if err := writeFileOrStdout(nil, p, f.fn); err != nil {
+			return fmt.Errorf("demo: writing %s: %w", p, err)
+		}
+	}
+	fmt.Fprintf(env.stdout, "Demo cohort: %d goats in 4 herds, %d SNPs on 5 chromosomes, written to %s\n",
+		len(res.Samples), countSites(res), *dir)
+
+	scanDir := filepath.Join(*dir, "scan")
+	scanErr := runScan(ctx, &runEnv{stdout: io.Discard, stderr: env.stderr, stdin: env.stdin, argv: env.argv},
+		[]string{vcfPath, "-o", scanDir, "--populations", popPath, "--pedigree", pedPath})
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+	fpedOf := map[string]float64{}
+	for _, s := range res.Samples {
+		fpedOf[s.ID] = s.FPedigree
+	}
+	var genomic map[string]float64
+	var genomicCol string
+	if scanErr == nil {
+		genomic, genomicCol, err = readGenomicF(filepath.Join(scanDir, "samples.tsv"))
+		if err != nil {
+			fmt.Fprintf(env.stdout, "\n(The scan ran but its samples table could not be read: %v)\n", err)
+		}
+	} else {
+		fmt.Fprintf(env.stdout, "\nThe scan step did not run (%v); the summary below uses pedigree F only.\n", scanErr)
+	}
+	writeDemoSummary(env.stdout, ped, fpedOf, genomic, genomicCol, scanDir, scanErr == nil)
+	return nil
+}
+
+func countSites(res *simulate.Result) int {
+	n := 0
+	for c := range res.Chromosomes {
+		n += res.NumSites(c)
+	}
+	return n
+}
+
+// demoHerdBook writes the invented herd book: four herds, one popular AI
+// buck, four planned close-kin matings, otherwise matings between animals
+// with coancestry below 1/32.
+func demoHerdBook() ([]pedigree.Record, map[string]string) {
+	rng := rand.New(rand.NewPCG(demoSeed, 1))
+	herds := []string{"HILL", "BROOK", "FERN", "STONE"}
+	herdOf := map[string]string{}
+	var recs []pedigree.Record
+	next := map[string]int{}
+	add := func(herd, sire, dam string, sex pedigree.Sex) string {
+		next[herd]++
+		id := fmt.Sprintf("%s-%03d", herd, next[herd])
+		recs = append(recs, pedigree.Record{ID: id, Sire: sire, Dam: dam, Sex: sex})
+		herdOf[id] = herd
+		return id
+	}
+	sexOf := func(k int) pedigree.Sex {
+		if k%2 == 0 {
+			return pedigree.SexMale
+		}
+		return pedigree.SexFemale
+	}
+	type herdAnimals struct{ bucks, does []string }
+	h := map[string]*herdAnimals{}
+	// Founders: two bucks and eight does per herd.
+	for _, hd := range herds {
+		a := &herdAnimals{}
+		for k := 0; k < 2; k++ {
+			a.bucks = append(a.bucks, add(hd, "", "", pedigree.SexMale))
+		}
+		for k := 0; k < 8; k++ {
+			a.does = append(a.does, add(hd, "", "", pedigree.SexFemale))
+		}
+		h[hd] = a
+	}
+	popular := "FERN-001"
+	// Generation 1: one kid per founder doe from the herd's own bucks; at
+	// Brookend and Fernlea the first doe has twins, a buck and a doe.
+	gen1 := map[string]*herdAnimals{}
+	for _, hd := range herds {
+		a := &herdAnimals{}
+		for k, d := range h[hd].does {
+			s := h[hd].bucks[k%2]
+			kid := add(hd, s, d, sexOf(k))
+			if sexOf(k) == pedigree.SexMale {
+				a.bucks = append(a.bucks, kid)
+			} else {
+				a.does = append(a.does, kid)
+			}
+			if (hd == "BROOK" || hd == "FERN") && k == 0 {
+				a.does = append(a.does, add(hd, s, d, pedigree.SexFemale)) // twin sister
+			}
+		}
+		gen1[hd] = a
+	}
+	kin := func(a, b string) float64 {
+		p, err := pedigree.FromRecords(recs, "demo")
+		if err != nil {
+			panic(err) // the herd book is built here and has no loops
+		}
+		i, _ := p.Index(a)
+		j, _ := p.Index(b)
+		c, _ := p.Coancestry([][2]int{{i, j}}, nil)
+		return c[0]
+	}
+	// pick returns a mate from pool that is not closely related to partner.
+	pick := func(pool []string, partner string) string {
+		for try := 0; try < 50; try++ {
+			m := pool[rng.IntN(len(pool))]
+			if kin(m, partner) < 1.0/32 {
+				return m
+			}
+		}
+		return pool[0]
+	}
+	// Generation 2: ten kids per herd; half by the popular buck (AI), half
+	// by a generation-1 buck borrowed from the next herd.
+	gen2 := map[string]*herdAnimals{}
+	var cousinBuck, cousinDoe string
+	for i, hd := range herds {
+		a := &herdAnimals{}
+		dams := append(append([]string{}, h[hd].does...), gen1[hd].does...)
+		other := herds[(i+1)%len(herds)]
+		for k := 0; k < 10; k++ {
+			var sire, dam string
+			sex := sexOf(k / 2)
+			switch {
+			case hd == "BROOK" && k == 1:
+				// Full-sib mating: the twins, brother and sister.
+				sire, dam = gen1[hd].bucks[0], gen1[hd].does[0]
+			case hd == "STONE" && k == 1:
+				// Sire-daughter mating: STONE-002 with a daughter of his.
+				sire, dam = h[hd].bucks[1], gen1[hd].does[0]
+			case hd == "FERN" && k == 1:
+				// The Fernlea twins each breed with unrelated mates; their
+				// kids are first cousins (mated in generation 3).
+				sire, dam, sex = gen1[hd].bucks[0], h[hd].does[2], pedigree.SexMale
+			case hd == "FERN" && k == 3:
+				sire, dam, sex = gen1[other].bucks[0], gen1[hd].does[0], pedigree.SexFemale
+			case k%2 == 0:
+				sire = popular
+				dam = pick(dams, sire)
+			default:
+				sire = gen1[other].bucks[rng.IntN(len(gen1[other].bucks))]
+				dam = pick(dams, sire)
+			}
+			kid := add(hd, sire, dam, sex)
+			if hd == "FERN" && k == 1 {
+				cousinBuck = kid
+			}
+			if hd == "FERN" && k == 3 {
+				cousinDoe = kid
+			}
+			if sex == pedigree.SexMale {
+				a.bucks = append(a.bucks, kid)
+			} else {
+				a.does = append(a.does, kid)
+			}
+		}
+		gen2[hd] = a
+	}
+	// Generation 3: eight kids per herd by unrelated matings, plus a
+	// half-sib mating at Hillside (two offspring of the popular buck) and a
+	// first-cousin mating at Fernlea.
+	for i, hd := range herds {
+		dams := append(append([]string{}, gen2[hd].does...), gen1[hd].does...)
+		for k := 0; k < 8; k++ {
+			var sire, dam string
+			switch {
+			case hd == "HILL" && k < 2:
+				sire = firstWithSire(recs, gen2[hd].bucks, popular)
+				dam = firstWithSire(recs, gen2[hd].does, popular)
+			case hd == "FERN" && k == 0:
+				sire, dam = cousinBuck, cousinDoe
+			default:
+				other := herds[(i+2)%len(herds)]
+				sire = pick(gen2[other].bucks, gen2[hd].does[0])
+				dam = pick(dams, sire)
+			}
+			if sire == "" || dam == "" {
+				other := herds[(i+2)%len(herds)]
+				sire = gen2[other].bucks[0]
+				dam = pick(dams, sire)
+			}
+			add(hd, sire, dam, sexOf(k))
+		}
+	}
+	return recs, herdOf
+}
+
+func parentsOf(recs []pedigree.Record, id string) (string, string) {
+	for _, r := range recs {
+		if r.ID == id {
+			return r.Sire, r.Dam
+		}
+	}
+	return "", ""
+}
+
+// firstWithSire returns the first animal of ids whose sire is sire.
+func firstWithSire(recs []pedigree.Record, ids []string, sire string) string {
+	for _, id := range ids {
+		if s, _ := parentsOf(recs, id); s == sire {
+			return id
+		}
+	}
+	return ""
+}
+
+// readGenomicF reads sample and the first genomic F column present
+// (f_roh, then f_grm, then f_hom) from a scan's samples.tsv.
+func readGenomicF(path string) (map[string]float64, string, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, "", err
+	}
+	defer f.Close()
+	sc := bufio.NewScanner(f)
+	sc.Buffer(make([]byte, 64*1024), 1<<24)
+	if !sc.Scan() {
+		return nil, "", fmt.Errorf("%s: empty", path)
+	}
+	head := strings.Split(sc.Text(), "\t")
+	col, name := -1, ""
+	for _, want := range []string{"f_roh", "f_grm", "f_hom"} {
+		for i, h := range head {
+			if h == want {
+				col, name = i, want
+				break
+			}
+		}
+		if col >= 0 {
+			break
+		}
+	}
+	if col < 0 || head[0] != "sample" {
+		return nil, "", fmt.Errorf("%s: no sample or genomic F column", path)
+	}
+	out := map[string]float64{}
+	for sc.Scan() {
+		fields := strings.Split(sc.Text(), "\t")
+		if len(fields) <= col {
+			continue
+		}
+		if v, err := strconv.ParseFloat(fields[col], 64); err == nil {
+			out[fields[0]] = v
+		}
+	}
+	return out, name, sc.Err()
+}
+
+// describeMating names the relationship between an animal's parents.
+func describeMating(p *pedigree.Pedigree, i int) string {
+	s, d := p.Sire(i), p.Dam(i)
+	if s < 0 || d < 0 {
+		return "a parent is unrecorded"
+	}
+	name := func(j int) string { return p.ID(j) }
+	switch {
+	case p.Sire(d) == s:
+		return fmt.Sprintf("sire %s mated to his own daughter %s", name(s), name(d))
+	case p.Dam(s) == d:
+		return fmt.Sprintf("dam %s mated to her own son %s", name(d), name(s))
+	case p.Sire(s) >= 0 && p.Sire(s) == p.Sire(d) && p.Dam(s) >= 0 && p.Dam(s) == p.Dam(d):
+		return fmt.Sprintf("full-sib mating (%s x %s)", name(s), name(d))
+	case p.Sire(s) >= 0 && p.Sire(s) == p.Sire(d):
+		return fmt.Sprintf("half-sib mating: both parents by %s", name(p.Sire(s)))
+	case p.Dam(s) >= 0 && p.Dam(s) == p.Dam(d):
+		return fmt.Sprintf("half-sib mating: both parents out of %s", name(p.Dam(s)))
+	}
+	full := func(a, b int) bool {
+		return a >= 0 && b >= 0 && a != b && p.Sire(a) >= 0 && p.Sire(a) == p.Sire(b) && p.Dam(a) >= 0 && p.Dam(a) == p.Dam(b)
+	}
+	for _, x := range []int{p.Sire(s), p.Dam(s)} {
+		for _, y := range []int{p.Sire(d), p.Dam(d)} {
+			if full(x, y) {
+				return fmt.Sprintf("first-cousin mating (%s x %s; their parents %s and %s are full sibs)", name(s), name(d), name(x), name(y))
+			}
+		}
+	}
+	c, _ := p.Coancestry([][2]int{{s, d}}, nil)
+	return fmt.Sprintf("related parents %s x %s (coancestry %.3f, e.g. cousins)", name(s), name(d), c[0])
+}
+
+// writeDemoSummary prints the plain-language summary of the demo.
+func writeDemoSummary(w io.Writer, ped *pedigree.Pedigree, fped, genomic map[string]float64, col, scanDir string, scanned bool) {
+	type row struct {
+		id       string
+		g, f     float64
+		hasG     bool
+		pedIndex int
+	}
+	var rows []row
+	for i := 0; i < ped.Len(); i++ {
+		id := ped.ID(i)
+		g, ok := genomic[id]
+		rows = append(rows, row{id: id, g: g, f: fped[id], hasG: ok, pedIndex: i})
+	}
+	key := func(r row) float64 {
+		if r.hasG {
+			return r.g
+		}
+		return r.f
+	}
+	sort.SliceStable(rows, func(a, b int) bool { return key(rows[a]) > key(rows[b]) })
+	by := "pedigree F"
+	if len(genomic) > 0 {
+		by = "genomic " + col
+	}
+	fmt.Fprintf(w, "\nMost inbred animals (by %s):\n", by)
+	fmt.Fprintf(w, "  %-10s %10s %10s  %s\n", "animal", "genomic", "pedigree", "why (from the herd book)")
+	for k, r := range rows {
+		if k == 8 || key(r) <= 0 {
+			break
+		}
+		g := "NA"
+		if r.hasG {
+			g = strconv.FormatFloat(r.g, 'f', 3, 64)
+		}
+		why := "no close kin among its parents in the herd book"
+		if r.f > 0 {
+			why = describeMating(ped, r.pedIndex)
+		}
+		fmt.Fprintf(w, "  %-10s %10s %10.3f  %s\n", r.id, g, r.f, why)
+	}
+	fmt.Fprintln(w, "\nWhere to look next:")
+	if scanned {
+		fmt.Fprintf(w, "  - %s/runs.tsv lists each animal's runs of homozygosity; long runs (over 8 Mb) point to a\n", scanDir)
+		fmt.Fprintln(w, "    common ancestor a few generations back, short ones to old shared ancestry of the breed.")
+		fmt.Fprintf(w, "  - Compare the genomic and pedigree columns in %s/samples.tsv: large gaps hint at\n", scanDir)
+		fmt.Fprintln(w, "    recording errors or relatedness the herd book does not show.")
+		fmt.Fprintf(w, "  - %s/populations.tsv compares the herds; 'fgauge report %s' draws it all on one page.\n", scanDir, scanDir)
+	} else {
+		fmt.Fprintln(w, "  - Run 'fgauge scan' on cohort.vcf.gz with --populations herds.tsv and --pedigree pedigree.tsv")
+		fmt.Fprintln(w, "    to see genomic F and runs of homozygosity next to the pedigree values.")
+		fmt.Fprintln(w, "  - truth_segments.tsv holds the simulated autozygous stretches to check a detector against.")
+	}
+	fmt.Fprintln(w, "  - Popular sire FERN-001 is in the pedigree of every herd: check coancestries before the next")
+	fmt.Fprintln(w, "    season with 'fgauge pedigree pedigree.tsv --pairs PAIRS.tsv -o f.tsv'.")
+	fmt.Fprintln(w, "\nCaution: genomic or pedigree F is not a decision by itself; mating and culling decisions follow")
+	fmt.Fprintln(w, "the breeding programme's rules, veterinary advice and local regulations.")
+}
