@@ -27,6 +27,12 @@ import (
 // FORMAT, takes one slot); the contig dictionary holds the ##contig IDs in
 // header order. An IDX=n attribute on a line overrides its position.
 
+// Seam with the reader (binsource.go): readBCFHeader, then for each record
+// readBCFRecord and bcfDecoder.decode; regionChunks (region.go) gives the
+// chunks to read for Options.Regions. The twin and region tests through
+// Open (bcf_twin_test.go, region_query_test.go) pass with -tags bcfseam;
+// drop that tag from them when the reader switches the seam on.
+
 const (
 	bcfMagic22      = "BCF\x02\x02"
 	bcfMaxHeaderLen = 256 << 20 // default limit on l_text
@@ -297,6 +303,14 @@ type bcfDecoder struct {
 	keyGT, keyGQ, keyDP, keyPL, keyGL, keyInfo int // dictionary indices, -1 when absent
 	dictErr                                    error
 	num                                        [48]byte
+	fcache                                     [256]bcfFloatEntry
+}
+
+// bcfFloatEntry caches the float64 value of one float32 bit pattern.
+type bcfFloatEntry struct {
+	bits    uint32
+	val     float64
+	ok, set bool
 }
 
 // newBCFDecoder prepares a decoder for records of a BCF file with header h
@@ -494,8 +508,16 @@ func (d *bcfDecoder) bcfNumber(b []byte, typ byte, i int) (float64, bool) {
 		if bits == bcfFloatMissing || bits == bcfFloatVectorEnd {
 			return 0, false
 		}
+		// Likelihoods and frequencies repeat a lot: a small direct-mapped
+		// cache saves the decimal round trip.
+		e := &d.fcache[(bits*2654435761)>>24]
+		if e.set && e.bits == bits {
+			return e.val, e.ok
+		}
 		s := strconv.AppendFloat(d.num[:0], float64(math.Float32frombits(bits)), 'g', -1, 32)
-		return parseNum(s)
+		v, ok := parseNum(s)
+		*e = bcfFloatEntry{bits: bits, val: v, ok: ok, set: true}
+		return v, ok
 	case bcfTypeChar:
 		s := bcfTrimNUL(b)
 		if c := bytes.IndexByte(s, ','); c >= 0 {

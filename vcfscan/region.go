@@ -221,7 +221,7 @@ const tabixMaxPos = 1 << 29
 // findIndex returns the index file for data file path: path+".csi" or
 // path+".tbi" (for BCF the CSI is tried first, otherwise the TBI). It fails
 // with ErrNoIndex when neither exists and ErrStaleIndex when the index was
-// modified before the data file.
+// last modified in an earlier second than the data file.
 func findIndex(path string) (string, error) {
 	cands := []string{path + ".tbi", path + ".csi"}
 	if strings.HasSuffix(strings.ToLower(path), ".bcf") {
@@ -236,7 +236,9 @@ func findIndex(path string) (string, error) {
 		if err != nil {
 			continue
 		}
-		if st.ModTime().Before(data.ModTime()) {
+		// Whole seconds, as file copies within one second may land in
+		// either order.
+		if st.ModTime().Unix() < data.ModTime().Unix() {
 			return "", fmt.Errorf("%s: %w (index modified %s, data %s); rebuild the index",
 				c, ErrStaleIndex, st.ModTime().UTC().Format("2006-01-02 15:04:05"), data.ModTime().UTC().Format("2006-01-02 15:04:05"))
 		}

@@ -206,7 +206,20 @@ func regionCases(recs []rawRecord) map[string][]Region {
 // the reader). The indexes were written by htslib (tabix for the VCF
 // fixtures upstream, CSI by python3-pysam 0.20.0 for the BCF twins).
 func TestRegionChunks(t *testing.T) {
+	// The VCF with a CSI index (tabix-style names in the auxiliary field),
+	// written by python3-pysam 0.20.0, next to a copy of its data file.
+	vcfCSI := filepath.Join(t.TempDir(), "chr22_1000g.vcf.gz")
+	for _, c := range [][2]string{{"../testdata/chr22_1000g.vcf.gz", vcfCSI}, {"../testdata/bcf/chr22_1000g.vcf.gz.csi", vcfCSI + ".csi"}} {
+		b, err := os.ReadFile(c[0])
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(c[1], b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
 	for _, path := range []string{
+		vcfCSI,
 		"../testdata/chr22_1000g.vcf.gz", "../testdata/bcf/chr22_1000g.bcf",
 		"../testdata/cohort189.vcf.gz", "../testdata/bcf/cohort189.bcf",
 		"../testdata/bcf/test-haploidX.bcf", "../testdata/bcf/test.mnp.bcf",

@@ -13,6 +13,7 @@ bcf_index_build2, min_shift 14).
 """
 import gzip
 import os
+import shutil
 import tempfile
 
 import pysam
@@ -73,6 +74,15 @@ def main():
                     n += 1
         pysam.tabix_index(dst, preset="vcf", csi=True, force=True)
         print(dst, n, "records")
+
+    # A CSI (rather than tabix) index of a VCF, whose auxiliary field
+    # carries the sequence names: built on a copy, since the index must sit
+    # next to its data file; the test copies both to a temporary directory.
+    tmp = os.path.join(tempfile.mkdtemp(), "chr22_1000g.vcf.gz")
+    shutil.copyfile("testdata/chr22_1000g.vcf.gz", tmp)
+    pysam.tabix_index(tmp, preset="vcf", csi=True, force=True)
+    shutil.copyfile(tmp + ".csi", "testdata/bcf/chr22_1000g.vcf.gz.csi")
+    print("testdata/bcf/chr22_1000g.vcf.gz.csi")
 
 
 if __name__ == "__main__":
