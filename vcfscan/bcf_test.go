@@ -409,3 +409,59 @@ func BenchmarkBCFDecode(b *testing.B) {
 func bcfSameFloat(a, b float64) bool {
 	return a == b || (math.IsNaN(a) && math.IsNaN(b))
 }
+
+// TestBCFDecodeEncodings covers integer widths, the long-count form of a
+// type descriptor and IDX-ordered contigs (BCF 2.2 sections 6.2.1 and
+// 6.3.3: a count of 15 in the descriptor means a typed integer follows).
+func TestBCFDecodeEncodings(t *testing.T) {
+	// GT for 3 samples as int16 and as int32: 0/1, 1|1, ./. (0,0).
+	gt16 := []byte{0x11, 3, 2<<4 | bcfTypeInt16, 2, 0, 4, 0, 4, 0, 5, 0, 0, 0, 0, 0}
+	gt32 := []byte{0x11, 3, 2<<4 | bcfTypeInt32, 2, 0, 0, 0, 4, 0, 0, 0, 4, 0, 0, 0, 5, 0, 0, 0, 0, 0, 0, 0x80, 0x01, 0, 0, 0x80}
+	// GT with the long count form: 0xF1 then typed int8 2.
+	gtLong := []byte{0x11, 3, 0xF0 | bcfTypeInt8, 0x11, 2, 2, 2, 2, 4, 4, 4}
+	// GT with ploidy 3 padded: sample 1 triploid, 2 diploid, 3 haploid.
+	gt3 := []byte{0x11, 3, 3<<4 | bcfTypeInt8, 2, 2, 4, 2, 4, 0x81, 2, 0x81, 0x81}
+	for _, c := range []struct {
+		name string
+		fmt  []byte
+		want []Geno
+	}{
+		{"int16", gt16, []Geno{Het, HomAlt, Missing}},
+		{"int32", gt32, []Geno{Het, HomAlt, Missing}},
+		{"long count", gtLong, []Geno{HomRef, Het, HomAlt}},
+		{"mixed ploidy", gt3, []Geno{Missing, Het, HaploidRef}},
+	} {
+		d := newBCFDecoder(bcfTestHeader, nil, Options{})
+		st := &batchState{}
+		d.st = st
+		b := &Batch{NSamples: 3}
+		kept, _, err := d.decode(bcfRec{alleles: []string{"C", "T"}, fmt: [][]byte{c.fmt}, nSample: 3}.bytes(), 0, b)
+		if err != nil || !kept {
+			t.Fatalf("%s: kept %v err %v", c.name, kept, err)
+		}
+		if fmt.Sprint(b.Calls(0)) != fmt.Sprint(c.want) {
+			t.Errorf("%s: GT %v, want %v", c.name, b.Calls(0), c.want)
+		}
+		if c.name == "mixed ploidy" && (st.warn[warnPolyploid] != 1 || st.warn[warnHaploid] != 1) {
+			t.Errorf("%s: warnings %v, want one polyploid and one haploid", c.name, st.warn)
+		}
+	}
+
+	// Contig dictionary order from IDX differs from header order: record
+	// contig 0 is "b", the header's second contig.
+	h := &Header{
+		Meta:    []string{`contig=<ID=a,IDX=1>`, `contig=<ID=b,IDX=0>`, `FORMAT=<ID=GT,Number=1,Type=String,Description="g">`},
+		Contigs: []Contig{{Name: "a"}, {Name: "b"}},
+		Samples: []string{"s1"},
+	}
+	d := newBCFDecoder(h, nil, Options{})
+	b := &Batch{NSamples: 1}
+	// Dictionary: PASS=0, GT=1.
+	rec := bcfRec{chrom: 0, pos0: 99, alleles: []string{"G", "A"}, fmt: [][]byte{{0x11, 1, 2<<4 | bcfTypeInt8, 2, 4}}, nSample: 1}
+	if kept, _, err := d.decode(rec.bytes(), 0, b); err != nil || !kept {
+		t.Fatalf("IDX contigs: %v %v", kept, err)
+	}
+	if r := b.Records[0]; r.ChromID != 1 || r.Pos != 100 || b.GT[0] != Het {
+		t.Errorf("IDX contigs: chrom %d pos %d GT %v, want 1 100 Het", r.ChromID, r.Pos, b.GT[0])
+	}
+}
