@@ -214,7 +214,7 @@ func (z *bgzfReader) readLoop() {
 	for {
 		j, ok := z.getJob()
 		if !ok {
-			close(z.work)
+			z.finish(errReaderClosed)
 			return
 		}
 		err := z.readRaw(z.src, coff, j)
@@ -254,7 +254,7 @@ func (z *bgzfReader) readChunks() {
 			}
 			j, ok := z.getJob()
 			if !ok {
-				close(z.work)
+				z.finish(errReaderClosed)
 				return
 			}
 			err := z.readRaw(z.seeker, coff, j)
@@ -374,7 +374,7 @@ func (z *bgzfReader) Close() error {
 	z.once.Do(func() {
 		close(z.quit)
 		if z.err == nil {
-			z.err = errors.New("vcfscan: read after close")
+			z.err = errReaderClosed
 		}
 	})
 	return nil
@@ -499,5 +499,7 @@ func (bw *BGZFWriter) Close() error {
 	bw.err = errWriterClosed
 	return nil
 }
+
+var errReaderClosed = errors.New("vcfscan: read after close")
 
 var errWriterClosed = errors.New("vcfscan: write to closed BGZFWriter")

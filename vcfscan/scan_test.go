@@ -8,8 +8,10 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"runtime"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/klauspost/compress/gzip"
 )
@@ -533,5 +535,32 @@ func TestBGZFWriterRoundTrip(t *testing.T) {
 		if missing, _ := z.eofs.get(); missing {
 			t.Error("writer did not end with the EOF block")
 		}
+	}
+}
+
+// TestCloseEarly stops reading in the middle; no goroutine may be left.
+func TestCloseEarly(t *testing.T) {
+	text := plainText(t, filepath.Join("..", "testdata", "chr22_1000g.vcf.gz"))
+	enc := toBGZF(t, text)
+	before := runtime.NumGoroutine()
+	for i := 0; i < 5; i++ {
+		r, err := NewReader(bytes.NewReader(enc), "mem.vcf.gz", Options{Threads: 3, chunkBytes: 4096})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, err := r.Next(); err != nil {
+			t.Fatal(err)
+		}
+		r.Close()
+		if _, err := r.Next(); err == nil {
+			t.Fatal("Next after Close gave no error")
+		}
+	}
+	deadline := time.Now().Add(5 * time.Second)
+	for runtime.NumGoroutine() > before && time.Now().Before(deadline) {
+		time.Sleep(10 * time.Millisecond)
+	}
+	if n := runtime.NumGoroutine(); n > before {
+		t.Errorf("%d goroutines left running after Close (%d before)", n-before, before)
 	}
 }

@@ -1,0 +1,19 @@
+// Package vcfscan turns the bytes of a multi-sample VCF or BCF file into
+// batches of biallelic SNP genotypes, streaming and in parallel.
+//
+// It detects the container from the content (plain text, gzip, BGZF, BCF
+// 2.2), inflates BGZF blocks on several goroutines (checking CRC32 and
+// ISIZE of each block, SAM/BAM specification section 4.1), cuts the text
+// into chunks of whole lines that worker goroutines parse, and returns the
+// resulting batches in input order. Memory stays bounded: a fixed number
+// of blocks and chunks are in flight whatever the input size, and Limits
+// caps what a header or a line can make the reader allocate.
+//
+// The site policy keeps records with one ALT where REF and ALT are single
+// A/C/G/T bases; other records are counted by SkipReason. A call with any
+// missing allele is Missing; haploid calls get their own codes.
+//
+// vcfscan knows nothing about statistics: the stats and roh packages
+// consume its batches. It also writes BGZF (BGZFWriter) for the tables and
+// simulated files the command line produces.
+package vcfscan
