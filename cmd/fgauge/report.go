@@ -5,7 +5,6 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"io/fs"
 	"os"
 	"strings"
 
@@ -45,7 +44,7 @@ func runReport(ctx context.Context, env *runEnv, args []string) error {
 		}
 	}
 	if err := htmlreport.Write(pos[0], opt); err != nil {
-		if errors.Is(err, fs.ErrNotExist) || errors.Is(err, htmlreport.ErrMalformed) {
+		if errors.Is(err, os.ErrNotExist) || errors.Is(err, htmlreport.ErrMalformed) {
 			// a folder that is not a scan's output is bad input (exit 2)
 			return usagef("%v", err)
 		}
