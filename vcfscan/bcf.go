@@ -29,9 +29,8 @@ import (
 
 // Seam with the reader (binsource.go): readBCFHeader, then for each record
 // readBCFRecord and bcfDecoder.decode; regionChunks (region.go) gives the
-// chunks to read for Options.Regions. The twin and region tests through
-// Open (bcf_twin_test.go, region_query_test.go) pass with -tags bcfseam;
-// drop that tag from them when the reader switches the seam on.
+// chunks to read for Options.Regions. bcf_twin_test.go and
+// region_query_test.go test the whole path through Open.
 
 const (
 	bcfMagic22      = "BCF\x02\x02"

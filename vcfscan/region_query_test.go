@@ -1,5 +1,3 @@
-//go:build bcfseam
-
 package vcfscan
 
 import (
