@@ -106,3 +106,40 @@ func ExampleColumnDocs() {
 	}
 	// Output: samples.tsv f_uniting_gametes
 }
+
+func ExampleSum128() {
+	var a, b stats.Sum128
+	a.Add(0.1)
+	a.Add(1e15)
+	b.Add(-1e15)
+	b.Add(0.2)
+	a.AddSum(b) // the same bits whatever the order or grouping
+	fmt.Printf("%.6f\n", a.Float64())
+	// Output: 0.300000
+}
+
+func ExampleWeirCockerham() {
+	// Two farms fixed for different alleles (30 animals each).
+	a, b, c, ok := stats.WeirCockerham([]int64{30, 30}, []int64{0, 60}, []int64{0, 0})
+	fmt.Println(ok, a/(a+b+c))
+	// Output: true 1
+}
+
+func ExampleReadPopulations() {
+	in := "sample population\ncow_1 herd_north\ncow_2 herd_river\n"
+	p, err := stats.ReadPopulations(strings.NewReader(in), "herds.txt")
+	if err != nil {
+		panic(err)
+	}
+	popOf, unlisted := p.Assign([]string{"cow_1", "cow_2", "cow_3"})
+	fmt.Println(p.Names, popOf, unlisted)
+	// Output: [herd_north herd_river] [0 1 -1] [cow_3]
+}
+
+// R genetics HWE.chisq(correct = FALSE) gives 0.004677735 for these counts
+// (testdata/snpstats/hwe_worked.tsv).
+func ExampleHWEChiSq() {
+	r := stats.HWEChiSq(120, 60, 20)
+	fmt.Printf("p=%.4g\n", r.P)
+	// Output: p=0.004678
+}

@@ -188,3 +188,28 @@ func BenchmarkHWEExact(b *testing.B) {
 		HWEExact(300, 500, 200+int64(i%50))
 	}
 }
+
+// FuzzHWEExact compares the fast walk from the mode with the direct
+// log-gamma enumeration of every outcome (hweDefinition).
+func FuzzHWEExact(f *testing.F) {
+	f.Add(uint16(10), uint16(45), uint16(45))
+	f.Add(uint16(0), uint16(1), uint16(0))
+	f.Add(uint16(300), uint16(2), uint16(1))
+	f.Fuzz(func(t *testing.T, a, h, b uint16) {
+		nAA, nAB, nBB := int64(a%400), int64(h%400), int64(b%400)
+		got := HWEExact(nAA, nAB, nBB)
+		if 2*nAA+nAB == 0 || 2*nBB+nAB == 0 {
+			if got.Computed {
+				t.Fatalf("monomorphic %d %d %d computed", nAA, nAB, nBB)
+			}
+			return
+		}
+		p, pObs, low, high := hweDefinition(nAA, nAB, nBB)
+		for _, c := range [][3]float64{{got.P, p, 0}, {got.PObs, pObs, 1}, {got.Deficit, low, 2}, {got.Excess, high, 3}} {
+			w := math.Min(c[1], 1)
+			if math.Abs(c[0]-w) > 1e-9*w+1e-300 {
+				t.Fatalf("%d %d %d: value %v: %v, enumeration %v", nAA, nAB, nBB, c[2], c[0], w)
+			}
+		}
+	})
+}
