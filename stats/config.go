@@ -176,7 +176,7 @@ func (p *Panel) Len() int { return len(p.Freq) }
 // lookup returns the frequency of alt at (chrom,pos,ref,alt), the panel
 // index, and whether it matched. Swapped alleles give 1-p.
 func (p *Panel) lookup(chrom string, pos int64, ref, alt byte) (float64, int, panelMatch) {
-	i, ok := p.sites[panelKey{chrom, pos}]
+	i, ok := p.sites[panelKey{chromKey(chrom), pos}]
 	if !ok {
 		return 0, -1, panelAbsent
 	}
@@ -200,7 +200,9 @@ const (
 // ReadPanel reads a frequency panel: whitespace-separated columns chrom,
 // pos, ref, alt, alt_freq; an optional header line starting with "chrom";
 // '#' lines ignored. Only single-base alleles are kept (others are
-// counted in skipped). alt_freq must lie in [0,1].
+// counted in skipped). alt_freq must lie in [0,1]. Chromosome names match
+// the data's with or without a leading "chr"; a site whose REF and ALT are
+// swapped relative to the data is used with frequency 1 - alt_freq.
 func ReadPanel(r io.Reader, name string) (p *Panel, skipped int, err error) {
 	p = &Panel{sites: map[panelKey]int32{}}
 	sc := bufio.NewScanner(r)
@@ -231,7 +233,7 @@ func ReadPanel(r io.Reader, name string) (p *Panel, skipped int, err error) {
 			skipped++
 			continue
 		}
-		k := panelKey{string(f[0]), pos}
+		k := panelKey{chromKey(string(f[0])), pos}
 		if _, dup := p.sites[k]; dup {
 			return nil, 0, &TableError{name, line, fmt.Sprintf("site %s:%d listed twice", f[0], pos), ErrBadTable}
 		}
@@ -244,6 +246,15 @@ func ReadPanel(r io.Reader, name string) (p *Panel, skipped int, err error) {
 		return nil, 0, fmt.Errorf("%s: %w", name, err)
 	}
 	return p, skipped, nil
+}
+
+// chromKey drops a leading "chr" (any case) so that "chr7" and "7" name
+// the same chromosome in the panel and the data.
+func chromKey(c string) string {
+	if len(c) > 3 && (c[0] == 'c' || c[0] == 'C') && (c[1] == 'h' || c[1] == 'H') && (c[2] == 'r' || c[2] == 'R') {
+		return c[3:]
+	}
+	return c
 }
 
 func upper(c byte) byte {

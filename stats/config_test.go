@@ -48,6 +48,9 @@ func TestReadPanel(t *testing.T) {
 	if err != nil || p.Len() != 2 || skipped != 1 {
 		t.Fatalf("panel %v skipped %d err %v", p, skipped, err)
 	}
+	if _, _, m := p.lookup("chr1", 100, 'A', 'G'); m != panelFound {
+		t.Errorf("chr prefix: %v", m)
+	}
 	if f, _, m := p.lookup("1", 100, 'G', 'A'); m != panelFound || f != 0.75 {
 		t.Errorf("swapped alleles: %v %v", f, m)
 	}

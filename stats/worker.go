@@ -219,7 +219,8 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 		w.tabs[w.nPop].fill(cohortP, nCorr(nCalled))
 	case FreqInfo:
 		used = rec.InfoValue
-		if math.IsNaN(used) {
+		if !(used >= 0 && used <= 1) { // absent, NaN or not a frequency
+			used = nan
 			t.Freq.InfoMissing++
 		}
 		w.tabs[0].fill(used, 1)
