@@ -7,11 +7,6 @@ import (
 	"fgauge/vcfscan"
 )
 
-// runScan reads one VCF/BCF and writes the scan outputs (being built).
-func runScan(ctx context.Context, env *runEnv, args []string) error {
-	return usagef("scan: not built yet")
-}
-
 // runColumns prints one line per output column.
 func runColumns(ctx context.Context, env *runEnv, args []string) error {
 	return nil

@@ -1,0 +1,28 @@
+package main
+
+import (
+	"strconv"
+)
+
+// pedigreeColumn reads a pedigree file and returns f_pedigree for each
+// sample, "NA" for samples the pedigree does not list.
+func pedigreeColumn(path string, samples []string) ([]string, error) {
+	ped, err := readPedigreeFile(path)
+	if err != nil {
+		return nil, err
+	}
+	f := ped.Inbreeding()
+	byID := make(map[string]float64, ped.Len())
+	for i := range f {
+		byID[ped.ID(i)] = f[i]
+	}
+	col := make([]string, len(samples))
+	for i, s := range samples {
+		if v, ok := byID[s]; ok {
+			col[i] = strconv.FormatFloat(v, 'g', -1, 64)
+		} else {
+			col[i] = "NA"
+		}
+	}
+	return col, nil
+}
