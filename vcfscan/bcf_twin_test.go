@@ -2,6 +2,8 @@ package vcfscan
 
 import (
 	"bufio"
+	"bytes"
+	"encoding/binary"
 	"errors"
 	"fmt"
 	"io"
@@ -306,6 +308,95 @@ func BenchmarkBCFScan(b *testing.B) {
 				}
 				b.ReportMetric(float64(recs)/b.Elapsed().Seconds(), "records/s")
 			})
+		}
+	}
+}
+
+func TestBCFWarningsMatchVCF(t *testing.T) {
+	count := func(path string) map[string]int64 {
+		r, err := Open(path, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer r.Close()
+		for {
+			b, err := r.Next()
+			if err != nil {
+				break
+			}
+			r.Release(b)
+		}
+		m := map[string]int64{}
+		for _, w := range r.Warnings() {
+			m[w.Kind] = w.Count
+		}
+		return m
+	}
+	v := count("../testdata/edge/test-haploidX.vcf")
+	b := count("../testdata/bcf/test-haploidX.bcf")
+	if v["haploid_calls"] == 0 || v["haploid_calls"] != b["haploid_calls"] {
+		t.Errorf("haploid_calls: VCF %d, BCF %d", v["haploid_calls"], b["haploid_calls"])
+	}
+}
+
+// TestBCFRequireSorted builds an uncompressed BCF whose second record goes
+// back in position, and one that returns to a finished chromosome.
+func TestBCFRequireSorted(t *testing.T) {
+	text := "##fileformat=VCFv4.2\n##contig=<ID=chr1,IDX=0>\n##contig=<ID=chr2,IDX=1>\n" +
+		"##FORMAT=<ID=GT,Number=1,Type=String,Description=\"g\",IDX=1>\n" +
+		"#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT\ts1\n\x00"
+	file := func(recs ...bcfRec) string {
+		var buf bytes.Buffer
+		buf.WriteString("BCF\x02\x02")
+		binary.Write(&buf, binary.LittleEndian, uint32(len(text)))
+		buf.WriteString(text)
+		for _, r := range recs {
+			buf.Write(r.bytes())
+		}
+		p := filepath.Join(t.TempDir(), "s.bcf")
+		if err := os.WriteFile(p, buf.Bytes(), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	rec := func(chrom, pos int32) bcfRec {
+		return bcfRec{chrom: chrom, pos0: pos, alleles: []string{"A", "G"}, fmt: [][]byte{{0x11, 1, 2<<4 | bcfTypeInt8, 2, 4}}, nSample: 1}
+	}
+	for _, c := range []struct {
+		name string
+		recs []bcfRec
+		bad  bool
+	}{
+		{"sorted", []bcfRec{rec(0, 10), rec(0, 20), rec(1, 5)}, false},
+		{"position goes back", []bcfRec{rec(0, 20), rec(0, 10)}, true},
+		{"chromosome again", []bcfRec{rec(0, 10), rec(1, 5), rec(0, 30)}, true},
+	} {
+		p := file(c.recs...)
+		for _, require := range []bool{false, true} {
+			r, err := Open(p, Options{RequireSorted: require})
+			if err != nil {
+				t.Fatalf("%s: %v", c.name, err)
+			}
+			if r.Format() != FormatBCFPlain {
+				t.Errorf("%s: format %v", c.name, r.Format())
+			}
+			n := 0
+			for {
+				b, err2 := r.Next()
+				if err2 != nil {
+					err = err2
+					break
+				}
+				n += len(b.Records)
+			}
+			r.Close()
+			wantErr := c.bad && require
+			if wantErr != errors.Is(err, ErrUnsorted) {
+				t.Errorf("%s require=%v: %v", c.name, require, err)
+			}
+			if !wantErr && (err != io.EOF || n != len(c.recs)) {
+				t.Errorf("%s require=%v: %d records, end %v", c.name, require, n, err)
+			}
 		}
 	}
 }

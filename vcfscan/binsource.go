@@ -47,6 +47,7 @@ func (r *Reader) openBCF(tb *bufio.Reader, path string) error {
 	dec := newBCFDecoder(hdr, sel, r.opt)
 	dec.name = r.name
 	r.bcf = &bcfSource{r: src, dec: dec}
+	r.doneChroms = map[int]bool{} // for finishBatch's sortedness checks
 	r.free = make(chan *Batch, 4)
 	return nil
 }
@@ -87,6 +88,8 @@ func (r *Reader) nextBCF() (*Batch, error) {
 	b.Read, b.Masked = 0, 0
 	b.arena = b.arena[:0]
 	b.NSamples = len(r.samples)
+	b.st.reset()
+	s.dec.st = b.st // haploid/polyploid warnings and sortedness blocks
 	for len(b.Records) < bcfBatchRecords && len(b.arena) < chunkTarget {
 		rec, err := readBCFRecord(s.r, s.buf, r.opt.Limits.MaxLineBytes)
 		s.buf = rec
@@ -117,8 +120,9 @@ func (r *Reader) nextBCF() (*Batch, error) {
 			return nil, io.EOF
 		}
 	}
-	b.Seq = r.seq
-	r.seq++
+	if err := r.finishBatch(b); err != nil { // warnings, RequireSorted, Seq
+		return nil, err
+	}
 	return b, nil
 }
 
