@@ -39,14 +39,30 @@ func generatedHerd(n, gen, nSires int, unknownShare float64, seed uint64) []Reco
 	return recs
 }
 
-// BenchmarkInbreeding1M: Meuwissen-Luo on a generated pedigree of 10^6
-// animals (20 generations of 50,000, 200 sires per generation, 10% of
-// parents unknown).
+// BenchmarkInbreeding1M: Inbreeding on a generated herd-book-like pedigree
+// of 10^6 animals (20 generations of 50,000, 200 sires per generation, 30%
+// of parents unrecorded).
 func BenchmarkInbreeding1M(b *testing.B) {
+	benchInbreeding(b, generatedHerd(1_000_000, 50_000, 200, 0.3, 1), (*Pedigree).Inbreeding)
+}
+
+// BenchmarkInbreedingML1M: the plain Meuwissen-Luo trace on the same
+// pedigree.
+func BenchmarkInbreedingML1M(b *testing.B) {
+	benchInbreeding(b, generatedHerd(1_000_000, 50_000, 200, 0.3, 1), func(p *Pedigree) []float64 { f, _ := p.inbreedingD(); return f })
+}
+
+// BenchmarkInbreedingDeep1M: a stress case, the same population with 90% of
+// parents recorded, so that every animal of the last generations has
+// hundreds of thousands of known ancestors.
+func BenchmarkInbreedingDeep1M(b *testing.B) {
+	benchInbreeding(b, generatedHerd(1_000_000, 50_000, 200, 0.1, 1), (*Pedigree).Inbreeding)
+}
+
+func benchInbreeding(b *testing.B, recs []Record, fn func(*Pedigree) []float64) {
 	if testing.Short() {
 		b.Skip("1M-animal benchmark skipped in -short mode")
 	}
-	recs := generatedHerd(1_000_000, 50_000, 200, 0.1, 1)
 	p, err := FromRecords(recs, "generated")
 	if err != nil {
 		b.Fatal(err)
@@ -55,7 +71,7 @@ func BenchmarkInbreeding1M(b *testing.B) {
 	b.ResetTimer()
 	var mean float64
 	for i := 0; i < b.N; i++ {
-		f := p.Inbreeding()
+		f := fn(p)
 		mean = 0
 		for _, v := range f {
 			mean += v
@@ -80,3 +96,4 @@ func BenchmarkBuild1M(b *testing.B) {
 		}
 	}
 }
+

@@ -75,16 +75,22 @@ func (t *tracer) sumLD(p *Pedigree, d []float64) float64 {
 }
 
 // Inbreeding returns the pedigree inbreeding coefficient of every animal,
-// indexed like ID(i), by the algorithm of Meuwissen & Luo (1992, Genetics
-// Selection Evolution 24:305-313): with A = L D L', F_i = sum_j L_ij^2 D_j - 1
-// over the ancestors j of i, and D_i = 1/2 - (F_sire + F_dam)/4 (with F = -1
-// for an unknown parent). Animals with an unknown parent have F = 0, and an
-// animal whose parents are those of the animal before it copies its F.
+// indexed like ID(i). The coefficients are those of the algorithm of
+// Meuwissen & Luo (1992, Genetics Selection Evolution 24:305-313): with
+// A = L D L', F_i = sum_j L_ij^2 D_j - 1 over the ancestors j of i, and
+// D_i = 1/2 - (F_sire + F_dam)/4 (with F = -1 for an unknown parent);
+// animals with an unknown parent have F = 0. The ancestor traces are
+// grouped by sire (see inbreedingBySire), which gives identical values and
+// is several times faster on deep pedigrees with popular sires; the plain
+// per-animal trace (inbreedingD) is kept as the reference in the tests.
 func (p *Pedigree) Inbreeding() []float64 {
-	f, _ := p.inbreedingD()
+	f, _ := p.inbreedingBySire()
 	return f
 }
 
+// inbreedingD is the per-animal Meuwissen & Luo trace: for each animal the
+// L row is traced through its ancestors, youngest first. An animal whose
+// parents are those of the animal before it copies its F.
 func (p *Pedigree) inbreedingD() (f, d []float64) {
 	n := len(p.ids)
 	f = make([]float64, n)
@@ -126,7 +132,7 @@ func (p *Pedigree) inbreedingD() (f, d []float64) {
 func (p *Pedigree) Coancestry(pairs [][2]int, f []float64) ([]float64, error) {
 	var d []float64
 	if f == nil {
-		f, d = p.inbreedingD()
+		f, d = p.inbreedingBySire()
 	} else {
 		if len(f) != len(p.ids) {
 			return nil, fmt.Errorf("pedigree: Coancestry: %d inbreeding values for %d animals", len(f), len(p.ids))

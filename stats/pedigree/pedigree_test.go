@@ -284,3 +284,32 @@ func TestReadPairs(t *testing.T) {
 		t.Errorf("unknown id error = %v", err)
 	}
 }
+
+// The sire-grouped indirect method must agree with the Meuwissen-Luo trace
+// (and so with the tabular method checked above) on random pedigrees with
+// selfing, sire-daughter and other close matings.
+func TestBySireMatchesML(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	for rep := 0; rep < 30; rep++ {
+		p := randomPedigree(rng, 300)
+		fML, dML := p.inbreedingD()
+		fS, dS := p.inbreedingBySire()
+		for i := range fML {
+			if math.Abs(fML[i]-fS[i]) > 1e-12 || math.Abs(dML[i]-dS[i]) > 1e-12 {
+				t.Fatalf("rep %d: %s: F %v vs %v, D %v vs %v", rep, p.ID(i), fML[i], fS[i], dML[i], dS[i])
+			}
+		}
+	}
+	recs := generatedHerd(20000, 2000, 20, 0.1, 9)
+	p, err := FromRecords(recs, "generated")
+	if err != nil {
+		t.Fatal(err)
+	}
+	fML, _ := p.inbreedingD()
+	fS, _ := p.inbreedingBySire()
+	for i := range fML {
+		if math.Abs(fML[i]-fS[i]) > 1e-12 {
+			t.Fatalf("generated herd: %s: F %v vs %v", p.ID(i), fML[i], fS[i])
+		}
+	}
+}

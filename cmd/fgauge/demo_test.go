@@ -1,0 +1,38 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+)
+
+func TestDemo(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "demo")
+	start := time.Now()
+	code, out, errText := runArgs(t, "demo", "-o", dir)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errText)
+	}
+	if el := time.Since(start); el > time.Minute {
+		t.Errorf("demo took %v, budget one minute", el)
+	}
+	// The planned matings and their textbook pedigree F (common practice).
+	for _, want := range []string{
+		"BROOK-021", "full-sib mating", "0.250",
+		"sire STONE-002 mated to his own daughter",
+		"half-sib mating: both parents by FERN-001", "0.125",
+		"first-cousin mating", "0.062",
+		"Caution:",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("summary lacks %q:\n%s", want, out)
+		}
+	}
+	for _, name := range []string{"cohort.vcf.gz", "cohort.vcf.gz.tbi", "pedigree.tsv", "herds.tsv", "truth_samples.tsv", "truth_segments.tsv"} {
+		if _, err := os.Stat(filepath.Join(dir, name)); err != nil {
+			t.Error(err)
+		}
+	}
+}
