@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"hash/crc32"
 	"io"
+	"runtime"
 	"sync"
 
 	"github.com/biogo/hts/bgzf"
@@ -380,123 +381,225 @@ func (z *bgzfReader) Close() error {
 	return nil
 }
 
-// BGZFWriter writes BGZF: each Write is cut into blocks of at most 65,280
-// input bytes, each compressed as its own gzip member with the BC extra
-// field, and Close appends the empty EOF block (SAM spec 4.1).
+// BGZFWriter writes BGZF: the input is cut into blocks of at most 65,280
+// bytes, each compressed as its own gzip member with the BC extra field on
+// several goroutines and written in order; Close appends the empty EOF
+// block (SAM spec 4.1). At most a fixed number of blocks are in flight.
 type BGZFWriter struct {
-	w     io.Writer
-	level int
-	buf   []byte
-	cbuf  bytes.Buffer
-	fw    *flate.Writer
-	err   error
-	hdr   [18]byte
+	w       io.Writer
+	level   int
+	threads int
+	cur     *bgzfWJob
+	started bool
+	jobs    chan *bgzfWJob
+	order   chan *bgzfWJob
+	free    chan *bgzfWJob
+	done    chan struct{}
+	errMu   sync.Mutex
+	err     error
+	closed  bool
+}
+
+// bgzfWJob is one block on its way through the writer. A job with
+// flush set carries no data; the writer goroutine signals it when every
+// block before it is written.
+type bgzfWJob struct {
+	in    []byte
+	out   bytes.Buffer
+	ready chan struct{}
+	flush bool
 }
 
 // NewBGZFWriter returns a writer compressing at the given flate level
-// (-1 for the default, 0-9 as in compress/flate).
+// (-1 for the default, 0-9 as in compress/flate) on as many goroutines as
+// GOMAXPROCS. It does not close w.
 func NewBGZFWriter(w io.Writer, level int) *BGZFWriter {
 	if level < flate.HuffmanOnly || level > flate.BestCompression {
 		level = flate.DefaultCompression
 	}
-	return &BGZFWriter{w: w, level: level, buf: make([]byte, 0, bgzfWriteChunk)}
+	return &BGZFWriter{w: w, level: level, threads: runtime.GOMAXPROCS(0)}
 }
 
-// Write buffers p and writes every full block.
+// SetThreads sets the number of compressing goroutines (at least 1). It
+// must be called before the first Write.
+func (bw *BGZFWriter) SetThreads(n int) {
+	if !bw.started {
+		bw.threads = max(n, 1)
+	}
+}
+
+func (bw *BGZFWriter) start() {
+	bw.started = true
+	inflight := 2*bw.threads + 2
+	bw.jobs = make(chan *bgzfWJob, inflight)
+	bw.order = make(chan *bgzfWJob, inflight+1)
+	bw.free = make(chan *bgzfWJob, inflight)
+	bw.done = make(chan struct{})
+	for i := 0; i < inflight; i++ {
+		bw.free <- &bgzfWJob{in: make([]byte, 0, bgzfWriteChunk), ready: make(chan struct{}, 1)}
+	}
+	for i := 0; i < bw.threads; i++ {
+		go bw.compressLoop()
+	}
+	go bw.writeLoop()
+}
+
+func (bw *BGZFWriter) setErr(err error) {
+	bw.errMu.Lock()
+	if bw.err == nil {
+		bw.err = err
+	}
+	bw.errMu.Unlock()
+}
+
+func (bw *BGZFWriter) getErr() error {
+	bw.errMu.Lock()
+	defer bw.errMu.Unlock()
+	return bw.err
+}
+
+func (bw *BGZFWriter) compressLoop() {
+	var fw *flate.Writer
+	for j := range bw.jobs {
+		var err error
+		if fw == nil {
+			fw, err = flate.NewWriter(&j.out, bw.level)
+		} else {
+			fw.Reset(&j.out)
+		}
+		if err == nil {
+			err = compressBlock(fw, j)
+		}
+		if err != nil {
+			bw.setErr(err)
+		}
+		j.ready <- struct{}{}
+	}
+}
+
+// compressBlock writes the whole gzip member for j.in into j.out.
+func compressBlock(fw *flate.Writer, j *bgzfWJob) error {
+	j.out.Reset()
+	j.out.Write(bgzfEOF[:18])
+	if _, err := fw.Write(j.in); err != nil {
+		return err
+	}
+	if err := fw.Close(); err != nil {
+		return err
+	}
+	if j.out.Len()+8 > bgzfMaxBlock {
+		// Incompressible data: store it (a stored block adds 5 bytes).
+		j.out.Reset()
+		j.out.Write(bgzfEOF[:18])
+		sw, _ := flate.NewWriter(&j.out, flate.NoCompression)
+		sw.Write(j.in)
+		sw.Close()
+	}
+	var tail [8]byte
+	binary.LittleEndian.PutUint32(tail[0:4], crc32.ChecksumIEEE(j.in))
+	binary.LittleEndian.PutUint32(tail[4:8], uint32(len(j.in)))
+	j.out.Write(tail[:])
+	b := j.out.Bytes()
+	binary.LittleEndian.PutUint16(b[16:18], uint16(len(b)-1))
+	return nil
+}
+
+func (bw *BGZFWriter) writeLoop() {
+	defer close(bw.done)
+	for j := range bw.order {
+		if j.flush {
+			j.ready <- struct{}{} // every block before the marker is written
+			continue
+		}
+		<-j.ready
+		if bw.getErr() == nil {
+			if _, err := bw.w.Write(j.out.Bytes()); err != nil {
+				bw.setErr(err)
+			}
+		}
+		j.in = j.in[:0]
+		bw.free <- j
+	}
+}
+
+// submit sends the current block to the compressors.
+func (bw *BGZFWriter) submit() {
+	j := bw.cur
+	bw.cur = nil
+	bw.order <- j
+	bw.jobs <- j
+}
+
+// Write buffers p and hands every full block to the compressors. Errors of
+// the underlying writer are reported by a later Write, Flush or Close.
 func (bw *BGZFWriter) Write(p []byte) (int, error) {
-	if bw.err != nil {
-		return 0, bw.err
+	if bw.closed {
+		return 0, errWriterClosed
+	}
+	if err := bw.getErr(); err != nil {
+		return 0, err
+	}
+	if !bw.started {
+		bw.start()
 	}
 	n := 0
 	for len(p) > 0 {
-		k := copy(bw.buf[len(bw.buf):cap(bw.buf)], p)
-		bw.buf = bw.buf[:len(bw.buf)+k]
+		if bw.cur == nil {
+			bw.cur = <-bw.free
+		}
+		in := bw.cur.in
+		k := copy(in[len(in):cap(in)], p)
+		bw.cur.in = in[:len(in)+k]
 		p = p[k:]
 		n += k
-		if len(bw.buf) == cap(bw.buf) {
-			if err := bw.flushBlock(); err != nil {
-				return n, err
-			}
+		if len(bw.cur.in) == cap(bw.cur.in) {
+			bw.submit()
 		}
 	}
 	return n, nil
 }
 
-// Flush writes buffered bytes as a (short) block, so that a reader can
-// seek to the current position.
+// Flush compresses and writes the buffered bytes as a (short) block and
+// waits until every block so far is written, so that the output can be
+// indexed or read up to here.
 func (bw *BGZFWriter) Flush() error {
-	if bw.err != nil {
-		return bw.err
+	if bw.closed {
+		return errWriterClosed
 	}
-	if len(bw.buf) == 0 {
-		return nil
+	if !bw.started {
+		return bw.getErr()
 	}
-	return bw.flushBlock()
+	if bw.cur != nil && len(bw.cur.in) > 0 {
+		bw.submit()
+	}
+	marker := &bgzfWJob{flush: true, ready: make(chan struct{}, 1)}
+	bw.order <- marker
+	<-marker.ready
+	return bw.getErr()
 }
 
-func (bw *BGZFWriter) flushBlock() error {
-	bw.cbuf.Reset()
-	var err error
-	if bw.fw == nil {
-		bw.fw, err = flate.NewWriter(&bw.cbuf, bw.level)
-		if err != nil {
-			bw.err = err
-			return err
-		}
-	} else {
-		bw.fw.Reset(&bw.cbuf)
-	}
-	if _, err = bw.fw.Write(bw.buf); err == nil {
-		err = bw.fw.Close()
-	}
-	if err != nil {
-		bw.err = err
-		return err
-	}
-	cdata := bw.cbuf.Bytes()
-	if len(cdata)+26 > bgzfMaxBlock {
-		// Incompressible data: store it (a stored block adds 5 bytes).
-		bw.cbuf.Reset()
-		sw, _ := flate.NewWriter(&bw.cbuf, flate.NoCompression)
-		sw.Write(bw.buf)
-		sw.Close()
-		cdata = bw.cbuf.Bytes()
-	}
-	err = bw.writeBlock(cdata, crc32.ChecksumIEEE(bw.buf), len(bw.buf))
-	bw.buf = bw.buf[:0]
-	return err
-}
-
-func (bw *BGZFWriter) writeBlock(cdata []byte, crc uint32, isize int) error {
-	h := bw.hdr[:]
-	copy(h, bgzfEOF[:16])
-	binary.LittleEndian.PutUint16(h[16:18], uint16(len(cdata)+25))
-	var tail [8]byte
-	binary.LittleEndian.PutUint32(tail[0:4], crc)
-	binary.LittleEndian.PutUint32(tail[4:8], uint32(isize))
-	for _, p := range [][]byte{h, cdata, tail[:]} {
-		if _, err := bw.w.Write(p); err != nil {
-			bw.err = err
-			return err
-		}
-	}
-	return nil
-}
-
-// Close flushes the last block and writes the EOF block. It does not close
-// the underlying writer.
+// Close flushes the last block, writes the EOF block and stops the
+// goroutines. It does not close the underlying writer.
 func (bw *BGZFWriter) Close() error {
-	if bw.err != nil {
-		return bw.err
+	if bw.closed {
+		return bw.getErr()
 	}
-	if err := bw.Flush(); err != nil {
+	if bw.started {
+		if bw.cur != nil && len(bw.cur.in) > 0 {
+			bw.submit()
+		}
+		close(bw.order)
+		close(bw.jobs)
+		<-bw.done
+	}
+	bw.closed = true
+	if err := bw.getErr(); err != nil {
 		return err
 	}
 	if _, err := bw.w.Write(bgzfEOF); err != nil {
-		bw.err = err
+		bw.setErr(err)
 		return err
 	}
-	bw.err = errWriterClosed
 	return nil
 }
 

@@ -154,7 +154,8 @@ var bcfMagic2 = []byte("BCF\x02")
 
 func newReader(src io.Reader, name, path string, opt Options, total int64) (*Reader, error) {
 	opt = withDefaults(opt)
-	r := &Reader{name: name, opt: opt, total: total, warnings: map[string]*Warning{}, curChrom: -1 << 31}
+	r := &Reader{name: name, opt: opt, total: total, warnings: map[string]*Warning{}, curChrom: -1 << 31,
+		contigIdx: map[string]int{}, doneChroms: map[int]bool{}}
 	r.cnt = &countingReader{r: src}
 	raw := bufio.NewReaderSize(r.cnt, 1<<16)
 	head, _ := raw.Peek(18)

@@ -564,3 +564,46 @@ func TestCloseEarly(t *testing.T) {
 		t.Errorf("%d goroutines left running after Close (%d before)", n-before, before)
 	}
 }
+
+// TestBGZFWriterFlushAndThreads checks that Flush ends a block, that the
+// output is the same whatever the number of compressing goroutines, and
+// that writes after Close fail.
+func TestBGZFWriterFlushAndThreads(t *testing.T) {
+	text := plainText(t, filepath.Join("..", "testdata", "cohort189.vcf.gz"))
+	var outs [][]byte
+	for _, threads := range []int{1, 4} {
+		var buf bytes.Buffer
+		w := NewBGZFWriter(&buf, 6)
+		w.SetThreads(threads)
+		w.Write(text[:1000])
+		if err := w.Flush(); err != nil {
+			t.Fatal(err)
+		}
+		if n := len(bgzfBlocks(t, buf.Bytes())); n != 1 {
+			t.Errorf("after Flush %d blocks written, want 1", n)
+		}
+		w.Write(text[1000:])
+		if err := w.Close(); err != nil {
+			t.Fatal(err)
+		}
+		if _, err := w.Write([]byte("x")); err == nil {
+			t.Error("Write after Close succeeded")
+		}
+		outs = append(outs, buf.Bytes())
+	}
+	if !bytes.Equal(outs[0], outs[1]) {
+		t.Error("output depends on the number of threads")
+	}
+	got, err := io.ReadAll(mustGzip(t, outs[1]))
+	if err != nil || !bytes.Equal(got, text) {
+		t.Errorf("gzip reads back %d bytes (%v), want %d", len(got), err, len(text))
+	}
+}
+
+func mustGzip(t *testing.T, data []byte) io.Reader {
+	zr, err := gzip.NewReader(bytes.NewReader(data))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return zr
+}
