@@ -96,4 +96,3 @@ func BenchmarkBuild1M(b *testing.B) {
 		}
 	}
 }
-
