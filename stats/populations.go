@@ -215,7 +215,7 @@ func (t *Totals) PopulationSummary() map[string]any {
 	for i, name := range t.PopNames {
 		per[name] = ns[i]
 	}
-	var unassigned []string
+	unassigned := []string{}
 	for i, p := range t.PopOf {
 		if p < 0 && len(unassigned) < 100 {
 			unassigned = append(unassigned, t.Samples[i])
