@@ -415,3 +415,46 @@ func TestGeneticMap(t *testing.T) {
 		t.Errorf("length from map %v cM, want 14.4", got)
 	}
 }
+
+// In a closed herd every animal's realized autozygosity has expectation
+// equal to its own pedigree F, so their averages over many replicates agree
+// (common practice: gene dropping is unbiased for pedigree F, MacCluer et
+// al. 1986, J Hered 77:157).
+func TestGeneDropClosedHerd(t *testing.T) {
+	d, err := ParseDesign("closed_herd:6:12:2")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var genome []Chromosome
+	for c := 1; c <= 10; c++ {
+		genome = append(genome, Chromosome{Name: strconv.Itoa(c), LengthBP: 150e6, LengthCM: 150})
+	}
+	reps := 200
+	if testing.Short() {
+		reps = 100
+	}
+	res, err := Run(Config{Seed: 77, Chromosomes: genome, Designs: []Design{d}, Replicates: reps, NoSites: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var sumPed, sumReal float64
+	n := 0
+	for _, s := range res.Samples {
+		if s.Class == "herd_generation_6" {
+			sumPed += s.FPedigree
+			sumReal += s.FRealized
+			n++
+		}
+	}
+	if n != reps*12 {
+		t.Fatalf("%d animals in generation 6, want %d", n, reps*12)
+	}
+	mp, mr := sumPed/float64(n), sumReal/float64(n)
+	t.Logf("generation 6: mean pedigree F %.4f, mean realized %.4f over %d animals", mp, mr, n)
+	if mp < 0.1 {
+		t.Errorf("mean pedigree F %v implausibly low for six generations with two sires", mp)
+	}
+	if math.Abs(mp-mr) > 0.01 {
+		t.Errorf("mean realized %v vs mean pedigree F %v (tolerance 0.01)", mr, mp)
+	}
+}
