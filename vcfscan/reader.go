@@ -53,6 +53,7 @@ type Reader struct {
 	// ordered stage state (used by Next only)
 	contigIdx  map[string]int
 	lineBase   int64
+	noLines    bool // region queries: line numbers unknown, reported as 0
 	seq        int64
 	curChrom   int
 	lastPos    int64
@@ -229,7 +230,7 @@ func newReader(src io.Reader, name, path string, opt Options, total int64) (*Rea
 		}
 		tb = bufio.NewReaderSize(s, 1<<20)
 		src2 = s
-		r.lineBase = 0 // line numbers are unknown after a jump; errors carry the BGZF offset instead
+		r.noLines = true // line numbers are unknown after jumping into the file
 	}
 	// Hand the chunker what the header reader buffered, then the stream
 	// itself, so that large reads skip the extra copy through bufio.
@@ -524,6 +525,10 @@ func (r *Reader) fixErr(err error) error {
 	var pe *ParseError
 	if errors.As(err, &pe) && pe.Line > 0 {
 		pe.Line += r.lineBase
+		if r.noLines {
+			pe.Line = 0
+			pe.Field = "in a region query: " + pe.Field
+		}
 	}
 	return err
 }
@@ -543,7 +548,14 @@ func (r *Reader) finishBatch(b *Batch) error {
 				id = len(r.hdr.Contigs)
 				r.hdr.Contigs = append(r.hdr.Contigs, Contig{Name: string(n)})
 				r.contigIdx[string(n)] = id
-				r.warn(warnNames[warnContigNotInHeader], fmt.Sprintf("%s: %s", r.name, n))
+				line := int64(0)
+				for _, blk := range st.blocks {
+					if blk.id == -(k + 1) {
+						line = blk.firstLine + base
+						break
+					}
+				}
+				r.warn(warnNames[warnContigNotInHeader], fmt.Sprintf("%s:%d: contig %s has no ##contig line (no length known)", r.name, line, n))
 			}
 			local[k] = id
 		}
@@ -557,6 +569,9 @@ func (r *Reader) finishBatch(b *Batch) error {
 	for i := range b.Records {
 		rec := &b.Records[i]
 		rec.Line += base
+		if r.noLines {
+			rec.Line = 0
+		}
 		if rec.ChromID < 0 {
 			rec.ChromID = resolve(rec.ChromID)
 		}

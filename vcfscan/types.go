@@ -84,7 +84,8 @@ type Record struct {
 	// or when no key was asked for.
 	InfoValue float64
 	// Line is the 1-based line number (VCF) or 0-based record index (BCF)
-	// of the record in the input, for error messages.
+	// of the record in the input, for error messages; 0 for VCF records
+	// read through a region query, where line numbers are unknown.
 	Line int64
 }
 
@@ -147,7 +148,7 @@ type Limits struct {
 	MaxLineBytes   int // default 256 MiB
 	MaxSamples     int // default 10,000,000
 	MaxAlleles     int // default 1,000
-	MaxBlockExpand int // max ISIZE of a BGZF block / max gzip expansion ratio guard
+	MaxBlockExpand int // max ISIZE of a BGZF block (default 65,536, the format's maximum); plain gzip is inflated as a stream and needs no guard
 }
 
 // NaN is returned for absent INFO values.
