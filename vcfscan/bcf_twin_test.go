@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -396,6 +397,40 @@ func TestBCFRequireSorted(t *testing.T) {
 			}
 			if !wantErr && (err != io.EOF || n != len(c.recs)) {
 				t.Errorf("%s require=%v: %d records, end %v", c.name, require, n, err)
+			}
+		}
+	}
+}
+
+// TestBCFInfoValues compares Record.InfoValue between twins for INFO keys
+// of every type: Flag, Integer, Float, Character and String (a String
+// value is read as a number when it is one, as in the VCF path).
+func TestBCFInfoValues(t *testing.T) {
+	for _, c := range []struct {
+		vcf, bcf string
+		keys     []string
+	}{
+		{"../testdata/chr22_1000g.vcf.gz", "../testdata/bcf/chr22_1000g.bcf", []string{"AN", "AC", "LDAF", "RSQ", "THETA", "AA", "VT", "SNPSOURCE", "NOSUCHKEY"}},
+		{"../testdata/cohort189.vcf.gz", "../testdata/bcf/cohort189.bcf", []string{"EXOME_CHIP_flag", "NEGATIVE_TRAIN_SITE", "superdup", "encode_consensus_h1hesc", "InbreedingCoeff", "MLEAF", "HWP", "set", "AC"}},
+		{"../testdata/edge/test-haploidX.vcf", "../testdata/bcf/test-haploidX.bcf", []string{"DS", "AF", "GQ_MEAN", "END", "MQ0"}},
+	} {
+		for _, k := range c.keys {
+			opt := Options{IncludeFiltered: true, InfoKey: k}
+			v := bcfScanFile(t, c.vcf, opt)
+			b := bcfScanFile(t, c.bcf, opt)
+			bcfCompareScans(t, filepath.Base(c.bcf)+" INFO "+k, v, b, true)
+			present := 0
+			for _, r := range b.recs {
+				if !math.IsNaN(r.Info) {
+					present++
+				}
+			}
+			t.Logf("%s %s: %d of %d kept records have a value", filepath.Base(c.bcf), k, present, len(b.recs))
+			if k == "NOSUCHKEY" && present != 0 {
+				t.Errorf("absent key gave %d values", present)
+			}
+			if (k == "superdup" || k == "AN" || k == "MLEAF") && present == 0 {
+				t.Errorf("%s: no record has a value; the comparison proves little", k)
 			}
 		}
 	}
