@@ -5,6 +5,7 @@ import (
 	"image/color"
 	"math"
 	"sort"
+	"strconv"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -105,11 +106,7 @@ func (c *cohort) figEstimators() (figure, error) {
 	var panels []*plot.Plot
 	for _, e := range others {
 		xs := c.col(e)
-		resid := make([]float64, n)
-		for i := range resid {
-			resid[i] = math.Abs(xs[i] - ys[i])
-		}
-		lab := labelTop(resid, maxLabels)
+		lab := outliers(xs, ys, maxLabels)
 		keep := map[int]bool{}
 		for _, i := range lab {
 			keep[i] = true
@@ -138,7 +135,7 @@ func (c *cohort) figEstimators() (figure, error) {
 	}
 	var err error
 	f.SVG, err = renderGrid(grid, plotW, vg.Length(rows)*6.5*vg.Centimeter)
-	f.Caption = fmt.Sprintf("Each point is one sample; the dashed line is where both estimators agree. Labelled: the %d samples furthest from the line in each panel.", maxLabels)
+	f.Caption = fmt.Sprintf("Each point is one sample; the dashed line is where both estimators agree. Labelled: up to %d samples per panel that lie furthest from the bulk of the cohort (robust distance), skipping labels that would overlap.", maxLabels)
 	if f.Points < f.Total {
 		f.Note = fmt.Sprintf("%d of %d sample-estimator pairs drawn: every %d-th sample plus the labelled and highlighted ones.", f.Points, f.Total, max(1, n/maxScatterPoints))
 	}
@@ -238,29 +235,47 @@ func (c *cohort) figRunLengths() (figure, error) {
 		f.Empty = noData("runs (runs.tsv)")
 		return f, nil
 	}
+	// bins of equal width in log10(length), so short and long runs both
+	// show; runs of zero length (malformed) are left out
 	const nbins = 40
-	hi := 0.0
+	lo, hi := math.Inf(1), math.Inf(-1)
+	var logs []float64
 	for _, v := range c.d.runLenMb {
-		hi = math.Max(hi, v)
+		if v > 0 {
+			l := math.Log10(v)
+			logs = append(logs, l)
+			lo, hi = math.Min(lo, l), math.Max(hi, l)
+		}
 	}
-	if hi <= 0 {
-		hi = 1
+	if len(logs) == 0 {
+		f.Empty = "No run has a positive length."
+		return f, nil
+	}
+	if hi-lo < 1e-9 {
+		lo, hi = lo-0.5, hi+0.5
 	}
 	bins := make([]plotter.HistogramBin, nbins)
-	w := hi / nbins
+	w := (hi - lo) / nbins
 	for i := range bins {
-		bins[i] = plotter.HistogramBin{Min: float64(i) * w, Max: float64(i+1) * w}
+		bins[i] = plotter.HistogramBin{Min: lo + float64(i)*w, Max: lo + float64(i+1)*w}
 	}
-	for _, v := range c.d.runLenMb {
-		i := min(nbins-1, max(0, int(v/w)))
-		bins[i].Weight++
+	for _, l := range logs {
+		bins[min(nbins-1, max(0, int((l-lo)/w)))].Weight++
 	}
-	p := newPlot("", "run length (Mb)", "number of runs")
+	p := newPlot("", "run length (Mb, logarithmic scale)", "number of runs")
+	p.Y.Tick.Marker = countTicks{}
+	var at []float64
+	var names []string
+	for _, mb := range []float64{0.01, 0.03, 0.1, 0.25, 0.5, 1, 2, 4, 8, 16, 32, 64, 128, 256} {
+		at = append(at, math.Log10(mb))
+		names = append(names, strconv.FormatFloat(mb, 'g', -1, 64))
+	}
+	p.X.Tick.Marker = tickNames{at: at, names: names}
 	p.Add(histFromCounts(bins, colTeal))
 	f.Points, f.Total = nbins, len(c.d.runLenMb)
-	f.Caption = fmt.Sprintf("%d runs in %d bins of %.3g Mb.", len(c.d.runLenMb), nbins, w)
+	f.Caption = fmt.Sprintf("%d runs in %d bins of equal width on a logarithmic length axis (each bin spans a factor of %.3g).", len(logs), nbins, math.Pow(10, w))
 	var err error
-	f.SVG, err = renderPlot(p, plotW, plotH*0.8)
+	f.SVG, err = renderPlot(p, plotW, plotH*0.6)
 	return f, err
 }
 
@@ -487,6 +502,7 @@ func (c *cohort) figFSite() (figure, error) {
 		bins[i] = plotter.HistogramBin{Min: -1 + float64(i)*w, Max: -1 + float64(i+1)*w, Weight: float64(s.fSite[i])}
 	}
 	p := newPlot("", "f_site", "number of sites")
+	p.Y.Tick.Marker = countTicks{}
 	p.Add(histFromCounts(bins, colOchre))
 	f.Points, f.Total = fSiteBins, int(s.fSiteN)
 	f.Caption = fmt.Sprintf("%s sites with a defined f_site (%s NA) in %d bins over [−1, 1].", fmtInt(s.fSiteN), fmtInt(s.fSiteNA), fSiteBins)
@@ -648,7 +664,7 @@ func (c *cohort) figQuality() (figure, error) {
 	}
 	keep := subsample(len(plain), maxScatterPoints, nil)
 	p := newPlot("", "call rate", "heterozygous share of calls")
-	add := func(rows []int, g draw.GlyphStyle, name string) int {
+	add := func(rows []int, g draw.GlyphStyle) int {
 		pts := make(plotter.XYs, 0, len(rows))
 		for _, i := range rows {
 			if math.IsNaN(xs[i]) || math.IsNaN(ys[i]) {
@@ -662,19 +678,18 @@ func (c *cohort) figQuality() (figure, error) {
 		s, _ := plotter.NewScatter(pts)
 		s.GlyphStyle = g
 		p.Add(s)
-		p.Legend.Add(name, s)
 		return len(pts)
 	}
 	rows := make([]int, len(keep))
 	for j, k := range keep {
 		rows[j] = plain[k]
 	}
-	f.Points += add(rows, draw.GlyphStyle{Color: colPoint, Radius: vg.Points(2.2), Shape: draw.CircleGlyph{}}, "not flagged")
+	f.Points += add(rows, draw.GlyphStyle{Color: colPoint, Radius: vg.Points(2.2), Shape: draw.CircleGlyph{}})
 	fl := flagged
 	if len(fl) > maxScatterPoints {
 		fl = fl[:maxScatterPoints]
 	}
-	f.Points += add(fl, draw.GlyphStyle{Color: colBrick, Radius: vg.Points(3.2), Shape: draw.TriangleGlyph{}}, "flagged")
+	f.Points += add(fl, draw.GlyphStyle{Color: colBrick, Radius: vg.Points(3.2), Shape: draw.TriangleGlyph{}})
 	for i := 0; i < n; i++ {
 		if !math.IsNaN(xs[i]) && !math.IsNaN(ys[i]) {
 			f.Total++
@@ -685,9 +700,7 @@ func (c *cohort) figQuality() (figure, error) {
 		lab = lab[:maxLabels]
 	}
 	addLabels(p, xs, ys, lab, c.names)
-	p.Legend.Top = true
-	p.Legend.Left = true
-	f.Caption = fmt.Sprintf("%d samples flagged (triangles); up to %d of them are labelled.", len(flagged), maxLabels)
+	f.Caption = fmt.Sprintf("Circles: samples without a flag; red triangles: the %d flagged samples (up to %d labelled). Low call rate sits to the left; contamination or mixed samples tend to sit high, samples from another population or truly inbred ones low.", len(flagged), maxLabels)
 	if f.Points < f.Total {
 		f.Note = fmt.Sprintf("%d of %d samples drawn: every flagged sample (up to %d) and an even subsample of the rest.", f.Points, f.Total, maxScatterPoints)
 	}

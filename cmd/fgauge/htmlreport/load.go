@@ -63,15 +63,18 @@ type runInfo struct {
 		Excluded []json.RawMessage `json:"excluded"`
 	} `json:"samples"`
 	Sites struct {
-		Tested        int64         `json:"tested"`
-		Below1e3      int64         `json:"hwe_p_below_1e3"`
-		Below1e6      int64         `json:"hwe_p_below_1e6"`
-		Below1e10     int64         `json:"hwe_p_below_1e10"`
-		Lambda        *flexFloat    `json:"lambda"`
-		MeanFSite     *flexFloat    `json:"mean_f_site"`
-		QQ            [][]flexFloat `json:"qq"`
-		present       bool
-		lambdaMissing bool
+		Tested      int64         `json:"tested"`
+		Below1e3    int64         `json:"hwe_p_below_1e3"`
+		Below1e6    int64         `json:"hwe_p_below_1e6"`
+		Below1e10   int64         `json:"hwe_p_below_1e10"`
+		Lambda      *flexFloat    `json:"lambda"`
+		MeanFSite   *flexFloat    `json:"mean_f_site"`
+		QQ          [][]flexFloat `json:"qq"`
+		HWEMethod   string        `json:"hwe_method"`
+		Frequencies struct {
+			Source string `json:"source"`
+		} `json:"frequencies"`
+		present bool
 	} `json:"sites"`
 	ROH struct {
 		Method          string           `json:"method"`

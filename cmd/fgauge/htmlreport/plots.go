@@ -325,4 +325,100 @@ func noData(what string) string { return fmt.Sprintf("No %s in this output folde
 
 // legendRoom widens a painting's x range so the legend sits beside the
 // tracks, not on them.
-const legendRoom = 1.16
+const legendRoom = 1.2
+
+// outliers picks up to k points to label: those furthest from the median
+// of the cloud, each axis scaled by its median absolute deviation (a
+// robust distance, common practice), skipping points whose label would sit
+// on top of one already chosen.
+func outliers(xs, ys []float64, k int) []int {
+	var vx, vy []float64
+	for i := range xs {
+		if !math.IsNaN(xs[i]) && !math.IsNaN(ys[i]) {
+			vx, vy = append(vx, xs[i]), append(vy, ys[i])
+		}
+	}
+	if len(vx) == 0 {
+		return nil
+	}
+	mx, my := median(vx), median(vy)
+	sx, sy := mad(vx, mx), mad(vy, my)
+	score := make([]float64, len(xs))
+	for i := range xs {
+		if math.IsNaN(xs[i]) || math.IsNaN(ys[i]) {
+			score[i] = math.NaN()
+			continue
+		}
+		dx, dy := (xs[i]-mx)/sx, (ys[i]-my)/sy
+		score[i] = dx*dx + dy*dy
+	}
+	return declutter(xs, ys, labelTop(score, len(score)), k)
+}
+
+// mad is the median absolute deviation around m, never zero.
+func mad(v []float64, m float64) float64 {
+	d := make([]float64, len(v))
+	for i, x := range v {
+		d[i] = math.Abs(x - m)
+	}
+	s := median(d)
+	if s <= 0 || math.IsNaN(s) {
+		lo, hi := math.Inf(1), math.Inf(-1)
+		for _, x := range v {
+			lo, hi = math.Min(lo, x), math.Max(hi, x)
+		}
+		s = (hi - lo) / 4
+	}
+	if s <= 0 {
+		s = 1
+	}
+	return s
+}
+
+// declutter keeps, in order, up to k of the candidate rows whose points
+// are at least 6% of the data range apart (in both axes' units) from every
+// row kept before.
+func declutter(xs, ys []float64, cand []int, k int) []int {
+	lox, hix, loy, hiy := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
+	for i := range xs {
+		if !math.IsNaN(xs[i]) && !math.IsNaN(ys[i]) {
+			lox, hix = math.Min(lox, xs[i]), math.Max(hix, xs[i])
+			loy, hiy = math.Min(loy, ys[i]), math.Max(hiy, ys[i])
+		}
+	}
+	rx, ry := math.Max(hix-lox, 1e-12), math.Max(hiy-loy, 1e-12)
+	var out []int
+	for _, i := range cand {
+		if len(out) == k {
+			break
+		}
+		if math.IsNaN(xs[i]) || math.IsNaN(ys[i]) {
+			continue
+		}
+		ok := true
+		for _, j := range out {
+			dx, dy := (xs[i]-xs[j])/rx, (ys[i]-ys[j])/ry
+			if dx*dx+dy*dy < 0.06*0.06 {
+				ok = false
+				break
+			}
+		}
+		if ok {
+			out = append(out, i)
+		}
+	}
+	return out
+}
+
+// countTicks labels a count axis with whole numbers.
+type countTicks struct{}
+
+func (countTicks) Ticks(min, max float64) []plot.Tick {
+	ticks := plot.DefaultTicks{}.Ticks(min, max)
+	for i := range ticks {
+		if ticks[i].Label != "" {
+			ticks[i].Label = fmtInt(int64(math.Round(ticks[i].Value)))
+		}
+	}
+	return ticks
+}

@@ -77,6 +77,17 @@ func sortedKV(m map[string]int64) []kv {
 	return out
 }
 
+// nonZero drops reasons that never happened.
+func nonZero(in []kv) []kv {
+	out := in[:0]
+	for _, e := range in {
+		if e.N != 0 {
+			out = append(out, e)
+		}
+	}
+	return out
+}
+
 // cell is a number shown rounded with its exact value alongside.
 type cell struct{ Show, Exact string }
 
@@ -185,7 +196,7 @@ func Write(outDir string, opt Options) error {
 func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 	d := c.d
 	v := &reportView{DirName: filepath.Base(d.dir), Info: &d.info, Head: computeHeadline(d), PageDir: pages != nil}
-	v.Skipped = sortedKV(d.info.Records.Skipped)
+	v.Skipped = nonZero(sortedKV(d.info.Records.Skipped))
 	v.Warnings = sortedKV(d.info.Warnings)
 	v.ExcludedContigs = sortedKV(d.info.ROH.ExcludedContigs)
 	v.Excluded = d.info.excludedNames()
