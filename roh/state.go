@@ -1,0 +1,221 @@
+package roh
+
+import (
+	"fmt"
+	"math"
+
+	"fgauge/vcfscan"
+)
+
+// Piece is the raw material of detection for one stretch of one
+// chromosome: what a shard that holds only part of a chromosome keeps so
+// that the whole chromosome can be detected later, after the pieces of all
+// shards are joined (see JoinAndDetect). Fields are exported and plain for
+// encoding/gob.
+type Piece struct {
+	Name   string
+	Length int64     // header length, 0 when unknown
+	Pos    []int64   // positions, not decreasing
+	Freq   []float64 // alternate-allele frequency per site (as given to the detector)
+	// Geno holds per sample the calls packed 2 bits each (32 per word,
+	// site t in bits 2*(t%32) of word t/32): 0, 1, 2 copies of ALT, 3 missing.
+	Geno [][]uint64
+	// PLSite gives per site the index of its likelihood triple in PL, or
+	// -1; PL holds per sample 3 capped phred values per site with likelihoods.
+	PLSite []int32
+	PL     [][]uint8
+}
+
+// PieceCollector keeps the raw per-site data of chromosomes that a shard
+// holds only in part. Records of contigs that are not autosomes are
+// counted as the Collector counts them. It is used from one goroutine.
+type PieceCollector struct {
+	auto     autosomeSet
+	contigs  []vcfscan.Contig
+	nSamples int
+	byID     map[int]*chromData
+	order    []int
+	excluded map[string]int64
+}
+
+// NewPieceCollector returns a collector for nSamples samples with the
+// autosome rules of cfg (validated on a copy).
+func NewPieceCollector(cfg *Config, nSamples int, contigs []vcfscan.Contig) (*PieceCollector, error) {
+	c := *cfg
+	if err := c.Validate(); err != nil {
+		return nil, err
+	}
+	return &PieceCollector{auto: c.autosomes(), contigs: contigs, nSamples: nSamples,
+		byID: map[int]*chromData{}, excluded: map[string]int64{}}, nil
+}
+
+// UpdateContigs replaces the contig list (see Collector.UpdateContigs).
+func (p *PieceCollector) UpdateContigs(contigs []vcfscan.Contig) { p.contigs = contigs }
+
+// AddBatch keeps every record of b, which must come in input order like
+// the batches of Collector.AddBatch; freqs has the same meaning.
+func (p *PieceCollector) AddBatch(b *vcfscan.Batch, freqs []float64) error {
+	if b.NSamples != p.nSamples {
+		return fmt.Errorf("roh: batch has %d samples, collector %d: %w", b.NSamples, p.nSamples, vcfscan.ErrSampleCount)
+	}
+	ns := b.NSamples
+	for i := range b.Records {
+		rec := &b.Records[i]
+		name := fmt.Sprintf("contig_%d", rec.ChromID)
+		var length int64
+		if rec.ChromID >= 0 && rec.ChromID < len(p.contigs) {
+			name, length = p.contigs[rec.ChromID].Name, p.contigs[rec.ChromID].Length
+		}
+		if !p.auto.is(name) {
+			p.excluded[name]++
+			continue
+		}
+		ch := p.byID[rec.ChromID]
+		if ch == nil {
+			ch = newChromData(rec.ChromID, name, length, ns)
+			p.byID[rec.ChromID] = ch
+			p.order = append(p.order, rec.ChromID)
+		}
+		if n := len(ch.pos); n > 0 && rec.Pos < ch.pos[n-1] {
+			return fmt.Errorf("roh: position %d after %d on %s: %w", rec.Pos, ch.pos[n-1], name, vcfscan.ErrUnsorted)
+		}
+		calls := b.GT[i*ns : (i+1)*ns]
+		f := math.NaN()
+		if freqs != nil {
+			f = freqs[i]
+		}
+		if f != f {
+			f = cohortFreq(calls)
+		}
+		var pl []uint16
+		if b.PL != nil && i < len(b.HasPL) && b.HasPL[i] {
+			pl = b.PL[3*i*ns : 3*(i+1)*ns]
+		}
+		ch.appendSite(rec.Pos, f, calls, pl)
+	}
+	return nil
+}
+
+// appendSite adds one site, packing the calls as Collector.AddBatch does.
+func (ch *chromData) appendSite(pos int64, f float64, calls []vcfscan.Geno, pl []uint16) {
+	t := len(ch.pos)
+	ch.pos = append(ch.pos, pos)
+	ch.freq = append(ch.freq, f)
+	sh := uint(t&31) * 2
+	if sh == 0 {
+		for s := range ch.geno {
+			ch.geno[s] = append(ch.geno[s], 0)
+		}
+	}
+	w := t >> 5
+	for s, g := range calls {
+		if g > 3 {
+			g = 3
+		}
+		ch.geno[s][w] |= uint64(g) << sh
+	}
+	if pl == nil {
+		ch.plSite = append(ch.plSite, -1)
+		return
+	}
+	if ch.pl == nil {
+		ch.pl = make([][]uint8, len(ch.geno))
+	}
+	for s := range ch.geno {
+		ch.pl[s] = append(ch.pl[s], cap255(pl[3*s]), cap255(pl[3*s+1]), cap255(pl[3*s+2]))
+	}
+	ch.plSite = append(ch.plSite, ch.nPL)
+	ch.nPL++
+}
+
+// Pieces returns the kept pieces in the order their chromosomes were first
+// met, and the non-autosomal records counted by contig.
+func (p *PieceCollector) Pieces() ([]Piece, map[string]int64) {
+	out := make([]Piece, 0, len(p.order))
+	for _, id := range p.order {
+		ch := p.byID[id]
+		out = append(out, Piece{Name: ch.name, Length: ch.length, Pos: ch.pos, Freq: ch.freq,
+			Geno: ch.geno, PLSite: ch.plSite, PL: ch.pl})
+	}
+	return out, p.excluded
+}
+
+// JoinAndDetect joins the pieces of each chromosome (given per chromosome
+// in position order; chromosomes in the order wanted in the result) into
+// the data one pass over the whole chromosome would have collected, and
+// runs detection on it with cfg. Because the joined data are identical to
+// the single-pass data, so are the runs. The result's Excluded is empty.
+func JoinAndDetect(cfg *Config, samples []string, pieces [][]Piece) (*Result, error) {
+	contigs := make([]vcfscan.Contig, len(pieces))
+	for i, ps := range pieces {
+		if len(ps) == 0 {
+			return nil, fmt.Errorf("roh: join: chromosome %d has no pieces", i)
+		}
+		contigs[i] = vcfscan.Contig{Name: ps[0].Name, Length: ps[0].Length}
+	}
+	col, err := NewCollector(cfg, samples, contigs)
+	if err != nil {
+		return nil, err
+	}
+	for i, ps := range pieces {
+		ch, err := joinPieces(i, ps, len(samples))
+		if err != nil {
+			col.Finish()
+			return nil, err
+		}
+		if len(ch.pos) > 0 {
+			col.done[i] = true
+			col.dispatch(ch)
+		}
+	}
+	return col.Finish()
+}
+
+// joinPieces concatenates pieces of one chromosome, re-packing genotypes.
+func joinPieces(id int, ps []Piece, ns int) (*chromData, error) {
+	ch := newChromData(id, ps[0].Name, ps[0].Length, ns)
+	calls := make([]vcfscan.Geno, ns)
+	var pl []uint16
+	for k := range ps {
+		p := &ps[k]
+		if p.Name != ch.name {
+			return nil, fmt.Errorf("roh: join: piece of %s among pieces of %s", p.Name, ch.name)
+		}
+		n := len(p.Pos)
+		if len(p.Freq) != n || len(p.PLSite) != n || len(p.Geno) != ns || (p.PL != nil && len(p.PL) != ns) {
+			return nil, fmt.Errorf("roh: join: piece %d of %s is inconsistent", k, p.Name)
+		}
+		for s := 0; s < ns; s++ {
+			if len(p.Geno[s]) != (n+31)/32 {
+				return nil, fmt.Errorf("roh: join: piece %d of %s has %d genotype words for %d sites", k, p.Name, len(p.Geno[s]), n)
+			}
+		}
+		if n > 0 && len(ch.pos) > 0 && p.Pos[0] < ch.pos[len(ch.pos)-1] {
+			return nil, fmt.Errorf("roh: join: pieces of %s overlap or are out of order (%d after %d): %w",
+				p.Name, p.Pos[0], ch.pos[len(ch.pos)-1], vcfscan.ErrUnsorted)
+		}
+		for t := 0; t < n; t++ {
+			if t > 0 && p.Pos[t] < p.Pos[t-1] {
+				return nil, fmt.Errorf("roh: join: piece %d of %s is not sorted: %w", k, p.Name, vcfscan.ErrUnsorted)
+			}
+			w, sh := t>>5, uint(t&31)*2
+			for s := 0; s < ns; s++ {
+				calls[s] = vcfscan.Geno(p.Geno[s][w]>>sh) & 3
+			}
+			pl = pl[:0]
+			if i := p.PLSite[t]; i >= 0 {
+				for s := 0; s < ns; s++ {
+					if int(3*i+2) >= len(p.PL[s]) {
+						return nil, fmt.Errorf("roh: join: piece %d of %s has a likelihood index out of range", k, p.Name)
+					}
+					q := p.PL[s][3*i : 3*i+3]
+					pl = append(pl, uint16(q[0]), uint16(q[1]), uint16(q[2]))
+				}
+				ch.appendSite(p.Pos[t], p.Freq[t], calls, pl)
+				continue
+			}
+			ch.appendSite(p.Pos[t], p.Freq[t], calls, nil)
+		}
+	}
+	return ch, nil
+}
