@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"reflect"
 	"runtime"
+	"sort"
 	"strings"
 	"testing"
 	"time"
@@ -606,4 +607,61 @@ func mustGzip(t *testing.T, data []byte) io.Reader {
 		t.Fatal(err)
 	}
 	return zr
+}
+
+// TestTextLayout covers line endings, blank lines and a missing
+// ##fileformat line.
+func TestTextLayout(t *testing.T) {
+	rec := "1\t10\t.\tA\tG\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1"
+	cases := []struct {
+		name  string
+		data  string
+		kept  int
+		warns string
+	}{
+		{"no final newline", miniHeader + rec, 1, ""},
+		{"CRLF everywhere", strings.ReplaceAll(miniHeader+rec+"\n", "\n", "\r\n"), 1, ""},
+		{"blank lines", miniHeader + "\n" + rec + "\n\n" + rec + "\n", 2, "blank_lines"},
+		{"no fileformat line", "#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT\ta\tb\tc\n" + rec + "\n", 1, "contig_not_in_header,no_fileformat_line"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			res, err := readBytes(t, []byte(c.data), Options{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			var kinds []string
+			for _, w := range res.warns {
+				kinds = append(kinds, w.Kind)
+			}
+			sort.Strings(kinds)
+			if len(res.sites) != c.kept || strings.Join(kinds, ",") != c.warns {
+				t.Errorf("kept %d warnings %v, want %d %q", len(res.sites), kinds, c.kept, c.warns)
+			}
+			if !reflect.DeepEqual(res.samples, []string{"a", "b", "c"}) {
+				t.Errorf("samples %q", res.samples)
+			}
+		})
+	}
+}
+
+// TestProgress checks that Progress reaches the file size.
+func TestProgress(t *testing.T) {
+	path := filepath.Join("..", "testdata", "chr22_1000g.vcf.gz")
+	st, err := os.Stat(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := Open(path, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	if _, err := collect(t, r); err != nil {
+		t.Fatal(err)
+	}
+	done, total := r.Progress()
+	if total != st.Size() || done != total {
+		t.Errorf("progress %d of %d, file has %d bytes", done, total, st.Size())
+	}
 }
