@@ -751,7 +751,21 @@ func (d *bcfDecoder) decode(rec []byte, index int64, b *Batch) (kept bool, reaso
 	base := len(b.GT)
 	b.GT = growGeno(b.GT, nOut)
 	calls := b.GT[base : base+nOut]
+	if gt.typ == bcfTypeInt8 && gt.n == 2 {
+		// Fast path for the common diploid int8 vector: one table lookup
+		// per call; anything unusual falls back to bcfGenotype below.
+		for j, s := range d.sel {
+			calls[j] = bcfGT8[uint16(gt.data[2*s])<<8|uint16(gt.data[2*s+1])]
+		}
+	} else {
+		for j := range calls {
+			calls[j] = slowGT
+		}
+	}
 	for j, s := range d.sel {
+		if calls[j] != slowGT {
+			continue
+		}
 		code := Missing
 		if gt.n > 0 {
 			var w warnKind
@@ -914,6 +928,21 @@ func (d *bcfDecoder) likelihoods(dst []uint16, f bcfField, s int, gl bool) {
 		dst[0], dst[1], dst[2] = v[0], math.MaxUint16, v[1]
 	}
 }
+
+// bcfGT8 maps the two int8 values of a diploid GT vector to the call code,
+// or to slowGT when bcfGenotype must decide (haploid, warnings, errors).
+var bcfGT8 = func() *[1 << 16]Geno {
+	var t [1 << 16]Geno
+	for i := range t {
+		v := [2]byte{byte(i >> 8), byte(i)}
+		g, w, err := bcfGenotype(v[:], bcfTypeInt8, 0, 2)
+		if err != nil || w != noWarn {
+			g = slowGT
+		}
+		t[i] = g
+	}
+	return &t
+}()
 
 // noWarn is the warnKind result of bcfGenotype when there is nothing to warn.
 const noWarn warnKind = -1

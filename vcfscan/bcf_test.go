@@ -9,6 +9,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -372,37 +373,40 @@ func FuzzBCFRecord(f *testing.F) {
 	})
 }
 
-// BenchmarkBCFDecode decodes the records of the chr22 twin (5 samples,
-// 10,376 records) already in memory, with PL and an INFO value.
+// BenchmarkBCFDecode decodes the records of two twins already in memory:
+// chr22 (5 samples, 10,376 records, GT+DS+GL) and cohort189 (189 samples,
+// 115 records), with GT only and with PL/GL and an INFO value.
 func BenchmarkBCFDecode(b *testing.B) {
-	h, recs := bcfFixtureRecords(b, "../testdata/bcf/chr22_1000g.bcf")
-	for _, c := range []struct {
-		name string
-		opt  Options
-	}{
-		{"gt_only", Options{}},
-		{"gt_pl_info", Options{WantPL: true, InfoKey: "AF"}},
-	} {
-		b.Run(c.name, func(b *testing.B) {
-			d := newBCFDecoder(h, nil, c.opt)
-			batch := &Batch{NSamples: len(h.Samples)}
-			var size int64
-			for _, r := range recs {
-				size += int64(len(r))
-			}
-			b.SetBytes(size)
-			b.ReportAllocs()
-			b.ResetTimer()
-			for i := 0; i < b.N; i++ {
-				batch.Records, batch.GT, batch.PL, batch.HasPL, batch.arena = batch.Records[:0], batch.GT[:0], batch.PL[:0], batch.HasPL[:0], batch.arena[:0]
-				for j, r := range recs {
-					if _, _, err := d.decode(r, int64(j), batch); err != nil {
-						b.Fatal(err)
+	for _, path := range []string{"../testdata/bcf/chr22_1000g.bcf", "../testdata/bcf/cohort189.bcf"} {
+		h, recs := bcfFixtureRecords(b, path)
+		for _, c := range []struct {
+			name string
+			opt  Options
+		}{
+			{"gt_only", Options{IncludeFiltered: true}},
+			{"gt_pl_info", Options{IncludeFiltered: true, WantPL: true, InfoKey: "AF"}},
+		} {
+			b.Run(strings.TrimSuffix(filepath.Base(path), ".bcf")+"/"+c.name, func(b *testing.B) {
+				d := newBCFDecoder(h, nil, c.opt)
+				batch := &Batch{NSamples: len(h.Samples)}
+				var size int64
+				for _, r := range recs {
+					size += int64(len(r))
+				}
+				b.SetBytes(size)
+				b.ReportAllocs()
+				b.ResetTimer()
+				for i := 0; i < b.N; i++ {
+					batch.Records, batch.GT, batch.PL, batch.HasPL, batch.arena = batch.Records[:0], batch.GT[:0], batch.PL[:0], batch.HasPL[:0], batch.arena[:0]
+					for j, r := range recs {
+						if _, _, err := d.decode(r, int64(j), batch); err != nil {
+							b.Fatal(err)
+						}
 					}
 				}
-			}
-			b.ReportMetric(float64(len(recs)*b.N)/b.Elapsed().Seconds(), "records/s")
-		})
+				b.ReportMetric(float64(len(recs)*len(h.Samples)*b.N)/b.Elapsed().Seconds(), "calls/s")
+			})
+		}
 	}
 }
 
