@@ -42,6 +42,16 @@ func TestLargeCohort(t *testing.T) {
 			t.Errorf("%s draws %d marks", m[1], k)
 		}
 	}
+	// pages for two highlighted samples of the 10,000: percentiles are
+	// ranks in the whole cohort
+	must(t, Write(dir, Options{PerSample: true, Highlight: []string{"HILL-001", "VALE-2500"}}))
+	for _, name := range []string{"HILL-001", "VALE-2500"} {
+		page, err := os.ReadFile(filepath.Join(dir, "samples", name+".html"))
+		must(t, err)
+		if !strings.Contains(string(page), "one of 10000 samples") {
+			t.Errorf("%s page does not place the sample in the 10,000", name)
+		}
+	}
 	if m := regexp.MustCompile(`data-plot="fig_roh_classes" data-kind="bars" data-points="(\d+)" data-total="(\d+)"`).FindStringSubmatch(s); m == nil || m[1] == m[2] {
 		t.Errorf("stacked bars not grouped at 10,000 samples: %v", m)
 	}

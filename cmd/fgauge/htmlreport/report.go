@@ -29,6 +29,9 @@ type Options struct {
 // before it shows only the most inbred and the flagged.
 const maxTableRows = 200
 
+// maxExcludedShown caps the list of excluded samples in the summary.
+const maxExcludedShown = 40
+
 // pageTemplates parses the embedded templates once per Write.
 func pageTemplates() (*template.Template, error) {
 	css, err := assets.ReadFile("assets/style.css")
@@ -200,6 +203,10 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 	v.Warnings = sortedKV(d.info.Warnings)
 	v.ExcludedContigs = sortedKV(d.info.ROH.ExcludedContigs)
 	v.Excluded = d.info.excludedNames()
+	if len(v.Excluded) > maxExcludedShown {
+		more := len(v.Excluded) - maxExcludedShown
+		v.Excluded = append(v.Excluded[:maxExcludedShown:maxExcludedShown], fmt.Sprintf("… and %d more (see run.json)", more))
+	}
 	if d.info.ROH.CoveredBP != nil && !math.IsNaN(float64(*d.info.ROH.CoveredBP)) {
 		v.CoveredBP = fmtInt(int64(*d.info.ROH.CoveredBP))
 	}
