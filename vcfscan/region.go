@@ -283,7 +283,8 @@ func regionChunks(path string, h *Header, regs []Region) ([]bgzf.Chunk, error) {
 	var chunks []bgzf.Chunk
 	switch {
 	case bytes.HasPrefix(raw, []byte("TBI\x01")):
-		idx, err := tabix.ReadFrom(bytes.NewReader(raw))
+		var idx *tabix.Index
+		err := noPanic(func() (err error) { idx, err = tabix.ReadFrom(bytes.NewReader(raw)); return err })
 		if err != nil || idx == nil {
 			return nil, fmt.Errorf("%s: %w: cannot read tabix index: %v", idxPath, ErrMalformed, err)
 		}
@@ -314,7 +315,8 @@ func regionChunks(path string, h *Header, regs []Region) ([]bgzf.Chunk, error) {
 		if minShift+3*depth > 62 {
 			return nil, fmt.Errorf("%s: %w: CSI min_shift %d depth %d out of range", idxPath, ErrMalformed, minShift, depth)
 		}
-		idx, err := csi.ReadFrom(bytes.NewReader(raw))
+		var idx *csi.Index
+		err := noPanic(func() (err error) { idx, err = csi.ReadFrom(bytes.NewReader(raw)); return err })
 		if err != nil {
 			return nil, fmt.Errorf("%s: %w: cannot read CSI index: %v", idxPath, ErrMalformed, err)
 		}
@@ -349,7 +351,27 @@ func regionChunks(path string, h *Header, regs []Region) ([]bgzf.Chunk, error) {
 	default:
 		return nil, fmt.Errorf("%s: %w: not a tabix or CSI index", idxPath, ErrMalformed)
 	}
-	return mergeChunks(chunks), nil
+	chunks = mergeChunks(chunks)
+	if st, err := os.Stat(path); err == nil {
+		for _, c := range chunks {
+			if c.Begin.File >= st.Size() {
+				return nil, fmt.Errorf("%s: %w: it points at byte %d but %s has only %d bytes; the index belongs to another version of the data file: rebuild it",
+					idxPath, ErrMalformed, c.Begin.File, path, st.Size())
+			}
+		}
+	}
+	return chunks, nil
+}
+
+// noPanic runs an index decoder and turns a panic on damaged input (the
+// decoders trust counts read from the file) into an error.
+func noPanic(f func() error) (err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			err = fmt.Errorf("damaged index: %v", p)
+		}
+	}()
+	return f()
 }
 
 // clampRegion converts a 1-based inclusive region to the 0-based half-open

@@ -156,6 +156,10 @@ func (p *vcfParser) parseChunk(b *Batch, data []byte) error {
 			st.addWarn(warnBlankLine, lineNo, 1)
 			continue
 		}
+		if len(line) > p.opt.Limits.MaxLineBytes {
+			st.lines = lineNo
+			return p.errf(lineNo, ErrLimit, "line", "line of %d bytes is longer than the limit of %d; raise --max-line-bytes if the file is genuine", len(line), p.opt.Limits.MaxLineBytes)
+		}
 		if err := p.parseLine(b, line, lineNo); err != nil {
 			st.lines = lineNo
 			return err
