@@ -20,9 +20,6 @@ import (
 // the pool (about 1/AncestralHaplotypes): allowed for in the tolerance.
 // Twelve focal animals (selfing for 1 to 4 generations, 3 replicates).
 func TestSelfingTruth(t *testing.T) {
-	if testing.Short() {
-		t.Skip("gene-drop simulation")
-	}
 	var n int
 	for g := 1; g <= 4; g++ {
 		d, err := simulate.ParseDesign("selfing:" + strconv.Itoa(g))
