@@ -11,7 +11,7 @@ import (
 func TestDemo(t *testing.T) {
 	dir := filepath.Join(t.TempDir(), "demo")
 	start := time.Now()
-	code, out, errText := runArgs(t, "demo", "-o", dir)
+	code, out, errText := runCmdline(t, "demo", "-o", dir)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errText)
 	}

@@ -9,7 +9,7 @@ import (
 	"testing"
 )
 
-func runArgs(t *testing.T, args ...string) (code int, stdout, stderr string) {
+func runCmdline(t *testing.T, args ...string) (code int, stdout, stderr string) {
 	t.Helper()
 	var out, errb bytes.Buffer
 	env := &runEnv{stdout: &out, stderr: &errb, stdin: strings.NewReader(""), argv: append([]string{"fgauge"}, args...)}
@@ -17,7 +17,7 @@ func runArgs(t *testing.T, args ...string) (code int, stdout, stderr string) {
 	return code, out.String(), errb.String()
 }
 
-func writeFile(t *testing.T, dir, name, text string) string {
+func writeTestInput(t *testing.T, dir, name, text string) string {
 	t.Helper()
 	p := filepath.Join(dir, name)
 	if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
@@ -30,10 +30,10 @@ func writeFile(t *testing.T, dir, name, text string) string {
 // coancestry 1/4 (common practice).
 func TestPedigreeCommand(t *testing.T) {
 	dir := t.TempDir()
-	ped := writeFile(t, dir, "herd.tsv", "id\tsire\tdam\tsex\nkid\tbuck\tdoe2\tF\ndoe2\tbuck\tdoe1\tF\nsib\tbuck\tdoe1\tM\n")
-	pairs := writeFile(t, dir, "pairs.tsv", "doe2\tsib\nkid\tkid\n")
+	ped := writeTestInput(t, dir, "herd.tsv", "id\tsire\tdam\tsex\nkid\tbuck\tdoe2\tF\ndoe2\tbuck\tdoe1\tF\nsib\tbuck\tdoe1\tM\n")
+	pairs := writeTestInput(t, dir, "pairs.tsv", "doe2\tsib\nkid\tkid\n")
 	out := filepath.Join(dir, "f.tsv")
-	code, _, errText := runArgs(t, "pedigree", ped, "-o", out, "--pairs", pairs)
+	code, _, errText := runCmdline(t, "pedigree", ped, "-o", out, "--pairs", pairs)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errText)
 	}
@@ -67,17 +67,17 @@ func TestPedigreeCommandErrors(t *testing.T) {
 			if tc.name == "duplicate" {
 				file = "dup.tsv"
 			}
-			p := writeFile(t, dir, file, tc.text)
-			code, _, errText := runArgs(t, "pedigree", p)
+			p := writeTestInput(t, dir, file, tc.text)
+			code, _, errText := runCmdline(t, "pedigree", p)
 			if code != tc.wantCode || !strings.Contains(errText, tc.wantMsg) {
 				t.Errorf("exit %d, stderr %q; want exit %d containing %q", code, errText, tc.wantCode, tc.wantMsg)
 			}
 		})
 	}
-	if code, _, _ := runArgs(t, "pedigree"); code != exitBadInput {
+	if code, _, _ := runCmdline(t, "pedigree"); code != exitBadInput {
 		t.Errorf("no argument: exit %d", code)
 	}
-	if code, _, _ := runArgs(t, "pedigree", "--help"); code != exitOK {
+	if code, _, _ := runCmdline(t, "pedigree", "--help"); code != exitOK {
 		t.Errorf("--help: exit %d", code)
 	}
 }

@@ -15,7 +15,7 @@ func TestSimulateCommand(t *testing.T) {
 			"--chromosomes", "a:20e6:20,b:10e6", "--site-spacing", "20000", "--missing-rate", "0.01"}
 	}
 	for _, sub := range []string{"one", "two"} {
-		if code, _, errText := runArgs(t, args(filepath.Join(dir, sub))...); code != exitOK {
+		if code, _, errText := runCmdline(t, args(filepath.Join(dir, sub))...); code != exitOK {
 			t.Fatalf("exit %d: %s", code, errText)
 		}
 	}
@@ -43,7 +43,7 @@ func TestSimulateCommandUsage(t *testing.T) {
 		{"simulate", "--design", "full_sib", "--chromosomes", "1:x"},
 		{"simulate", "--design", "full_sib", "--spectrum", "flat"},
 	} {
-		if code, _, _ := runArgs(t, args...); code != exitBadInput {
+		if code, _, _ := runCmdline(t, args...); code != exitBadInput {
 			t.Errorf("%v: exit %d, want %d", args, code, exitBadInput)
 		}
 	}
