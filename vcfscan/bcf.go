@@ -299,6 +299,9 @@ type bcfDecoder struct {
 	// checks, as vcfParser.st does; record indices stand in for lines.
 	st *batchState
 
+	hdr       *Header
+	seen, cur int64 // record bytes decoded so far; start of the current record (bcf_offset.go)
+
 	keyGT, keyGQ, keyDP, keyPL, keyGL, keyInfo int // dictionary indices, -1 when absent
 	dictErr                                    error
 	num                                        [48]byte
@@ -317,7 +320,7 @@ type bcfFloatEntry struct {
 // samples to keep; nil keeps all in file order. selFromDest converts the
 // column map of selectSamples.
 func newBCFDecoder(h *Header, sel []int, opt Options) *bcfDecoder {
-	d := &bcfDecoder{name: "", opt: opt, sel: sel, nSamples: len(h.Samples),
+	d := &bcfDecoder{name: "", opt: opt, sel: sel, nSamples: len(h.Samples), hdr: h,
 		keyGT: -1, keyGQ: -1, keyDP: -1, keyPL: -1, keyGL: -1, keyInfo: -1}
 	if d.sel == nil {
 		d.sel = make([]int, len(h.Samples))
@@ -531,9 +534,14 @@ func (d *bcfDecoder) bcfNumber(b []byte, typ byte, i int) (float64, bool) {
 // returned by readBCFRecord) and, when the site policy keeps it, appends
 // it to b; otherwise it reports why not. The caller counts the record in
 // b.Read and a skip in b.Skipped; decode counts masked calls in b.Masked.
+// Errors are *ParseError with the record index and, when d.name is a BGZF
+// file and every record went through this decoder in order, the record's
+// virtual offset.
 // index is the 0-based record number, stored in Record.Line and in
 // errors. b.NSamples must equal the number of selected samples.
 func (d *bcfDecoder) decode(rec []byte, index int64, b *Batch) (kept bool, reason SkipReason, err error) {
+	d.cur = d.seen
+	d.seen += int64(len(rec))
 	if d.dictErr != nil {
 		return false, 0, d.fail(index, "header", ErrMalformed, "%v", d.dictErr)
 	}
@@ -871,7 +879,7 @@ type bcfField struct {
 }
 
 func (d *bcfDecoder) fail(index int64, field string, sentinel error, format string, args ...any) error {
-	return &ParseError{File: d.name, Offset: -1, Record: index, Field: field,
+	return &ParseError{File: d.name, Offset: d.recordOffset(), Record: index, Field: field,
 		Err: fmt.Errorf("%w: %s", sentinel, fmt.Sprintf(format, args...))}
 }
 
