@@ -95,7 +95,7 @@ func exitCode(w io.Writer, ctx context.Context, err error) int {
 	}
 	fmt.Fprintln(w, "fgauge:", err)
 	var ue *usageError
-	if errors.As(err, &ue) || isInputError(err) {
+	if errors.As(err, &ue) || isInputError(err) || isInputFault(err) {
 		return exitBadInput
 	}
 	return exitInternal
