@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"sync/atomic"
 )
 
 // bcfSource feeds BCF records, read one by one from the (possibly
@@ -143,12 +144,34 @@ func (r *Reader) regionStream(path string) (io.Reader, error) {
 		return nil, err
 	}
 	r.regionFile = f
-	bz, err := newBGZFReader(f, r.name, r.opt.Threads, r.opt.Limits.MaxBlockExpand, chunks)
+	// Progress now counts the bytes of the chunks against their total span.
+	var span int64
+	for _, c := range chunks {
+		span += c.End.File - c.Begin.File
+	}
+	r.cnt.n.Store(0)
+	r.total = span
+	r.regionMode = true
+	bz, err := newBGZFReader(&seekCounter{f: f, n: &r.cnt.n}, r.name, r.opt.Threads, r.opt.Limits.MaxBlockExpand, chunks)
 	if err != nil {
 		return nil, err
 	}
 	r.bz = bz
 	return bz, nil
 }
+
+// seekCounter counts the bytes read from a seekable file for Progress.
+type seekCounter struct {
+	f *os.File
+	n *atomic.Int64
+}
+
+func (c *seekCounter) Read(p []byte) (int, error) {
+	n, err := c.f.Read(p)
+	c.n.Add(int64(n))
+	return n, err
+}
+
+func (c *seekCounter) Seek(off int64, whence int) (int64, error) { return c.f.Seek(off, whence) }
 
 func newRegionFilter(regs []Region) regionFilter { return newRegionSet(regs) }

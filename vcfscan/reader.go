@@ -54,6 +54,8 @@ type Reader struct {
 	contigIdx  map[string]int
 	lineBase   int64
 	noLines    bool // region queries: line numbers unknown, reported as 0
+	regionMode bool // reading index chunks only
+	atEOF      atomic.Bool
 	seq        int64
 	curChrom   int
 	lastPos    int64
@@ -483,7 +485,18 @@ func (r *Reader) Samples() []string { return r.samples }
 
 // Progress returns the raw (compressed) bytes consumed so far and the input
 // size, -1 when unknown.
-func (r *Reader) Progress() (done, total int64) { return r.cnt.n.Load(), r.total }
+//
+// For region queries, total is the span of the index chunks to read and
+// done is capped at total until the end.
+func (r *Reader) Progress() (done, total int64) {
+	done = r.cnt.n.Load()
+	if r.regionMode {
+		if r.atEOF.Load() || done > r.total {
+			done = r.total
+		}
+	}
+	return done, r.total
+}
 
 // Next returns the next batch in input order, or io.EOF after the last.
 // The batch stays valid until it is passed to Release.
@@ -508,6 +521,7 @@ func (r *Reader) Next() (*Batch, error) {
 		r.err = r.fixErr(st.err)
 		if st.terminal && st.err == io.EOF {
 			r.finishWarnings()
+			r.atEOF.Store(true)
 		}
 		r.stop()
 		return nil, r.err

@@ -664,4 +664,23 @@ func TestProgress(t *testing.T) {
 	if total != st.Size() || done != total {
 		t.Errorf("progress %d of %d, file has %d bytes", done, total, st.Size())
 	}
+	// A region query reads part of the file; progress still ends full.
+	rr, err := Open(path, Options{Regions: []Region{{Chrom: "22", Start: 50_400_000, End: 50_500_000}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer rr.Close()
+	res, err := collect(t, rr)
+	if err != nil {
+		t.Fatal(err)
+	}
+	done, total = rr.Progress()
+	if len(res.sites) == 0 || total <= 0 || total >= st.Size() || done != total {
+		t.Errorf("region: %d sites, progress %d of %d (file %d bytes)", len(res.sites), done, total, st.Size())
+	}
+	for i, s := range res.sites {
+		if s.pos < 50_400_000 || s.pos > 50_500_000 || res.lines[i] != 0 {
+			t.Fatalf("region: site %d at %d line %d", i, s.pos, res.lines[i])
+		}
+	}
 }
