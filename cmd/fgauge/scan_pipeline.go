@@ -66,6 +66,7 @@ type scanOptions struct {
 	excludeFile string
 	stats       *statsFlags
 	roh         *rohFlags
+	shard       *shardFlags
 }
 
 func runScan(ctx context.Context, env *runEnv, args []string) error {
@@ -92,6 +93,7 @@ func runScan(ctx context.Context, env *runEnv, args []string) error {
 	fs.IntVar(&o.read.Limits.MaxBlockExpand, "max-block-bytes", 1<<20, "refuse compressed blocks that expand beyond this many bytes")
 	o.stats = addStatsFlags(fs)
 	o.roh = addROHFlags(fs)
+	o.shard = addShardFlags(fs)
 	pos, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
@@ -159,6 +161,9 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 	if err := o.stats.prepare(&o.read); err != nil {
 		return err
 	}
+	if skip, err := o.shard.skipIfValid(env, o); skip || err != nil {
+		return err
+	}
 
 	out, err := newStagedDir(o.out, o.force)
 	if err != nil {
@@ -215,6 +220,13 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 		if _, err := io.WriteString(popZ, stats.PopSitesHeader()+"\n"); err != nil {
 			return err
 		}
+	}
+	if err := o.shard.separateHeader(sitesZ, popZ); err != nil {
+		return err
+	}
+	sink, err := o.shard.sink(rc, rohCfg, samples, hdr.Contigs, o.read.Regions)
+	if err != nil {
+		return err
 	}
 
 	bar := newProgress(env.stderr, o.noProgress, rd)
@@ -282,7 +294,7 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 				}
 				delete(pending, next)
 				next++
-				if err := writeChunk(c, sitesZ, popZ, rc); err != nil {
+				if err := writeChunk(c, sitesZ, popZ, sink); err != nil {
 					return err
 				}
 				b := c.batch
@@ -334,8 +346,10 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 			return err
 		}
 	}
-	if err := writeTables(out, totals, rres, ped); err != nil {
-		return err
+	if !o.shard.on() {
+		if err := writeTables(out, totals, rres, ped); err != nil {
+			return err
+		}
 	}
 	if ctx.Err() != nil {
 		return ctx.Err()
@@ -346,6 +360,11 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 	}
 	if err := out.Commit(); err != nil {
 		return err
+	}
+	if o.shard.on() {
+		if err := o.shard.writeState(o, rd, &counts, kept, samples, totals, rohCfg, rres, ped, time.Since(start).Seconds()); err != nil {
+			return err
+		}
 	}
 	if o.report {
 		if err := htmlreport.Write(o.out, htmlreport.Options{}); err != nil {
@@ -358,7 +377,7 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 }
 
 // writeChunk writes one batch's site rows and feeds the ROH collector, in input order.
-func writeChunk(c *siteChunk, sitesZ, popZ io.Writer, rc *roh.Collector) error {
+func writeChunk(c *siteChunk, sitesZ, popZ io.Writer, rc batchSink) error {
 	if _, err := sitesZ.Write(c.sites.Bytes()); err != nil {
 		return err
 	}
