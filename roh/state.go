@@ -27,30 +27,25 @@ type Piece struct {
 }
 
 // PieceCollector keeps the raw per-site data of chromosomes that a shard
-// holds only in part. Records of contigs that are not autosomes are
-// counted as the Collector counts them. It is used from one goroutine.
+// holds only in part. Contig names are resolved only in Pieces, so that
+// contigs first met in records (appended to the header while reading) need
+// no shared list during reading. It is used from one goroutine.
 type PieceCollector struct {
 	auto     autosomeSet
-	contigs  []vcfscan.Contig
 	nSamples int
 	byID     map[int]*chromData
 	order    []int
-	excluded map[string]int64
 }
 
 // NewPieceCollector returns a collector for nSamples samples with the
 // autosome rules of cfg (validated on a copy).
-func NewPieceCollector(cfg *Config, nSamples int, contigs []vcfscan.Contig) (*PieceCollector, error) {
+func NewPieceCollector(cfg *Config, nSamples int) (*PieceCollector, error) {
 	c := *cfg
 	if err := c.Validate(); err != nil {
 		return nil, err
 	}
-	return &PieceCollector{auto: c.autosomes(), contigs: contigs, nSamples: nSamples,
-		byID: map[int]*chromData{}, excluded: map[string]int64{}}, nil
+	return &PieceCollector{auto: c.autosomes(), nSamples: nSamples, byID: map[int]*chromData{}}, nil
 }
-
-// UpdateContigs replaces the contig list (see Collector.UpdateContigs).
-func (p *PieceCollector) UpdateContigs(contigs []vcfscan.Contig) { p.contigs = contigs }
 
 // AddBatch keeps every record of b, which must come in input order like
 // the batches of Collector.AddBatch; freqs has the same meaning.
@@ -61,23 +56,14 @@ func (p *PieceCollector) AddBatch(b *vcfscan.Batch, freqs []float64) error {
 	ns := b.NSamples
 	for i := range b.Records {
 		rec := &b.Records[i]
-		name := fmt.Sprintf("contig_%d", rec.ChromID)
-		var length int64
-		if rec.ChromID >= 0 && rec.ChromID < len(p.contigs) {
-			name, length = p.contigs[rec.ChromID].Name, p.contigs[rec.ChromID].Length
-		}
-		if !p.auto.is(name) {
-			p.excluded[name]++
-			continue
-		}
 		ch := p.byID[rec.ChromID]
 		if ch == nil {
-			ch = newChromData(rec.ChromID, name, length, ns)
+			ch = newChromData(rec.ChromID, "", 0, ns)
 			p.byID[rec.ChromID] = ch
 			p.order = append(p.order, rec.ChromID)
 		}
 		if n := len(ch.pos); n > 0 && rec.Pos < ch.pos[n-1] {
-			return fmt.Errorf("roh: position %d after %d on %s: %w", rec.Pos, ch.pos[n-1], name, vcfscan.ErrUnsorted)
+			return fmt.Errorf("roh: position %d after %d on contig %d: %w", rec.Pos, ch.pos[n-1], rec.ChromID, vcfscan.ErrUnsorted)
 		}
 		calls := b.GT[i*ns : (i+1)*ns]
 		f := math.NaN()
@@ -128,16 +114,28 @@ func (ch *chromData) appendSite(pos int64, f float64, calls []vcfscan.Geno, pl [
 	ch.nPL++
 }
 
-// Pieces returns the kept pieces in the order their chromosomes were first
-// met, and the non-autosomal records counted by contig.
-func (p *PieceCollector) Pieces() ([]Piece, map[string]int64) {
+// Pieces names the kept chromosomes from contigs (the reader's final
+// list) and returns the autosomal ones in the order they were first met,
+// and the records of the others counted by contig name, as the Collector
+// counts them.
+func (p *PieceCollector) Pieces(contigs []vcfscan.Contig) ([]Piece, map[string]int64) {
 	out := make([]Piece, 0, len(p.order))
+	excluded := map[string]int64{}
 	for _, id := range p.order {
 		ch := p.byID[id]
-		out = append(out, Piece{Name: ch.name, Length: ch.length, Pos: ch.pos, Freq: ch.freq,
+		name := fmt.Sprintf("contig_%d", id)
+		var length int64
+		if id >= 0 && id < len(contigs) {
+			name, length = contigs[id].Name, contigs[id].Length
+		}
+		if !p.auto.is(name) {
+			excluded[name] += int64(len(ch.pos))
+			continue
+		}
+		out = append(out, Piece{Name: name, Length: length, Pos: ch.pos, Freq: ch.freq,
 			Geno: ch.geno, PLSite: ch.plSite, PL: ch.pl})
 	}
-	return out, p.excluded
+	return out, excluded
 }
 
 // JoinAndDetect joins the pieces of each chromosome (given per chromosome
