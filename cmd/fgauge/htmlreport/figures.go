@@ -24,6 +24,7 @@ type cohort struct {
 	classes   []rohClass
 	flags     [][]string
 	highlight map[int]bool
+	missing   []float64 // all NaN, returned for absent columns (read-only)
 }
 
 func newCohort(d *data, highlight []string) *cohort {
@@ -54,6 +55,10 @@ func newCohort(d *data, highlight []string) *cohort {
 		}
 		c.cols[h] = v
 	}
+	c.missing = make([]float64, n)
+	for i := range c.missing {
+		c.missing[i] = math.NaN()
+	}
 	for _, e := range estimatorCols {
 		if _, ok := c.cols[e]; ok {
 			c.ests = append(c.ests, e)
@@ -75,11 +80,7 @@ func (c *cohort) col(name string) []float64 {
 	if v, ok := c.cols[name]; ok {
 		return v
 	}
-	v := make([]float64, len(c.names))
-	for i := range v {
-		v[i] = math.NaN()
-	}
-	return v
+	return c.missing
 }
 
 func (c *cohort) isFlagged(r int) bool { return len(c.flags[r]) > 0 }

@@ -23,6 +23,9 @@ type Options struct {
 	// PerSample writes samples/<name>.html and .json for every sample (or
 	// for the Highlight samples when given) and samples/index.html.
 	PerSample bool
+	// Workers is how many per-sample pages are drawn at once; 0 means
+	// one per CPU (runtime.GOMAXPROCS).
+	Workers int
 }
 
 // maxTableRows is the number of samples listed in the report's table

@@ -8,7 +8,10 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"runtime"
 	"sort"
+
+	"golang.org/x/sync/errgroup"
 
 	"gonum.org/v1/plot/vg"
 )
@@ -102,35 +105,49 @@ func writeSamplePages(outDir string, c *cohort, tpl *template.Template, opt Opti
 			popSize[p]++
 		}
 	}
-	g := c.layout()
-	pages := map[int]string{}
-	var index []indexEntry
+	lay := c.layout()
+	workers := opt.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	var eg errgroup.Group
+	eg.SetLimit(workers)
+	index := make([]indexEntry, len(which))
+	for k, i := range which {
+		eg.Go(func() error {
+			v, js := c.sampleView(i, st[i], lay, cohortRank, popRank, popSize)
+			var buf bytes.Buffer
+			if err := tpl.ExecuteTemplate(&buf, "sample", v); err != nil {
+				return fmt.Errorf("report: sample page %q: %w", c.names[i], err)
+			}
+			path := filepath.Join(dir, st[i]+".html")
+			if filepath.Dir(path) != filepath.Clean(dir) {
+				return fmt.Errorf("report: sample %q: file name escapes the samples folder", c.names[i])
+			}
+			if err := writeFileAtomic(path, buf.Bytes()); err != nil {
+				return err
+			}
+			jb, err := json.MarshalIndent(js, "", "  ")
+			if err != nil {
+				return fmt.Errorf("report: sample %q: %w", c.names[i], err)
+			}
+			if err := writeFileAtomic(filepath.Join(dir, st[i]+".json"), append(jb, '\n')); err != nil {
+				return err
+			}
+			e := indexEntry{Name: c.names[i], Stem: st[i], FROH: fmtG(c.col("f_roh")[i])}
+			if c.pops != nil {
+				e.Pop = c.pops[i]
+			}
+			index[k] = e
+			return nil
+		})
+	}
+	if err := eg.Wait(); err != nil {
+		return nil, err
+	}
+	pages := make(map[int]string, len(which))
 	for _, i := range which {
-		v, js := c.sampleView(i, st[i], g, cohortRank, popRank, popSize)
-		var buf bytes.Buffer
-		if err := tpl.ExecuteTemplate(&buf, "sample", v); err != nil {
-			return nil, fmt.Errorf("report: sample page %q: %w", c.names[i], err)
-		}
-		path := filepath.Join(dir, st[i]+".html")
-		if filepath.Dir(path) != filepath.Clean(dir) {
-			return nil, fmt.Errorf("report: sample %q: file name escapes the samples folder", c.names[i])
-		}
-		if err := writeFileAtomic(path, buf.Bytes()); err != nil {
-			return nil, err
-		}
-		jb, err := json.MarshalIndent(js, "", "  ")
-		if err != nil {
-			return nil, fmt.Errorf("report: sample %q: %w", c.names[i], err)
-		}
-		if err := writeFileAtomic(filepath.Join(dir, st[i]+".json"), append(jb, '\n')); err != nil {
-			return nil, err
-		}
 		pages[i] = st[i]
-		e := indexEntry{Name: c.names[i], Stem: st[i], FROH: fmtG(c.col("f_roh")[i])}
-		if c.pops != nil {
-			e.Pop = c.pops[i]
-		}
-		index = append(index, e)
 	}
 	var buf bytes.Buffer
 	if err := tpl.ExecuteTemplate(&buf, "index", struct {
