@@ -95,7 +95,7 @@ func ExampleTotals_WritePopulations() {
 	// population	n_samples	mean_het_observed	mean_het_expected	f_is	share_hwe_p_below_1e6	f_is_se	f_st	f_st_se	f_it	f_it_se
 	// farm_a	2	0.5	0.5	0	0	NA	NA	NA	NA	NA
 	// farm_b	1	0.3333333333333333	0.3333333333333333	0	0	NA	NA	NA	NA	NA
-	// all_pooled	3	0.3888888888371487	0.4777777777829518	-0.14285714217290588	0	NA	0.517241379044569	NA	0.4482758620955431	NA
+	// all_pooled	3	0.38888888888888884	0.4777777777777778	-0.1428571428571426	0	NA	0.5172413793103448	NA	0.4482758620689655	NA
 }
 
 func ExampleColumnDocs() {

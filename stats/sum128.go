@@ -6,14 +6,16 @@ import (
 )
 
 // fracBits is the number of fractional bits of the Sum128 fixed point.
-const fracBits = 32
+const fracBits = 64
 
 // Sum128 is an exactly associative and commutative sum of float64 values:
-// each value is scaled by 2^32, rounded to the nearest integer (ties to
+// each value is scaled by 2^64, rounded to the nearest integer (ties to
 // even) and added to a 128-bit two's-complement integer. Because integer
 // addition is exact, the total does not depend on the order of additions
 // or on how the inputs were split before merging. The resolution of one
-// term is 2^-32 (about 2.3e-10); magnitudes up to about 4e28 are held.
+// term is 2^-64 (about 5.4e-20, far below a float64 ulp of the terms), so
+// a total equals the exact sum of the float64 terms rounded once; magnitudes
+// up to about 9e18 are held.
 //
 // The zero value is a sum of nothing. Fields are exported for gob.
 type Sum128 struct {

@@ -7,7 +7,7 @@ import (
 	"testing"
 )
 
-// exactFixed is the obviously-correct path: round(v*2^32) with big.Float,
+// exactFixed is the obviously-correct path: round(v*2^fracBits) with big.Float,
 // summed in big.Int.
 func exactFixed(vs []float64) *big.Int {
 	sum := new(big.Int)
@@ -45,9 +45,9 @@ func TestSum128(t *testing.T) {
 	}{
 		{"small", []float64{0.1, 0.2, -0.3}},
 		{"negative", []float64{-1e-3, -2.5, -1e6}},
-		{"ties", []float64{0.5 / (1 << 32), 1.5 / (1 << 32), -0.5 / (1 << 32)}},
-		{"large", []float64{3e18, 3e18, -1e20, 7.25e25, 1e-9}},
-		{"cancel", []float64{1e25, 1, -1e25}},
+		{"ties", []float64{math.Ldexp(0.5, -fracBits), math.Ldexp(1.5, -fracBits), math.Ldexp(-0.5, -fracBits)}},
+		{"large", []float64{3e15, 3e15, -1e17, 7.25e17, 1e-9}},
+		{"cancel", []float64{1e18, 1, -1e18}},
 	} {
 		var s Sum128
 		for _, v := range tc.vs {
@@ -69,7 +69,7 @@ func TestSum128OrderFree(t *testing.T) {
 	rng := rand.New(rand.NewPCG(1, 2))
 	vs := make([]float64, 5000)
 	for i := range vs {
-		vs[i] = (rng.Float64() - 0.3) * math.Pow(10, float64(rng.IntN(30)-10))
+		vs[i] = (rng.Float64() - 0.3) * math.Pow(10, float64(rng.IntN(22)-10))
 	}
 	var a Sum128
 	for _, v := range vs {
@@ -97,12 +97,12 @@ func TestSum128OrderFree(t *testing.T) {
 
 // FuzzSum128 compares the fast fixed-point path with big arithmetic.
 func FuzzSum128(f *testing.F) {
-	f.Add(0.1, -3.5, 1e20)
-	f.Add(1e-12, 2.5e-10, -7e27)
+	f.Add(0.1, -3.5, 1e17)
+	f.Add(1e-12, 2.5e-10, -7e17)
 	f.Fuzz(func(t *testing.T, a, b, c float64) {
 		vs := []float64{a, b, c}
 		for _, v := range vs {
-			if math.IsNaN(v) || math.IsInf(v, 0) || math.Abs(v) > 1e27 {
+			if math.IsNaN(v) || math.IsInf(v, 0) || math.Abs(v) > 1e18 {
 				return
 			}
 		}

@@ -235,6 +235,7 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 	done := make(chan *siteChunk, 2*o.threads)
 	bufPool := sync.Pool{New: func() any { return new(bytes.Buffer) }}
 
+	contigs := newContigTable(hdr.Contigs)
 	g.Go(func() error {
 		defer close(jobs)
 		for {
@@ -245,6 +246,9 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 			if err != nil {
 				return err
 			}
+			// Next appends contigs first met in records to the header;
+			// publish them before the batch that uses them moves on.
+			contigs.update(hdr.Contigs)
 			select {
 			case jobs <- b:
 			case <-gctx.Done():
@@ -254,9 +258,8 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 	})
 	workers := make([]*stats.Worker, o.threads)
 	var wg sync.WaitGroup
-	contigName := func(id int) string { return hdr.Contigs[id].Name }
 	for i := range workers {
-		w := stats.NewWorker(scfg, contigName)
+		w := stats.NewWorker(scfg, contigs.name)
 		workers[i] = w
 		wg.Add(1)
 		g.Go(func() error {
@@ -294,6 +297,9 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 				}
 				delete(pending, next)
 				next++
+				if rc != nil {
+					contigs.feed(rc)
+				}
 				if err := writeChunk(c, sitesZ, popZ, sink); err != nil {
 					return err
 				}
@@ -376,6 +382,49 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 	return nil
 }
 
+// contigTable shares the growing contig list between the goroutine that
+// calls Reader.Next (which appends contigs first met in records) and the
+// workers that name them.
+type contigTable struct {
+	mu      sync.RWMutex
+	list    []vcfscan.Contig
+	rohSeen int // contigs already handed to the ROH collector
+}
+
+func newContigTable(c []vcfscan.Contig) *contigTable {
+	return &contigTable{list: append([]vcfscan.Contig(nil), c...), rohSeen: len(c)}
+}
+
+// update copies contigs appended since the last call; only the goroutine
+// calling Reader.Next may call it.
+func (t *contigTable) update(c []vcfscan.Contig) {
+	t.mu.RLock()
+	n := len(t.list)
+	t.mu.RUnlock()
+	if len(c) == n {
+		return
+	}
+	t.mu.Lock()
+	t.list = append(t.list, c[n:]...)
+	t.mu.Unlock()
+}
+
+func (t *contigTable) name(id int) string {
+	t.mu.RLock()
+	defer t.mu.RUnlock()
+	return t.list[id].Name
+}
+
+// feed hands new contigs to the ROH collector; ordered stage only.
+func (t *contigTable) feed(rc *roh.Collector) {
+	t.mu.RLock()
+	defer t.mu.RUnlock()
+	if len(t.list) > t.rohSeen {
+		rc.UpdateContigs(t.list)
+		t.rohSeen = len(t.list)
+	}
+}
+
 // writeChunk writes one batch's site rows and feeds the ROH collector, in input order.
 func writeChunk(c *siteChunk, sitesZ, popZ io.Writer, rc batchSink) error {
 	if _, err := sitesZ.Write(c.sites.Bytes()); err != nil {
@@ -408,19 +457,19 @@ func writeTables(out *stagedDir, totals *stats.Totals, rres *roh.Result, ped []s
 			rows[i] = append(rows[i], ped[i])
 		}
 	}
-	if err := writeFile(out, "samples.tsv", func(w io.Writer) error { return writeTSV(w, header, rows) }); err != nil {
+	if err := writeStaged(out, "samples.tsv", func(w io.Writer) error { return writeTSV(w, header, rows) }); err != nil {
 		return err
 	}
 	if rres != nil {
-		if err := writeFile(out, "runs.tsv", rres.WriteRuns); err != nil {
+		if err := writeStaged(out, "runs.tsv", rres.WriteRuns); err != nil {
 			return err
 		}
 	}
 	if totals.HasPopulations() {
-		if err := writeFile(out, "populations.tsv", totals.WritePopulations); err != nil {
+		if err := writeStaged(out, "populations.tsv", totals.WritePopulations); err != nil {
 			return err
 		}
-		if err := writeFile(out, "populations_pairwise.tsv", totals.WritePairwise); err != nil {
+		if err := writeStaged(out, "populations_pairwise.tsv", totals.WritePairwise); err != nil {
 			return err
 		}
 	}
@@ -438,8 +487,8 @@ func writeTSV(w io.Writer, header []string, rows [][]string) error {
 	return bw.Flush()
 }
 
-// writeFile creates a staged file and fills it with fill.
-func writeFile(out *stagedDir, name string, fill func(io.Writer) error) error {
+// writeStaged creates a staged file and fills it with fill.
+func writeStaged(out *stagedDir, name string, fill func(io.Writer) error) error {
 	f, err := out.Create(name)
 	if err != nil {
 		return err
@@ -457,7 +506,7 @@ func writeFile(out *stagedDir, name string, fill func(io.Writer) error) error {
 }
 
 func writeJSON(out *stagedDir, name string, v any) error {
-	return writeFile(out, name, func(w io.Writer) error {
+	return writeStaged(out, name, func(w io.Writer) error {
 		enc := json.NewEncoder(w)
 		enc.SetIndent("", "  ")
 		return enc.Encode(sanitizeJSON(v))
