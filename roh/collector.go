@@ -358,7 +358,12 @@ func (c *Collector) detect(sc *hmmScratch, j job) {
 			j.w.perSample[s] = rulesRuns(ch, s, sc.code, &c.cfg.Rules, maxGap)
 			continue
 		}
-		sc.fillEmissions(ch, s)
+		sc.code = grow(sc.code, len(ch.pos))
+		ch.unpack(s, sc.code)
+		hasPL := ch.pl != nil
+		if hasPL || c.cfg.Fit {
+			sc.fillEmissions(ch, s)
+		}
 		tr := ch.trans
 		if c.cfg.Fit {
 			f, a := sc.fitSample(ch.cm, c.cfg.AutozygousPrior, c.cfg.Rate, c.cfg.FitIterations)
@@ -366,9 +371,8 @@ func (c *Collector) detect(sc *hmmScratch, j job) {
 			transitions(sc.tr, ch.cm, f, a)
 			tr = sc.tr
 		}
-		sc.forward(tr, false)
+		sc.forwardViterbi(ch, tr, !hasPL && !c.cfg.Fit)
 		sc.backward(tr, ch.cm, nil)
-		sc.viterbi(tr)
 		j.w.perSample[s] = hmmRuns(ch, s, sc.code, sc.path, sc.post, maxGap)
 	}
 }

@@ -219,6 +219,74 @@ func (w *hmmScratch) viterbi(tr []float64) {
 	}
 }
 
+// forwardViterbi runs the forward pass and the Viterbi recursion in one
+// sweep (two independent dependency chains per step, so the processor
+// overlaps them), storing forward values in w.alpha and the most probable
+// path in w.path. When the sample has no phred likelihoods on this
+// chromosome the emissions are looked up from the genotype codes in the
+// same sweep and stored for the backward pass; otherwise fillEmissions
+// must have run first and lookup is false.
+func (w *hmmScratch) forwardViterbi(ch *chromData, tr []float64, lookup bool) {
+	n := len(w.code)
+	w.alpha = grow(w.alpha, 2*n)
+	w.path = grow(w.path, n)
+	w.em = grow(w.em, 2*n)
+	em, al, bp, code, tab := w.em, w.alpha, w.path, w.code, ch.emit
+	if lookup {
+		g := code[0]
+		em[0], em[1] = tab[g], tab[4+g]
+	}
+	a := tr[0] * em[0]
+	b := tr[1] * em[1]
+	al[0], al[1] = a, b
+	va, vn := a, b
+	bp[0] = 0
+	for t := 1; t < n; t++ {
+		e := em[2*t : 2*t+2 : 2*t+2]
+		if lookup {
+			row := tab[8*t : 8*t+8 : 8*t+8]
+			g := code[t] & 3
+			e[0], e[1] = row[g], row[4+g]
+		}
+		k := tr[4*t : 4*t+4 : 4*t+4]
+		a, b = (a*k[0]+b*k[2])*e[0], (a*k[1]+b*k[3])*e[1]
+		xa, xn := va*k[0], vn*k[2]
+		ya, yn := va*k[1], vn*k[3]
+		na, nn := max(xa, xn), max(ya, yn)
+		var f uint8
+		if xn >= xa {
+			f = 1 // A came from N
+		}
+		if ya > yn {
+			f |= 2 // N came from A
+		}
+		va, vn = na*e[0], nn*e[1]
+		if t%rescaleEvery == 0 {
+			inv := 1 / (a + b)
+			a, b = a*inv, b*inv
+			inv = 1 / max(va, vn)
+			va, vn = va*inv, vn*inv
+		}
+		al[2*t], al[2*t+1] = a, b
+		bp[t] = f
+	}
+	st := uint8(stA)
+	if vn >= va {
+		st = stN
+	}
+	for t := n - 1; t >= 0; t-- {
+		f := bp[t]
+		bp[t] = st
+		if st == stA {
+			if f&1 != 0 {
+				st = stN
+			}
+		} else if f&2 != 0 {
+			st = stA
+		}
+	}
+}
+
 // emStats are the expected sufficient statistics of one EM round.
 type emStats struct {
 	timeA, timeN       float64 // expected Morgans spent in each state
