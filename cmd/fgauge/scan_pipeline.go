@@ -42,6 +42,14 @@ or "." are kept; every other record is skipped and counted by reason in
 run.json. Calls below --min-gq or --min-dp are set to missing. Haploid calls
 are counted apart (n_haploid) and left out of diploid statistics.
 
+The flags column of samples.tsv ("." when none):
+  no_calls             the sample has no diploid call at any kept site
+  low_call_rate        call_rate below --min-call-rate
+  het_rate_outlier     het_rate more than 3 SD from the cohort mean (possible
+                       contamination, sample mix-up or another population)
+  estimators_disagree  f_hom > 0.1 while f_uniting_gametes < 0, or the
+                       reverse: check frequencies and data quality first
+
 Cautions: genomic F estimates depend on marker density, the allele-frequency
 reference and genotyping quality; they are not a diagnosis. Decisions about
 mating or culling animals follow the breeding programme's rules and local
@@ -71,7 +79,7 @@ type scanOptions struct {
 
 func runScan(ctx context.Context, env *runEnv, args []string) error {
 	o := &scanOptions{}
-	fs := newFlagSet(env.stderr, "scan", "scan INPUT.vcf[.gz]|INPUT.bcf|- -o OUTDIR [options]", scanHelp)
+	fs := newFlagSet(env.stderr, "scan", "scan INPUT.vcf[.gz]|INPUT.bcf|- -o OUTDIR [options]", scanHelp+"\n"+statsHelp+"\n"+rohHelp)
 	fs.StringVar(&o.out, "o", "", "output folder (created if absent)")
 	fs.StringVar(&o.out, "out", "", "same as -o")
 	fs.BoolVar(&o.force, "force", false, "overwrite results already in OUTDIR")
@@ -569,7 +577,12 @@ func runInfo(env *runEnv, o *scanOptions, rd *vcfscan.Reader, c *vcfscan.Batch, 
 		"wall_seconds": time.Since(start).Seconds(),
 	}
 	if totals.HasPopulations() {
-		info["populations"] = totals.PopulationSummary()
+		ps := totals.PopulationSummary()
+		ps["samples_not_listed"] = append([]string{}, o.stats.unlisted...)
+		info["populations"] = ps
+		if n := len(o.stats.unlisted); n > 0 {
+			fmt.Fprintf(env.stderr, "fgauge: %d samples are not in --populations and are left out of population statistics (listed in run.json)\n", n)
+		}
 	}
 	if rres != nil {
 		info["roh"] = rres.Summary()
