@@ -50,6 +50,7 @@ func (r *Result) ForEachSite(fn func(*Site) error) error {
 	}
 	hapCur := make([][2]int32, n)
 	founderCur := make([]int32, len(r.founders))
+	labelAllele := make([]uint8, len(r.founders))
 	var alle [2]uint8
 	for c := range r.Chromosomes {
 		ss := &r.sites[c]
@@ -62,22 +63,26 @@ func (r *Result) ForEachSite(fn func(*Site) error) error {
 		for k, pos := range ss.pos {
 			cm := ss.cm[k]
 			word, bit := k/64, uint(k%64)
+			// Allele of every founder copy at this site, from its mosaic.
+			for label, mosaics := range r.founders {
+				ms := mosaics[c]
+				f := founderCur[label]
+				for int(f) < len(ms)-1 && ms[f].End <= cm {
+					f++
+				}
+				founderCur[label] = f
+				labelAllele[label] = uint8(ss.anc[ms[f].Anc][word] >> bit & 1)
+			}
 			for i := 0; i < n; i++ {
+				hc := &hapCur[i]
 				for h := 0; h < 2; h++ {
 					hs := r.haps[i][c][h]
-					j := hapCur[i][h]
+					j := hc[h]
 					for int(j) < len(hs)-1 && hs[j].End <= cm {
 						j++
 					}
-					hapCur[i][h] = j
-					label := hs[j].Label
-					ms := r.founders[label][c]
-					f := founderCur[label]
-					for int(f) < len(ms)-1 && ms[f].End <= cm {
-						f++
-					}
-					founderCur[label] = f
-					alle[h] = uint8(ss.anc[ms[f].Anc][word] >> bit & 1)
+					hc[h] = j
+					alle[h] = labelAllele[hs[j].Label]
 				}
 				s.True[i] = vcfscan.Geno(alle[0] + alle[1])
 				if cfg.Depth > 0 {

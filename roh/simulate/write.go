@@ -7,8 +7,6 @@ import (
 	"os"
 	"strconv"
 
-	"github.com/biogo/hts/bgzf"
-
 	"fgauge/vcfscan"
 )
 
@@ -95,28 +93,10 @@ func WriteVCF(w io.Writer, r *Result) error {
 	return bw.Flush()
 }
 
-// countWriter counts bytes written, to know BGZF block offsets.
-type countWriter struct {
-	w io.Writer
-	n int64
-}
-
-func (c *countWriter) Write(p []byte) (int, error) {
-	n, err := c.w.Write(p)
-	c.n += int64(n)
-	return n, err
-}
-
-type tbiRecord struct {
-	chrom string
-	pos   int64
-}
-
-func voff(o bgzf.Offset) uint64 { return uint64(o.File)<<16 | uint64(o.Block) }
-
 // WriteVCFBGZF writes the calls as BGZF-compressed VCF to path and a
 // tabix index to path + ".tbi" (SAMtools hts-specs, "The Tabix index
-// file format"; see tabixIndex). Output is byte-identical for the same Config.
+// file format"; see tabixIndex). Output is byte-identical for the same
+// Config.
 func WriteVCFBGZF(path string, r *Result) (err error) {
 	f, err := os.Create(path)
 	if err != nil {
@@ -127,74 +107,41 @@ func WriteVCFBGZF(path string, r *Result) (err error) {
 			err = cerr
 		}
 	}()
-	cw := &countWriter{w: f}
-	bg, err := bgzf.NewWriterLevel(cw, 6, 1)
-	if err != nil {
-		return err
-	}
-	// flush writes buf as whole block(s) and returns the file offset after.
-	var buf []byte
-	flush := func() (int64, error) {
-		if len(buf) > 0 {
-			if _, err := bg.Write(buf); err != nil {
-				return 0, err
-			}
-			buf = buf[:0]
-		}
-		if err := bg.Flush(); err != nil {
-			return 0, err
-		}
-		if err := bg.Wait(); err != nil {
-			return 0, err
-		}
-		return cw.n, nil
-	}
-	buf = append(buf, r.header()...)
-	blockStart, err := flush()
-	if err != nil {
+	bw := bufio.NewWriterSize(f, 1<<20)
+	bg := newBGZFWriter(bw)
+	bg.Write(r.header())
+	if err := bg.flush(); err != nil {
 		return err
 	}
 	idx := &tabixIndex{}
-	var pending *tbiRecord
-	var pendingBegin bgzf.Offset
-	addPending := func(end bgzf.Offset) error {
-		if pending != nil {
-			idx.add(pending.chrom, pending.pos-1, pending.pos, voff(pendingBegin), voff(end))
-		}
-		return nil
-	}
 	var line []byte
+	var prevChrom string
+	var prevPos int64
+	var prevBegin uint64
+	havePrev := false
 	err = r.ForEachSite(func(s *Site) error {
+		begin := bg.voffset()
+		if havePrev {
+			idx.add(prevChrom, prevPos-1, prevPos, prevBegin, begin)
+		}
 		line = r.appendRecord(line[:0], s)
-		if len(buf)+len(line) > bgzf.BlockSize {
-			if blockStart, err = flush(); err != nil {
-				return err
-			}
-		}
-		begin := bgzf.Offset{File: blockStart, Block: uint16(len(buf))}
-		if err := addPending(begin); err != nil {
-			return err
-		}
-		pending, pendingBegin = &tbiRecord{r.Chromosomes[s.Chrom].Name, s.Pos}, begin
-		buf = append(buf, line...)
-		if len(buf) > bgzf.BlockSize { // one line longer than a block
-			if blockStart, err = flush(); err != nil {
-				return err
-			}
-		}
-		return nil
+		_, err := bg.Write(line)
+		prevChrom, prevPos, prevBegin, havePrev = r.Chromosomes[s.Chrom].Name, s.Pos, begin, true
+		return err
 	})
 	if err != nil {
 		return err
 	}
-	end, err := flush()
-	if err != nil {
+	if err := bg.flush(); err != nil {
 		return err
 	}
-	if err := addPending(bgzf.Offset{File: end}); err != nil {
+	if havePrev {
+		idx.add(prevChrom, prevPos-1, prevPos, prevBegin, bg.voffset())
+	}
+	if err := bg.close(); err != nil {
 		return err
 	}
-	if err := bg.Close(); err != nil {
+	if err := bw.Flush(); err != nil {
 		return err
 	}
 	return writeTabix(path+".tbi", idx)
@@ -210,14 +157,11 @@ func writeTabix(path string, idx *tabixIndex) (err error) {
 			err = cerr
 		}
 	}()
-	bg, err := bgzf.NewWriterLevel(f, 6, 1)
-	if err != nil {
-		return err
-	}
+	bg := newBGZFWriter(f)
 	if err := idx.writeTo(bg); err != nil {
 		return err
 	}
-	return bg.Close()
+	return bg.close()
 }
 
 // WriteSamplesTruth writes one line per sample: sample replicate design

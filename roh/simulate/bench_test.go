@@ -1,0 +1,91 @@
+package simulate
+
+import (
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+func benchConfig() Config {
+	herd, _ := ParseDesign("closed_herd:6:50:3")
+	return Config{
+		Seed:          1,
+		Chromosomes:   []Chromosome{{"1", 100e6, 100}, {"2", 80e6, 80}},
+		SiteSpacing:   5000,
+		Designs:       []Design{herd},
+		GenotypeError: 0.001,
+		MissingRate:   0.01,
+	}
+}
+
+// BenchmarkForEachSite: genotypes of 350 animals at 36,000 sites, read off
+// the founder mosaics (the hot loop behind every writer).
+func BenchmarkForEachSite(b *testing.B) {
+	res, err := Run(benchConfig())
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		calls := 0
+		res.ForEachSite(func(s *Site) error { calls += len(s.GT); return nil })
+		b.ReportMetric(float64(calls)*float64(b.N)/b.Elapsed().Seconds(), "calls/s")
+	}
+}
+
+// BenchmarkWriteVCFBGZF: the same data compressed and indexed.
+func BenchmarkWriteVCFBGZF(b *testing.B) {
+	res, err := Run(benchConfig())
+	if err != nil {
+		b.Fatal(err)
+	}
+	dir := b.TempDir()
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if err := WriteVCFBGZF(filepath.Join(dir, "b.vcf.gz"), res); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkGeneDrop: pedigree, meioses and truth without sites.
+func BenchmarkGeneDrop(b *testing.B) {
+	cfg := benchConfig()
+	cfg.NoSites = true
+	cfg.Replicates = 20
+	b.ReportAllocs()
+	for i := 0; i < b.N; i++ {
+		if _, err := Run(cfg); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func FuzzReadGeneticMap(f *testing.F) {
+	f.Add("chrom\tpos\tcm\n1\t1000\t0.1\n1\t5000\t2\n")
+	f.Add("1 10 0\n1 20 0\n2 5 1\n")
+	f.Fuzz(func(t *testing.T, text string) {
+		m, err := ReadGeneticMap(strings.NewReader(text), "fuzz")
+		if err != nil {
+			return
+		}
+		for _, pts := range m {
+			for k := 1; k < len(pts); k++ {
+				if pts[k].Pos <= pts[k-1].Pos || pts[k].CM < pts[k-1].CM {
+					t.Fatalf("map not sorted: %v", pts)
+				}
+			}
+			// Interpolation stays monotone and inverts.
+			prev := -1.0
+			for _, p := range []int64{1, pts[0].Pos, pts[len(pts)-1].Pos, pts[len(pts)-1].Pos + 1000} {
+				cm := mapCM(pts, p)
+				if cm < prev {
+					t.Fatalf("mapCM not monotone at %d", p)
+				}
+				prev = cm
+			}
+		}
+	})
+}
