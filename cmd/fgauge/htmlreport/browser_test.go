@@ -57,7 +57,7 @@ func runChromium(t *testing.T, bin string, args ...string) []byte {
 	return out
 }
 
-var reFigure = regexp.MustCompile(`(?s)<figure id="(\w+)" data-plot="\w+" data-kind="(\w+)" data-points="(\d+)" data-total="(\d+)">(.*?)</figure>`)
+var reFigure = regexp.MustCompile(`(?s)<figure id="(\w+)" data-plot="\w+" data-kind="(\w+)" data-points="(\d+)" data-total="(\d+)"[^>]*>(.*?)</figure>`)
 
 func TestBrowserRendersReport(t *testing.T) {
 	bin := chromiumPath(t)
