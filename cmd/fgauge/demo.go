@@ -5,6 +5,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -114,8 +115,10 @@ func runDemo(ctx context.Context, env *runEnv, args []string) error {
 		return err
 	}
 	fpedOf := map[string]float64{}
+	truthOf := map[string]float64{}
 	for _, s := range res.Samples {
 		fpedOf[s.ID] = s.FPedigree
+		truthOf[s.ID] = s.FRealized
 	}
 	var genomic map[string]float64
 	var genomicCol string
@@ -127,7 +130,7 @@ func runDemo(ctx context.Context, env *runEnv, args []string) error {
 	} else {
 		fmt.Fprintf(env.stdout, "\nThe scan step did not run (%v); the summary below uses pedigree F only.\n", scanErr)
 	}
-	writeDemoSummary(env.stdout, ped, fpedOf, genomic, genomicCol, scanDir, scanErr == nil)
+	writeDemoSummary(env.stdout, ped, fpedOf, truthOf, genomic, genomicCol, scanDir, scanErr == nil)
 	return nil
 }
 
@@ -383,11 +386,12 @@ func describeMating(p *pedigree.Pedigree, i int) string {
 	return fmt.Sprintf("related parents %s x %s (coancestry %.3f, e.g. cousins)", name(s), name(d), c[0])
 }
 
-// writeDemoSummary prints the plain-language summary of the demo.
-func writeDemoSummary(w io.Writer, ped *pedigree.Pedigree, fped, genomic map[string]float64, col, scanDir string, scanned bool) {
+// writeDemoSummary prints the plain-language summary of the demo. truth
+// holds the simulated autozygous share, which only a simulation knows.
+func writeDemoSummary(w io.Writer, ped *pedigree.Pedigree, fped, truth, genomic map[string]float64, col, scanDir string, scanned bool) {
 	type row struct {
 		id       string
-		g, f     float64
+		g, f, r  float64
 		hasG     bool
 		pedIndex int
 	}
@@ -395,7 +399,7 @@ func writeDemoSummary(w io.Writer, ped *pedigree.Pedigree, fped, genomic map[str
 	for i := 0; i < ped.Len(); i++ {
 		id := ped.ID(i)
 		g, ok := genomic[id]
-		rows = append(rows, row{id: id, g: g, f: fped[id], hasG: ok, pedIndex: i})
+		rows = append(rows, row{id: id, g: g, f: fped[id], r: truth[id], hasG: ok, pedIndex: i})
 	}
 	key := func(r row) float64 {
 		if r.hasG {
@@ -408,35 +412,60 @@ func writeDemoSummary(w io.Writer, ped *pedigree.Pedigree, fped, genomic map[str
 	if len(genomic) > 0 {
 		by = "genomic " + col
 	}
-	fmt.Fprintf(w, "\nMost inbred animals (by %s):\n", by)
-	fmt.Fprintf(w, "  %-10s %10s %10s  %s\n", "animal", "genomic", "pedigree", "why (from the herd book)")
-	for k, r := range rows {
-		if k == 8 || key(r) <= 0 {
-			break
+	why := func(r row) string {
+		if r.f > 0 {
+			return describeMating(ped, r.pedIndex)
 		}
+		return "no recorded kinship between its parents"
+	}
+	header := func() {
+		fmt.Fprintf(w, "  %-10s %8s %9s %10s  %s\n", "animal", "genomic", "pedigree", "simulated", "mating (from the herd book)")
+	}
+	line := func(r row) {
 		g := "NA"
 		if r.hasG {
 			g = strconv.FormatFloat(r.g, 'f', 3, 64)
 		}
-		why := "no close kin among its parents in the herd book"
-		if r.f > 0 {
-			why = describeMating(ped, r.pedIndex)
+		fmt.Fprintf(w, "  %-10s %8s %9.3f %10.3f  %s\n", r.id, g, r.f, r.r, why(r))
+	}
+	fmt.Fprintf(w, "\nMost inbred animals (by %s):\n", by)
+	header()
+	for k, r := range rows {
+		if k == 6 || key(r) <= 0 {
+			break
 		}
-		fmt.Fprintf(w, "  %-10s %10s %10.3f  %s\n", r.id, g, r.f, why)
+		line(r)
+	}
+	fmt.Fprintln(w, "\nEvery close-kin mating in the herd book (pedigree F above 0):")
+	header()
+	var gap row
+	gapSize := -1.0
+	for _, r := range rows {
+		if r.f > 0 {
+			line(r)
+			if d := math.Abs(key(r) - r.f); r.hasG && d > gapSize {
+				gap, gapSize = r, d
+			}
+		}
+	}
+	fmt.Fprintln(w, "  (simulated = the true autozygous share, known here only because the genomes were simulated)")
+	if gapSize > 0.05 {
+		fmt.Fprintf(w, "\nPedigree F is an expectation; single animals scatter around it by chance (Mendelian sampling).\n")
+		fmt.Fprintf(w, "%s shows it: pedigree %.3f, genomic %.3f, simulated truth %.3f.\n", gap.id, gap.f, gap.g, gap.r)
 	}
 	fmt.Fprintln(w, "\nWhere to look next:")
 	if scanned {
 		fmt.Fprintf(w, "  - %s/runs.tsv lists each animal's runs of homozygosity; long runs (over 8 Mb) point to a\n", scanDir)
 		fmt.Fprintln(w, "    common ancestor a few generations back, short ones to old shared ancestry of the breed.")
-		fmt.Fprintf(w, "  - Compare the genomic and pedigree columns in %s/samples.tsv: large gaps hint at\n", scanDir)
-		fmt.Fprintln(w, "    recording errors or relatedness the herd book does not show.")
+		fmt.Fprintf(w, "  - Compare the genomic and pedigree columns in %s/samples.tsv: large gaps in many animals\n", scanDir)
+		fmt.Fprintln(w, "    hint at recording errors or relatedness the herd book does not show.")
 		fmt.Fprintf(w, "  - %s/populations.tsv compares the herds; 'fgauge report %s' draws it all on one page.\n", scanDir, scanDir)
 	} else {
 		fmt.Fprintln(w, "  - Run 'fgauge scan' on cohort.vcf.gz with --populations herds.tsv and --pedigree pedigree.tsv")
 		fmt.Fprintln(w, "    to see genomic F and runs of homozygosity next to the pedigree values.")
-		fmt.Fprintln(w, "  - truth_segments.tsv holds the simulated autozygous stretches to check a detector against.")
 	}
-	fmt.Fprintln(w, "  - Popular sire FERN-001 is in the pedigree of every herd: check coancestries before the next")
+	fmt.Fprintln(w, "  - truth_segments.tsv holds the simulated autozygous stretches, to check runs against.")
+	fmt.Fprintln(w, "  - FERN-001 sired kids in every herd: check coancestries of planned pairs before the next")
 	fmt.Fprintln(w, "    season with 'fgauge pedigree pedigree.tsv --pairs PAIRS.tsv -o f.tsv'.")
 	fmt.Fprintln(w, "\nCaution: genomic or pedigree F is not a decision by itself; mating and culling decisions follow")
 	fmt.Fprintln(w, "the breeding programme's rules, veterinary advice and local regulations.")
