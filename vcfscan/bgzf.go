@@ -117,7 +117,7 @@ func newBGZFReader(src io.Reader, name string, threads, maxISize int, chunks []b
 	if maxISize <= 0 {
 		maxISize = bgzfDefaultMaxI
 	}
-	inflight := 4*threads + 4
+	inflight := max(32, 8*threads) // about one parse chunk of look-ahead
 	z := &bgzfReader{
 		name:     name,
 		src:      src,
@@ -136,7 +136,7 @@ func newBGZFReader(src io.Reader, name string, threads, maxISize int, chunks []b
 		z.seeker = rs
 	}
 	for i := 0; i < inflight; i++ {
-		z.free <- &bgzfJob{raw: make([]byte, 0, bgzfMaxBlock), done: make(chan struct{}, 1)}
+		z.free <- &bgzfJob{done: make(chan struct{}, 1)} // buffers are allocated on first use
 	}
 	z.wg.Add(threads + 1)
 	for i := 0; i < threads; i++ {
@@ -154,6 +154,9 @@ func (z *bgzfReader) blockErr(coff int64, sentinel error, format string, args ..
 // readRaw reads one raw block at file offset coff into j.raw. It returns
 // io.EOF at a clean end of input.
 func (z *bgzfReader) readRaw(r io.Reader, coff int64, j *bgzfJob) error {
+	if cap(j.raw) < bgzfMaxBlock {
+		j.raw = make([]byte, bgzfMaxBlock)
+	}
 	buf := j.raw[:bgzfMaxBlock]
 	n, err := io.ReadFull(r, buf[:12])
 	if err == io.EOF {
