@@ -402,3 +402,54 @@ func ExampleReadRegionsFile() {
 	// 22:50300001-50400000
 	// 22:50800001-50900000
 }
+
+// FuzzParseRegion checks that ParseRegion never panics and that what it
+// accepts is a valid 1-based region that prints back to itself.
+func FuzzParseRegion(f *testing.F) {
+	for _, s := range []string{"chr1", "22:50300078-50400000", "X:5-", "X:7", "a:1,000-2,000", "HLA-A*01:01:1-100", ":", "c:-", "c:9999999999999999999-1"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		r, err := ParseRegion(s)
+		if err != nil {
+			if !errors.Is(err, ErrBadRegion) {
+				t.Fatalf("error %v does not wrap ErrBadRegion", err)
+			}
+			return
+		}
+		hasRange := strings.Contains(s, ":")
+		wholeOK := !hasRange && r.Start == 0 && r.End == 0
+		rangeOK := hasRange && r.Start >= 1 && (r.End == 0 || r.End >= r.Start)
+		if r.Chrom == "" || !(wholeOK || rangeOK) {
+			t.Fatalf("%q gave invalid region %+v", s, r)
+		}
+		text := r.Chrom
+		if hasRange {
+			text = fmt.Sprintf("%s:%d-", r.Chrom, r.Start)
+			if r.End != 0 {
+				text += fmt.Sprint(r.End)
+			}
+		}
+		if r2, err := ParseRegion(text); err != nil || r2 != r {
+			t.Fatalf("%q -> %+v -> %q -> %+v, %v", s, r, text, r2, err)
+		}
+	})
+}
+
+// FuzzReadRegions checks that the region file reader never panics and
+// accepts only valid regions, in both coordinate conventions.
+func FuzzReadRegions(f *testing.F) {
+	f.Add("chr1\t10\t20\n# c\nchr2 5\nchr3\n", false)
+	f.Add("track x\nchr1\t9\t20\tname\n", true)
+	f.Fuzz(func(t *testing.T, text string, bed bool) {
+		regs, err := readRegions(strings.NewReader(text), "f", bed)
+		if err != nil {
+			return
+		}
+		for _, r := range regs {
+			if r.Chrom == "" || r.Start < 0 || (r.End != 0 && r.End < r.Start) || (bed && r.Start < 1) {
+				t.Fatalf("invalid region %+v from %q", r, text)
+			}
+		}
+	})
+}
