@@ -138,7 +138,7 @@ func (c *cohort) figEstimators() (figure, error) {
 	f.SVG, err = renderGrid(grid, plotW, vg.Length(rows)*6.5*vg.Centimeter)
 	f.Caption = fmt.Sprintf("Each point is one sample; the dashed line is where both estimators agree. Labelled: up to %d samples per panel that lie furthest from the bulk of the cohort (robust distance), skipping labels that would overlap.", maxLabels)
 	if f.Points < f.Total {
-		f.Note = fmt.Sprintf("%d of %d sample-estimator pairs drawn: every %d-th sample plus the labelled and highlighted ones.", f.Points, f.Total, max(1, n/maxScatterPoints))
+		f.Note = fmt.Sprintf("%d of %d sample-estimator pairs drawn: one sample in %d, evenly through the file, plus the labelled and highlighted ones.", f.Points, f.Total, max(1, n/maxScatterPoints))
 	}
 	return f, err
 }

@@ -320,7 +320,7 @@ func (m matrix) Z(c, r int) float64 { return m.v[r*m.n+c] }
 func (m matrix) X(c int) float64    { return float64(c) }
 func (m matrix) Y(r int) float64    { return float64(r) }
 
-// errNoData is used in figure.Empty texts.
+// noData is the text shown in place of a plot whose input is absent.
 func noData(what string) string { return fmt.Sprintf("No %s in this output folder.", what) }
 
 // legendRoom widens a painting's x range so the legend sits beside the
@@ -375,9 +375,9 @@ func mad(v []float64, m float64) float64 {
 	return s
 }
 
-// declutter keeps, in order, up to k of the candidate rows whose points
-// are at least 6% of the data range apart (in both axes' units) from every
-// row kept before.
+// declutter keeps, in order, up to k of the candidate rows whose labels
+// would not overlap those kept before: points closer than 8% of the y
+// range and 40% of the x range (a label's rough box) are skipped.
 func declutter(xs, ys []float64, cand []int, k int) []int {
 	lox, hix, loy, hiy := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
 	for i := range xs {
@@ -397,8 +397,9 @@ func declutter(xs, ys []float64, cand []int, k int) []int {
 		}
 		ok := true
 		for _, j := range out {
-			dx, dy := (xs[i]-xs[j])/rx, (ys[i]-ys[j])/ry
-			if dx*dx+dy*dy < 0.06*0.06 {
+			// a label is a wide, low box to the right of its point
+			dx, dy := math.Abs(xs[i]-xs[j])/rx, math.Abs(ys[i]-ys[j])/ry
+			if dy < 0.08 && dx < 0.4 {
 				ok = false
 				break
 			}

@@ -254,7 +254,7 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 	}
 	v.SampleTableNote = note
 	for _, r := range rows {
-		sv := sampleRowView{Name: c.names[r], Flags: c.flags[r], Link: pages[r]}
+		sv := sampleRowView{Name: c.names[r], Flags: c.flags[r]}
 		if pages != nil && pages[r] != "" {
 			sv.Link = "samples/" + pages[r] + ".html"
 		}
