@@ -701,7 +701,7 @@ func (c *cohort) figQuality() (figure, error) {
 		lab = lab[:maxLabels]
 	}
 	addLabels(p, xs, ys, lab, c.names)
-	f.Caption = fmt.Sprintf("Circles: samples without a flag; red triangles: the %d flagged samples (up to %d labelled). Low call rate sits to the left; contamination or mixed samples tend to sit high, samples from another population or truly inbred ones low.", len(flagged), maxLabels)
+	f.Caption = fmt.Sprintf("Circles: samples without a flag; red triangles: the %d flagged samples (up to %d of the most unusual labelled). Low call rate sits to the left; contamination or mixed samples tend to sit high, samples from another population or truly inbred ones low.", len(flagged), maxLabels)
 	if f.Points < f.Total {
 		f.Note = fmt.Sprintf("%d of %d samples drawn: every flagged sample (up to %d) and an even subsample of the rest.", f.Points, f.Total, maxScatterPoints)
 	}

@@ -327,11 +327,18 @@ func noData(what string) string { return fmt.Sprintf("No %s in this output folde
 // tracks, not on them.
 const legendRoom = 1.2
 
-// outliers picks up to k points to label: those furthest from the median
-// of the cloud, each axis scaled by its median absolute deviation (a
-// robust distance, common practice), skipping points whose label would sit
-// on top of one already chosen.
+// outliers picks up to k points to label: those furthest from the bulk
+// (see byDistance), skipping points whose label would sit on top of one
+// already chosen.
 func outliers(xs, ys []float64, k int) []int {
+	return declutter(xs, ys, byDistance(xs, ys, nil), k)
+}
+
+// byDistance orders rows (all rows when nil) by their distance from the
+// median of the whole cloud, each axis scaled by its median absolute
+// deviation (a robust distance, common practice), furthest first; rows
+// with a NaN coordinate are dropped.
+func byDistance(xs, ys []float64, rows []int) []int {
 	var vx, vy []float64
 	for i := range xs {
 		if !math.IsNaN(xs[i]) && !math.IsNaN(ys[i]) {
@@ -343,16 +350,27 @@ func outliers(xs, ys []float64, k int) []int {
 	}
 	mx, my := median(vx), median(vy)
 	sx, sy := mad(vx, mx), mad(vy, my)
-	score := make([]float64, len(xs))
-	for i := range xs {
+	if rows == nil {
+		rows = make([]int, len(xs))
+		for i := range rows {
+			rows[i] = i
+		}
+	}
+	score := make([]float64, len(rows))
+	for j, i := range rows {
 		if math.IsNaN(xs[i]) || math.IsNaN(ys[i]) {
-			score[i] = math.NaN()
+			score[j] = math.NaN()
 			continue
 		}
 		dx, dy := (xs[i]-mx)/sx, (ys[i]-my)/sy
-		score[i] = dx*dx + dy*dy
+		score[j] = dx*dx + dy*dy
 	}
-	return declutter(xs, ys, labelTop(score, len(score)), k)
+	top := labelTop(score, len(score))
+	out := make([]int, len(top))
+	for j, t := range top {
+		out[j] = rows[t]
+	}
+	return out
 }
 
 // mad is the median absolute deviation around m, never zero.
