@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/binary"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -431,10 +432,44 @@ func mergeRunInfo(env *runEnv, ls []loadedState, m *merged, start time.Time) map
 	if m.rres != nil {
 		info["roh"] = m.rres.Summary()
 	}
+	overlayShardInfo(info, f.RunJSON)
 	for _, w := range m.warnings {
 		fmt.Fprintf(env.stderr, "fgauge: warning: %s (%d times; first: %s)\n", w.Kind, w.Count, w.Example)
 	}
 	return info
+}
+
+// overlayShardInfo copies into info the entries of a shard's run.json
+// that merge does not compute (top level and one level down): facts that
+// are the same in every shard, such as the samples missing from
+// --populations. Numbers merge must sum are all computed above, and the
+// identity tests compare the result with a single pass.
+func overlayShardInfo(info map[string]any, shardJSON []byte) {
+	var sh map[string]any
+	if json.Unmarshal(shardJSON, &sh) != nil {
+		return
+	}
+	for k, v := range sh {
+		switch k {
+		case "wall_seconds", "command_line":
+			continue
+		}
+		mine, ok := info[k]
+		if !ok {
+			info[k] = v
+			continue
+		}
+		mm, ok1 := mine.(map[string]any)
+		sm, ok2 := v.(map[string]any)
+		if !ok1 || !ok2 {
+			continue
+		}
+		for kk, vv := range sm {
+			if _, ok := mm[kk]; !ok {
+				mm[kk] = vv
+			}
+		}
+	}
 }
 
 // bgzfEOFBlock is the empty block that ends a BGZF file (SAM spec 4.1.2).

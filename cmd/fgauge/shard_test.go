@@ -1,0 +1,416 @@
+package main
+
+import (
+	"bytes"
+	"compress/gzip"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+
+	"fgauge/roh/simulate"
+)
+
+// shardSplit is one way of cutting an input into shards: the --region
+// values of each shard.
+type shardSplit struct {
+	name   string
+	shards [][]string
+}
+
+// scanShards scans each shard of sp with --state-out and merges the states
+// (given in reverse order, to show that merge orders them).
+func scanShards(t *testing.T, dir, input string, opts []string, sp shardSplit) string {
+	t.Helper()
+	var states []string
+	for i, regs := range sp.shards {
+		out := filepath.Join(dir, fmt.Sprintf("%s_shard%d", sp.name, i+1))
+		state := out + ".state"
+		args := append([]string{"scan", input, "-o", out, "--state-out", state, "--no-progress", "--threads", "2"}, opts...)
+		for _, r := range regs {
+			args = append(args, "--region", r)
+		}
+		if code, _, errText := runCmdline(t, args...); code != exitOK {
+			t.Fatalf("%s shard %d: exit %d: %s", sp.name, i+1, code, errText)
+		}
+		states = append([]string{state}, states...)
+	}
+	merged := filepath.Join(dir, sp.name+"_merged")
+	args := append([]string{"merge", "-o", merged, "--threads", "2"}, states...)
+	if code, _, errText := runCmdline(t, args...); code != exitOK {
+		t.Fatalf("%s merge: exit %d: %s", sp.name, code, errText)
+	}
+	return merged
+}
+
+func scanSingle(t *testing.T, dir, input string, opts []string) string {
+	t.Helper()
+	out := filepath.Join(dir, "single")
+	args := append([]string{"scan", input, "-o", out, "--no-progress", "--threads", "2"}, opts...)
+	if code, _, errText := runCmdline(t, args...); code != exitOK {
+		t.Fatalf("single pass: exit %d: %s", code, errText)
+	}
+	return out
+}
+
+func gunzipFile(t *testing.T, path string) []byte {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	zr, err := gzip.NewReader(f) // reads every member of a BGZF file
+	if err != nil {
+		t.Fatalf("%s: %v", path, err)
+	}
+	b, err := io.ReadAll(zr)
+	if err != nil {
+		t.Fatalf("%s: %v", path, err)
+	}
+	return b
+}
+
+// summaryJSON reads run.json without the fields that legitimately differ
+// between a single pass and a merge: wall time, command line and the
+// merge's own "shards" section.
+func summaryJSON(t *testing.T, path string) map[string]any {
+	t.Helper()
+	raw, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m map[string]any
+	if err := json.Unmarshal(raw, &m); err != nil {
+		t.Fatalf("%s: %v", path, err)
+	}
+	for _, k := range []string{"wall_seconds", "command_line", "shards"} {
+		delete(m, k)
+	}
+	return m
+}
+
+// assertSameOutputs checks that the merged folder holds byte-identical
+// tables, the same site rows and the same run.json summary as the single pass.
+func assertSameOutputs(t *testing.T, single, merged string) {
+	t.Helper()
+	n := 0
+	for _, name := range []string{"samples.tsv", "runs.tsv", "populations.tsv", "populations_pairwise.tsv"} {
+		a, errA := os.ReadFile(filepath.Join(single, name))
+		b, errB := os.ReadFile(filepath.Join(merged, name))
+		if errA != nil && errB != nil {
+			continue
+		}
+		if errA != nil || errB != nil {
+			t.Errorf("%s: present in one output only (%v, %v)", name, errA, errB)
+			continue
+		}
+		n++
+		if !bytes.Equal(a, b) {
+			t.Errorf("%s differs:\nsingle:\n%.600s\nmerged:\n%.600s", name, a, b)
+		}
+	}
+	if n < 2 {
+		t.Errorf("only %d tables compared", n)
+	}
+	for _, name := range []string{"sites.tsv.gz", "sites_by_population.tsv.gz"} {
+		if _, err := os.Stat(filepath.Join(single, name)); err != nil {
+			continue
+		}
+		a := gunzipFile(t, filepath.Join(single, name))
+		b := gunzipFile(t, filepath.Join(merged, name))
+		if !bytes.Equal(a, b) {
+			t.Errorf("%s: joined shard rows differ from the single pass (%d vs %d bytes)", name, len(a), len(b))
+		}
+		if bytes.Count(a, []byte("\n")) < 2 {
+			t.Errorf("%s has no rows", name)
+		}
+	}
+	a, b := summaryJSON(t, filepath.Join(single, "run.json")), summaryJSON(t, filepath.Join(merged, "run.json"))
+	if !reflect.DeepEqual(a, b) {
+		for k := range a {
+			if !reflect.DeepEqual(a[k], b[k]) {
+				t.Errorf("run.json %q differs:\nsingle %v\nmerged %v", k, a[k], b[k])
+			}
+		}
+	}
+}
+
+// writePopulations assigns the samples of a VCF to three invented herds in turn.
+func writePopulations(t *testing.T, dir, vcf string) string {
+	t.Helper()
+	zr, err := gzip.NewReader(mustOpen(t, vcf))
+	if err != nil {
+		t.Fatal(err)
+	}
+	raw, _ := io.ReadAll(io.LimitReader(zr, 1<<22))
+	var samples []string
+	for _, line := range strings.Split(string(raw), "\n") {
+		if strings.HasPrefix(line, "#CHROM") {
+			samples = strings.Split(line, "\t")[9:]
+			break
+		}
+	}
+	var b strings.Builder
+	herds := []string{"north_farm", "river_farm", "hill_farm"}
+	for i, s := range samples {
+		fmt.Fprintf(&b, "%s\t%s\n", s, herds[i%3])
+	}
+	return writeTestInput(t, dir, "populations.tsv", b.String())
+}
+
+func mustOpen(t *testing.T, path string) *os.File {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { f.Close() })
+	return f
+}
+
+// simulatedInput writes a three-chromosome simulated cohort (invented
+// herds: full-sib, half-sib and first-cousin matings) with a tabix index.
+func simulatedInput(t *testing.T, dir string) string {
+	t.Helper()
+	var designs []simulate.Design
+	for _, s := range []string{"full_sib", "half_sib", "first_cousin"} {
+		d, err := simulate.ParseDesign(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		designs = append(designs, d)
+	}
+	res, err := simulate.Run(simulate.Config{
+		Seed:          11,
+		Chromosomes:   []simulate.Chromosome{{Name: "1", LengthBP: 30_000_000, LengthCM: 30}, {Name: "2", LengthBP: 20_000_000, LengthCM: 20}, {Name: "3", LengthBP: 12_000_000, LengthCM: 12}},
+		Designs:       designs,
+		Replicates:    2,
+		SiteSpacing:   15_000,
+		MissingRate:   0.01,
+		GenotypeError: 0.001,
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(dir, "herds.vcf.gz")
+	if err := simulate.WriteVCFBGZF(path, res); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+func TestShardMergeIdentity(t *testing.T) {
+	dir := t.TempDir()
+	sim := simulatedInput(t, dir)
+	cases := []struct {
+		name   string
+		input  string
+		opts   func(dir string) []string
+		splits []shardSplit
+	}{
+		{
+			// Real data: 1000 Genomes chr22 excerpt (r-bioc-variantannotation),
+			// one chromosome, so every split cuts it.
+			name: "chr22", input: "../../testdata/chr22_1000g.vcf.gz",
+			opts: func(string) []string { return nil },
+			splits: []shardSplit{
+				{"two", [][]string{{"22:1-50600000"}, {"22:50600001-"}}},
+				{"three", [][]string{{"22:1-50450000"}, {"22:50450001-50750000"}, {"22:50750001-"}}},
+				{"seven", [][]string{{"22:1-50400000"}, {"22:50400001-50500000"}, {"22:50500001-50600000"},
+					{"22:50600001-50700000"}, {"22:50700001-50800000"}, {"22:50800001-50900000"}, {"22:50900001-"}}},
+			},
+		},
+		{
+			// Real data: cyvcf2's 189-sample test file, with invented herds.
+			name: "cohort189", input: "../../testdata/cohort189.vcf.gz",
+			opts: func(d string) []string {
+				return []string{"--populations", writePopulations(t, d, "../../testdata/cohort189.vcf.gz"), "--jackknife-block-mb", "0.001"}
+			},
+			splits: []shardSplit{
+				{"two", [][]string{{"1:1-12000"}, {"1:12001-"}}},
+				{"three", [][]string{{"1:1-11000"}, {"1:11001-14000"}, {"1:14001-"}}},
+				{"seven", [][]string{{"1:1-10500"}, {"1:10501-11000"}, {"1:11001-11500"}, {"1:11501-12000"},
+					{"1:12001-13000"}, {"1:13001-14500"}, {"1:14501-"}}},
+			},
+		},
+		{
+			// Simulated three-chromosome cohort: whole chromosomes and
+			// split ones in one merge.
+			name: "simulated", input: sim,
+			opts: func(d string) []string {
+				return []string{"--populations", writePopulations(t, d, sim), "--jackknife-block-mb", "2"}
+			},
+			splits: []shardSplit{
+				{"two", [][]string{{"1"}, {"2", "3"}}},
+				{"three", [][]string{{"1:1-17000000"}, {"1:17000001-", "2"}, {"3"}}},
+				{"seven", [][]string{{"1:1-5000000"}, {"1:5000001-13000000"}, {"1:13000001-22000000"}, {"1:22000001-"},
+					{"2:1-10000000"}, {"2:10000001-"}, {"3"}}},
+			},
+		},
+		{
+			// The same cohort with the rule-based detector and frequencies
+			// from the populations.
+			name: "simulated_rules", input: sim,
+			opts: func(d string) []string {
+				return []string{"--roh-method", "rules", "--rules-min-sites", "20"}
+			},
+			splits: []shardSplit{
+				{"three", [][]string{{"1:1-9000000"}, {"1:9000001-", "2:1-4000000"}, {"2:4000001-", "3"}}},
+			},
+		},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			d := filepath.Join(dir, tc.name)
+			if err := os.MkdirAll(d, 0o755); err != nil {
+				t.Fatal(err)
+			}
+			opts := tc.opts(d)
+			single := scanSingle(t, d, tc.input, opts)
+			for _, sp := range tc.splits {
+				t.Run(sp.name, func(t *testing.T) {
+					assertSameOutputs(t, single, scanShards(t, d, tc.input, opts, sp))
+				})
+			}
+		})
+	}
+}
+
+// shardFixture scans cohort189 as two shards and returns the state paths.
+func shardFixture(t *testing.T, dir string, extra ...string) (input string, states []string) {
+	t.Helper()
+	input = "../../testdata/cohort189.vcf.gz"
+	for i, r := range []string{"1:1-12000", "1:12001-"} {
+		out := filepath.Join(dir, fmt.Sprintf("s%d", i+1))
+		st := out + ".state"
+		args := append([]string{"scan", input, "--region", r, "-o", out, "--state-out", st, "--no-progress"}, extra...)
+		if code, _, e := runCmdline(t, args...); code != exitOK {
+			t.Fatalf("exit %d: %s", code, e)
+		}
+		states = append(states, st)
+	}
+	return input, states
+}
+
+func TestMergeRejects(t *testing.T) {
+	dir := t.TempDir()
+	input, states := shardFixture(t, dir)
+	scanState := func(name string, args ...string) string {
+		out := filepath.Join(dir, name)
+		st := out + ".state"
+		a := append([]string{"scan", input, "-o", out, "--state-out", st, "--no-progress"}, args...)
+		if code, _, e := runCmdline(t, a...); code != exitOK {
+			t.Fatalf("exit %d: %s", code, e)
+		}
+		return st
+	}
+	otherOpts := scanState("opts", "--region", "1:12001-", "--min-call-rate", "0.5")
+	overlap := scanState("overlap", "--region", "1:11000-13000")
+	whole := scanState("whole")
+	raw, err := os.ReadFile(states[1])
+	if err != nil {
+		t.Fatal(err)
+	}
+	corrupt := writeTestInput(t, dir, "corrupt.state", string(append(append([]byte(nil), raw[:len(raw)-1]...), raw[len(raw)-1]^1)))
+	truncated := writeTestInput(t, dir, "truncated.state", string(raw[:len(raw)/2]))
+	notState := writeTestInput(t, dir, "not.state", "sample\tpopulation\n")
+	// A state of another input: the same records, one more header line.
+	otherInput := filepath.Join(dir, "other.vcf")
+	text := gunzipFile(t, input)
+	text = bytes.Replace(text, []byte("##fileformat=VCFv4.1\n"), []byte("##fileformat=VCFv4.1\n##note=copy\n"), 1)
+	if err := os.WriteFile(otherInput, text, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	otherOut := filepath.Join(dir, "otherin")
+	if code, _, e := runCmdline(t, "scan", otherInput, "-o", otherOut, "--state-out", otherOut+".state", "--no-progress"); code != exitOK {
+		t.Fatalf("exit %d: %s", code, e)
+	}
+	otherIn := otherOut + ".state"
+	for _, tc := range []struct {
+		name   string
+		states []string
+		want   error
+		words  string
+	}{
+		{"options", []string{states[0], otherOpts}, errStateMismatch, "min-call-rate"},
+		{"overlap", []string{states[0], states[1], overlap}, errStateMismatch, "overlap"},
+		{"whole and part", []string{states[0], whole}, errStateMismatch, "whole input"},
+		{"other input", []string{states[0], otherIn}, errStateMismatch, "inputs differ"},
+		{"corrupt", []string{states[0], corrupt}, errStateCorrupt, "checksum"},
+		{"truncated", []string{truncated, states[0]}, errStateCorrupt, "truncated"},
+		{"not a state", []string{states[0], notState}, errStateCorrupt, "header"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			_, err := loadStates(tc.states)
+			if !errors.Is(err, tc.want) {
+				t.Fatalf("err = %v, want %v", err, tc.want)
+			}
+			if !strings.Contains(err.Error(), tc.words) {
+				t.Errorf("message %q lacks %q", err, tc.words)
+			}
+			code, _, errText := runCmdline(t, append([]string{"merge", "-o", filepath.Join(dir, "m_"+strings.ReplaceAll(tc.name, " ", "_"))}, tc.states...)...)
+			if code != exitBadInput {
+				t.Errorf("exit %d, want %d: %s", code, exitBadInput, errText)
+			}
+			named := false
+			for _, s := range tc.states {
+				named = named || strings.Contains(errText, s)
+			}
+			if !named {
+				t.Errorf("message names no state file: %s", errText)
+			}
+		})
+	}
+	// A site table edited after the state was written is caught too.
+	edited := filepath.Join(dir, "s2", "sites.tsv.gz")
+	b, _ := os.ReadFile(edited)
+	os.WriteFile(edited, append(b[:len(b):len(b)], 0), 0o644)
+	if _, err := loadStates(states); !errors.Is(err, errStateCorrupt) {
+		t.Errorf("edited site table: err = %v", err)
+	}
+	code, out, _ := runCmdline(t, "merge", "--check", states[0], states[1], corrupt)
+	if code != exitBadInput || strings.Count(out, "bad\t") != 2 || !strings.Contains(out, "ok\t"+states[0]) {
+		t.Errorf("merge --check: exit %d, output:\n%s", code, out)
+	}
+}
+
+func TestSkipIfValidState(t *testing.T) {
+	dir := t.TempDir()
+	input, states := shardFixture(t, dir)
+	st0, err := os.Stat(states[0])
+	if err != nil {
+		t.Fatal(err)
+	}
+	rerun := func(extra ...string) string {
+		args := append([]string{"scan", input, "--region", "1:1-12000", "-o", filepath.Join(dir, "s1"), "--force",
+			"--state-out", states[0], "--skip-if-valid-state", "--no-progress"}, extra...)
+		code, _, e := runCmdline(t, args...)
+		if code != exitOK {
+			t.Fatalf("exit %d: %s", code, e)
+		}
+		return e
+	}
+	if e := rerun(); !strings.Contains(e, "skipped") {
+		t.Errorf("valid state not skipped: %s", e)
+	}
+	if st, _ := os.Stat(states[0]); !st.ModTime().Equal(st0.ModTime()) {
+		t.Error("state rewritten although valid")
+	}
+	if e := rerun("--min-call-rate", "0.5"); strings.Contains(e, "skipped") || !strings.Contains(e, "another run") {
+		t.Errorf("state of other options was skipped: %s", e)
+	}
+	raw, _ := os.ReadFile(states[0])
+	os.WriteFile(states[0], raw[:len(raw)-3], 0o644)
+	if e := rerun(); strings.Contains(e, "skipped") || !strings.Contains(e, "again") {
+		t.Errorf("truncated state was skipped: %s", e)
+	}
+	if _, err := readStateFile(states[0]); err != nil {
+		t.Errorf("state not rewritten: %v", err)
+	}
+}
