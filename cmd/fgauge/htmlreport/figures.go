@@ -400,6 +400,7 @@ func (c *cohort) figPainting() (figure, error) {
 		return f, nil
 	}
 	idx, why := c.paintedSamples()
+	f.Rows = idx
 	g := c.layout()
 	if len(idx) == 0 || g.total == 0 {
 		f.Empty = "No sample with runs to paint."

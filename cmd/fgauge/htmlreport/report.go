@@ -239,6 +239,11 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 		if f.Note != "" {
 			v.Aggregated = append(v.Aggregated, f.Title+": "+f.Note)
 		}
+		for _, r := range f.Rows {
+			if st, ok := pages[r]; ok {
+				f.Links = append(f.Links, pageLink{c.names[r], "samples/" + st + ".html"})
+			}
+		}
 		*b.dst = &f
 	}
 	v.HasPops = d.pops != nil || d.pairs != nil

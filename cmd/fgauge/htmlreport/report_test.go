@@ -497,3 +497,16 @@ func TestOutlierLabels(t *testing.T) {
 		t.Errorf("byDistance over a subset = %v, want [5 0]", got)
 	}
 }
+
+func TestPaintingLinksToPages(t *testing.T) {
+	dir, _ := writeReport(t, fixtureOpts{n: 12, runs: true, sitesPerChr: 10, extraNames: hostileNames[:2]},
+		Options{PerSample: true, Highlight: hostileNames[:2]})
+	b, err := os.ReadFile(filepath.Join(dir, "report.html"))
+	must(t, err)
+	for _, want := range []string{`<a href="samples/_img_src_x_onerror_alert_1__.html">&lt;img src=x onerror=alert(1)&gt;</a>`,
+		`<a href="samples/____escape.html">../../escape</a>`} {
+		if !strings.Contains(string(b), want) {
+			t.Errorf("report lacks link %s", want)
+		}
+	}
+}

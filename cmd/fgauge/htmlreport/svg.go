@@ -25,7 +25,12 @@ type figure struct {
 	Total   int
 	SVG     template.HTML
 	Empty   string // why the plot is absent, when it is
+	Rows    []int  // samples drawn as named rows (paintings), for links
+	Links   []pageLink
 }
+
+// pageLink points from a figure to a sample's own page.
+type pageLink struct{ Name, Href string }
 
 var (
 	reProlog  = regexp.MustCompile(`(?s)\A.*?(<svg\b)`)
