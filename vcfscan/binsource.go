@@ -37,7 +37,7 @@ func (r *Reader) openBCF(tb *bufio.Reader, path string) error {
 	var src io.Reader = tb
 	if len(r.opt.Regions) > 0 {
 		if r.format != FormatBCF || path == "" {
-			return fmt.Errorf("%s: regions need a BGZF-compressed BCF file with a .csi index", r.name)
+			return fmt.Errorf("%s: %w: regions need a BGZF-compressed BCF file with a .csi index", r.name, ErrNoIndex)
 		}
 		s, err := r.regionStream(path)
 		if err != nil {

@@ -13,6 +13,8 @@ var (
 	ErrLimit       = errors.New("limit exceeded")
 	ErrUnsorted    = errors.New("records out of order")
 	ErrSampleCount = errors.New("wrong number of sample columns")
+	// ErrUnknownSample: a sample asked for by name is not in the file.
+	ErrUnknownSample = errors.New("unknown sample")
 )
 
 // ParseError locates a problem in an input file.

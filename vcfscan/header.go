@@ -29,15 +29,15 @@ func (h *headerReader) readLine() ([]byte, error) {
 	for {
 		frag, err := h.br.ReadSlice('\n')
 		if err == bufio.ErrBufferFull {
-			h.long = append(h.long, frag...)
-			if len(h.long) > h.maxLine {
+			if len(h.long)+len(frag) > h.maxLine {
 				return nil, &ParseError{File: h.name, Line: h.line + 1, Offset: -1, Record: -1, Field: "header",
 					Err: fmt.Errorf("%w: header line longer than %d bytes; raise --max-line-bytes if the file is genuine", ErrLimit, h.maxLine)}
 			}
+			h.long = appendCapped(h.long, frag, h.maxLine+1)
 			continue
 		}
 		if len(h.long) > 0 {
-			h.long = append(h.long, frag...)
+			h.long = appendCapped(h.long, frag, h.maxLine+1)
 			frag = h.long
 		}
 		if len(frag) > h.maxLine {
@@ -137,6 +137,11 @@ func parseTextHeader(br *bufio.Reader, name string, lim Limits, warn func(kind, 
 			}
 			return nil, false, 0, h.errf(ErrMalformed, "header", "data line before the #CHROM line; the header must end with #CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO")
 		}
+		// Count before splitting: a hostile line claiming millions of
+		// samples must not cost a string header per claimed sample.
+		if n := bytes.Count(line, []byte{'\t'}) - 8; n > lim.MaxSamples {
+			return nil, false, 0, h.errf(ErrLimit, "#CHROM", "%d samples, more than the limit of %d; raise --max-samples if the file is genuine", n, lim.MaxSamples)
+		}
 		cols := strings.Split(string(line), "\t")
 		if len(cols) < len(fixedColumns) {
 			return nil, false, 0, h.errf(ErrMalformed, "#CHROM", "expected at least the 8 tab-separated columns %s, found %d columns; are the columns separated by spaces?", strings.Join(fixedColumns, " "), len(cols))
@@ -169,6 +174,22 @@ func parseTextHeader(br *bufio.Reader, name string, lim Limits, warn func(kind, 
 		}
 		return hdr, hasFormat, h.line, nil
 	}
+}
+
+// appendCapped appends src to dst, doubling the capacity but stepping
+// straight to limit when the next doubling would pass it, so that a line
+// growing towards the limit costs about 1.5 times the limit at most.
+func appendCapped(dst, src []byte, limit int) []byte {
+	if need := len(dst) + len(src); need > cap(dst) {
+		nc := max(2*cap(dst), need)
+		if 2*nc > limit {
+			nc = max(limit, need)
+		}
+		nd := make([]byte, len(dst), nc)
+		copy(nd, dst)
+		dst = nd
+	}
+	return append(dst, src...)
 }
 
 // parseAngle parses "<K=V,K2="quoted, text",...>" into a map.

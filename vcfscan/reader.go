@@ -16,7 +16,7 @@ import (
 
 // Default limits (see Limits).
 const (
-	DefaultMaxLineBytes = 256 << 20
+	DefaultMaxLineBytes = 64 << 20
 	DefaultMaxSamples   = 10_000_000
 	DefaultMaxAlleles   = 1000
 	DefaultMaxBlock     = bgzfDefaultMaxI
@@ -109,7 +109,7 @@ func Open(path string, opt Options) (*Reader, error) {
 		total = st.Size()
 	}
 	if len(opt.Regions) > 0 && path == "-" {
-		return nil, fmt.Errorf("%s: regions need an indexed file, not standard input", name)
+		return nil, fmt.Errorf("%s: %w: regions need an indexed file, not standard input", name, ErrNoIndex)
 	}
 	r, err := newReader(f, name, path, opt, total)
 	if err != nil {
@@ -196,7 +196,8 @@ func newReader(src io.Reader, name, path string, opt Options, total int64) (*Rea
 		if m, _ := tb.Peek(4); bytes.Equal(m, bcfMagic2) {
 			if r.format == FormatVCFGzip {
 				r.stop()
-				return nil, fmt.Errorf("%s: BCF inside plain gzip is not a valid BCF; BCF must be BGZF-compressed", name)
+				return nil, &ParseError{File: name, Offset: -1, Record: -1, Field: "container",
+					Err: fmt.Errorf("%w: BCF inside plain gzip is not a valid BCF; BCF must be BGZF-compressed (blocked gzip)", ErrMalformed)}
 			}
 			r.format = FormatBCF
 		}
@@ -223,7 +224,7 @@ func newReader(src io.Reader, name, path string, opt Options, total int64) (*Rea
 	if len(opt.Regions) > 0 {
 		if r.format != FormatVCFBGZF || path == "" {
 			r.stop()
-			return nil, fmt.Errorf("%s: regions need a BGZF-compressed file with a .tbi or .csi index", name)
+			return nil, fmt.Errorf("%s: %w: regions need a BGZF-compressed file with a .tbi or .csi index", name, ErrNoIndex)
 		}
 		s, err := r.regionStream(path)
 		if err != nil {
@@ -301,7 +302,7 @@ func selectSamples(name string, file, keep, exclude []string) ([]int32, []string
 	drop := map[string]bool{}
 	for _, s := range exclude {
 		if _, ok := idx[s]; !ok {
-			return nil, nil, fmt.Errorf("%s: sample %q to exclude is not in the file (it has %d samples); check the spelling", name, s, len(file))
+			return nil, nil, fmt.Errorf("%s: %w: sample %q to exclude is not in the file (it has %d samples); check the spelling", name, ErrUnknownSample, s, len(file))
 		}
 		drop[s] = true
 	}
@@ -320,7 +321,7 @@ func selectSamples(name string, file, keep, exclude []string) ([]int32, []string
 	if keep != nil {
 		for _, s := range keep {
 			if _, ok := idx[s]; !ok {
-				return nil, nil, fmt.Errorf("%s: requested sample %q is not in the file (it has %d samples); check the spelling", name, s, len(file))
+				return nil, nil, fmt.Errorf("%s: %w: requested sample %q is not in the file (it has %d samples); check the spelling", name, ErrUnknownSample, s, len(file))
 			}
 			add(s)
 		}
@@ -422,7 +423,14 @@ func (r *Reader) chunkLoop() {
 				r.order <- b
 				return
 			}
-			nb := make([]byte, len(buf), min(2*cap(buf), maxLine+2))
+			// Double, but step straight to the limit when the next
+			// doubling would pass it, so that a hostile line costs
+			// about 1.5 times the limit at most.
+			nc := 2 * cap(buf)
+			if 2*nc > maxLine+1 {
+				nc = maxLine + 1
+			}
+			nb := make([]byte, len(buf), max(nc, len(buf)+1))
 			copy(nb, buf)
 			buf = nb
 		}

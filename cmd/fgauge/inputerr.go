@@ -15,7 +15,7 @@ import (
 var inputSentinels = []error{
 	vcfscan.ErrMalformed, vcfscan.ErrTruncated, vcfscan.ErrChecksum, vcfscan.ErrLimit,
 	vcfscan.ErrUnsorted, vcfscan.ErrSampleCount,
-	vcfscan.ErrBadRegion, vcfscan.ErrNoIndex, vcfscan.ErrStaleIndex, vcfscan.ErrUnknownContig,
+	vcfscan.ErrBadRegion, vcfscan.ErrNoIndex, vcfscan.ErrStaleIndex, vcfscan.ErrUnknownContig, vcfscan.ErrUnknownSample,
 	stats.ErrBadTable, roh.ErrMap, roh.ErrConfig,
 	pedigree.ErrMalformed, pedigree.ErrDuplicate, pedigree.ErrLoop, pedigree.ErrUnknownID,
 	fs.ErrNotExist, fs.ErrPermission,

@@ -1,0 +1,283 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+)
+
+// badDir is the malformed-input corpus written by testdata/bad/gen (its
+// README lists what is wrong with each file).
+var badDir = filepath.Join("..", "..", "testdata", "bad")
+
+// badRun runs one fgauge command line in-process and returns the exit
+// code and what it printed on stderr.
+func badRun(t *testing.T, args ...string) (int, string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	env := &runEnv{stdout: &out, stderr: &errb, stdin: strings.NewReader(""), argv: append([]string{"fgauge"}, args...)}
+	code := run(context.Background(), env, args)
+	return code, errb.String()
+}
+
+// leftovers lists what is in dir (nil when dir does not exist).
+func leftovers(t *testing.T, dir string) []string {
+	t.Helper()
+	ents, err := os.ReadDir(dir)
+	if os.IsNotExist(err) {
+		return nil
+	}
+	if err != nil {
+		t.Fatal(err)
+	}
+	var names []string
+	for _, e := range ents {
+		names = append(names, e.Name())
+	}
+	return names
+}
+
+// badCase is one malformed (or legal but suspicious) input and what scan
+// must do with it. The decisions are ours; the expected messages name the
+// file and the place (line, BGZF offset or BCF record) and say what was
+// expected and found.
+type badCase struct {
+	file string   // in testdata/bad (or a path relative to this folder)
+	args []string // extra scan options
+	code int
+	msg  []string // fragments of stderr, in any order
+	warn string   // for code 0: a warning kind run.json must count
+}
+
+var badCases = []badCase{
+	// Text VCF header.
+	{file: "empty.vcf", code: 2, msg: []string{"empty.vcf: malformed input: input is empty; expected a VCF or BCF file"}},
+	{file: "no_header.vcf", code: 2, msg: []string{"no_header.vcf:1: header:", "expected ##fileformat=VCFv4.x on the first line"}},
+	{file: "missing_chrom_line.vcf", code: 2, msg: []string{"missing_chrom_line.vcf:5: header:", "data line before the #CHROM line"}},
+	{file: "header_after_records.vcf", code: 2, msg: []string{"header_after_records.vcf:7:", "header lines must come before #CHROM"}},
+	{file: "chrom_line_spaces.vcf", code: 2, msg: []string{"chrom_line_spaces.vcf:5: #CHROM:", "found 1 columns; are the columns separated by spaces?"}},
+	{file: "too_few_fixed_columns.vcf", code: 2, msg: []string{"too_few_fixed_columns.vcf:5: #CHROM:", `column 8 is "goat_a", expected "INFO"`}},
+	{file: "wrong_column_name.vcf", code: 2, msg: []string{"wrong_column_name.vcf:5: #CHROM:", `column 9 is "GENOTYPE", expected FORMAT`}},
+	{file: "duplicate_samples.vcf", code: 2, msg: []string{"duplicate_samples.vcf:5: #CHROM:", `sample name "goat_a" appears in columns 10 and 12`}},
+	{file: "empty_sample_name.vcf", code: 2, msg: []string{"empty_sample_name.vcf:5: #CHROM:", "sample column 4 has an empty name"}},
+	{file: "binary_garbage.vcf", code: 2, msg: []string{"binary_garbage.vcf:1: header:", "the input is not a VCF"}},
+	// A valid header without records is legal: empty tables and a warning.
+	{file: "header_only.vcf", code: 0},
+
+	// Text VCF records.
+	{file: "too_few_sample_columns.vcf", code: 2, msg: []string{"too_few_sample_columns.vcf:7: samples: wrong number of sample columns: expected 3", "found 2"}},
+	{file: "too_many_sample_columns.vcf", code: 2, msg: []string{"too_many_sample_columns.vcf:6: samples:", "expected 3 sample columns as in the #CHROM line, found 4"}},
+	{file: "too_few_columns.vcf", code: 2, msg: []string{"too_few_columns.vcf:6:", "line has 4 tab-separated columns, expected at least 8"}},
+	{file: "pos_not_numeric.vcf", code: 2, msg: []string{"pos_not_numeric.vcf:6: POS:", `found "10a0"`}},
+	{file: "pos_negative.vcf", code: 2, msg: []string{"pos_negative.vcf:6: POS:", `found "-5"`}},
+	{file: "pos_overflow.vcf", code: 2, msg: []string{"pos_overflow.vcf:6: POS:", `found "99999999999999999999999"`}},
+	// POS 0 is legal: VCF 4.2 section 1.6.1 reserves 0 (and N+1) for telomeres.
+	{file: "pos_zero.vcf", code: 0},
+	{file: "unsorted_positions.vcf", code: 2, msg: []string{"unsorted_positions.vcf:8: POS: records out of order: position 1500 on 1 comes after position 3000 (line 7)", "sort the file by chromosome and position"}},
+	{file: "chrom_split.vcf", code: 2, msg: []string{"chrom_split.vcf:8: CHROM: records out of order: chromosome 1 appears again", "keep each chromosome's records together"}},
+	// Without ROH and regions, order does not matter to the statistics.
+	{file: "unsorted_positions.vcf", args: []string{"--no-roh"}, code: 0},
+	{file: "gt_allele_beyond_alt.vcf", code: 2, msg: []string{"gt_allele_beyond_alt.vcf:7: GT:", `sample "goat_b": genotype "0/2": allele 2 is used but ALT lists only 1 allele`}},
+	{file: "gt_not_a_number.vcf", code: 2, msg: []string{"gt_not_a_number.vcf:6: GT:", `genotype "a/b": expected an allele number or '.'`}},
+	// Triploid calls are legal VCF; a diploid measure cannot use them:
+	// counted as missing and warned.
+	{file: "triploid.vcf", code: 0, warn: "polyploid_calls_as_missing"},
+	// CRLF line endings are accepted: the CR is dropped.
+	{file: "crlf.vcf", code: 0},
+	// A NUL inside REF makes it two bytes: not a SNP, skipped and counted.
+	{file: "nul_in_record.vcf", code: 0},
+
+	// Limits, each with the option that raises it.
+	{file: "many_alleles.vcf", args: []string{"--max-alleles", "3"}, code: 2, msg: []string{"many_alleles.vcf:6: ALT: limit exceeded: 6 alleles, more than the limit of 3; raise --max-alleles"}},
+	{file: "many_alleles.vcf", code: 0}, // default limit: the 6-allele site is skipped as multiallelic
+	{file: "long_line.vcf", args: []string{"--max-line-bytes", "4096"}, code: 2, msg: []string{"long_line.vcf:7: line: limit exceeded: line of 6041 bytes is longer than the limit of 4096; raise --max-line-bytes"}},
+	{file: "crlf.vcf", args: []string{"--max-samples", "2"}, code: 2, msg: []string{"crlf.vcf:5: #CHROM: limit exceeded: 3 samples, more than the limit of 2; raise --max-samples"}},
+
+	// BGZF and gzip containers.
+	{file: "bgzf_truncated_mid_block.vcf.gz", code: 2, msg: []string{"bgzf_truncated_mid_block.vcf.gz (virtual offset 6553600)", "truncated input: block at byte 100", "the file was cut short"}},
+	{file: "bgzf_flipped_crc.vcf.gz", code: 2, msg: []string{"bgzf_flipped_crc.vcf.gz (virtual offset 6553600)", "checksum mismatch: block at byte 100: CRC32"}},
+	{file: "bgzf_bad_header.vcf.gz", code: 2, msg: []string{"bgzf_bad_header.vcf.gz (virtual offset 6553600)", "expected a BGZF block header (1f 8b 08 with FEXTRA), found 1f 8c 08 04"}},
+	{file: "bgzf_isize_too_big.vcf.gz", code: 2, msg: []string{"bgzf_isize_too_big.vcf.gz (virtual offset 6553600)", "ISIZE says 70000"}},
+	{file: "bgzf_corrupt_deflate.vcf.gz", code: 2, msg: []string{"bgzf_corrupt_deflate.vcf.gz (virtual offset 6553600)", "the file is damaged"}},
+	{file: "bgzf_missing_eof.vcf.gz", code: 0, warn: "bgzf_missing_eof"},
+	{file: "gzip_truncated.vcf.gz", code: 2, msg: []string{"gzip_truncated.vcf.gz: gzip: truncated input"}},
+	{file: "gzip_flipped_crc.vcf.gz", code: 2, msg: []string{"gzip_flipped_crc.vcf.gz: gzip: checksum mismatch"}},
+
+	// BCF.
+	{file: "bcf_wrong_magic.bcf", code: 2, msg: []string{"bcf_wrong_magic.bcf:1: header:", `found "BCX\x02\x02`, "the input is not a VCF"}},
+	{file: "bcf_version_21.bcf", code: 2, msg: []string{"bcf_version_21.bcf (virtual offset 0): BCF magic:", "BCF version 2.1 is not supported, only 2.2"}},
+	{file: "bcf_truncated_record.bcf", code: 2, msg: []string{"bcf_truncated_record.bcf: record 2:", "truncated input: record of 972 bytes cut short"}},
+	{file: "bcf_header_length_lie.bcf", code: 2, msg: []string{"bcf_header_length_lie.bcf: BCF header: truncated input: header text has 17215 of 200000000 bytes"}},
+	{file: "bcf_record_length_lie.bcf", code: 2, msg: []string{"bcf_record_length_lie.bcf: record 0:", "limit exceeded: record of 200000051 bytes is over the 67108864 limit"}},
+	{file: "bcf_plain_gzip.bcf", code: 2, msg: []string{"bcf_plain_gzip.bcf:", "BCF must be BGZF-compressed"}},
+
+	// Indexes (region queries).
+	{file: "index_past_end.vcf.gz", args: []string{"--region", "1"}, code: 2, msg: []string{"index_past_end.vcf.gz.tbi:", "points at byte 100304 but", "index_past_end.vcf.gz has only 304 bytes", "rebuild it"}},
+	{file: "index_garbage.vcf.gz", args: []string{"--region", "1"}, code: 2, msg: []string{"index_garbage.vcf.gz.tbi: malformed input: cannot read tabix index"}},
+	{file: "crlf.vcf", args: []string{"--region", "1"}, code: 2, msg: []string{"crlf.vcf: no index file next to the data file: regions need a BGZF-compressed file with a .tbi or .csi index"}},
+
+	// Side files named by options.
+	{file: "crlf.vcf", args: []string{"--populations", "@populations_bad.tsv"}, code: 2, msg: []string{"populations_bad.tsv:3: want 2 columns (sample population), got 3"}},
+	{file: "crlf.vcf", args: []string{"--pedigree", "@pedigree_loop.tsv"}, code: 2, msg: []string{"pedigree_loop.tsv:4:", "animal is its own ancestor"}},
+	{file: "crlf.vcf", args: []string{"--regions-file", "@regions_bad.txt"}, code: 2, msg: []string{"regions_bad.txt:2: bad region"}},
+	{file: "crlf.vcf", args: []string{"--genetic-map", "@genetic_map_bad.txt"}, code: 2, msg: []string{"genetic_map_bad.txt:2:", `cM "abc" is not a number`}},
+	{file: "crlf.vcf", args: []string{"--freqs", "@freqs_bad.tsv"}, code: 2, msg: []string{"freqs_bad.tsv:1:", `alt_freq "1.5" is not a number in [0,1]`}},
+	{file: "crlf.vcf", args: []string{"--samples", "@samples_list.txt"}, code: 2, msg: []string{"crlf.vcf: unknown sample: requested sample \"goat_z\" is not in the file (it has 3 samples); check the spelling"}},
+	{file: "no_such_file.vcf", code: 2, msg: []string{"no_such_file.vcf", "no such file"}},
+	{file: "crlf.vcf", args: []string{"--populations", "@no_such_file.tsv"}, code: 2, msg: []string{"no_such_file.tsv", "no such file"}},
+	{file: "crlf.vcf", args: []string{"--pedigree", "@no_such_file.tsv"}, code: 2, msg: []string{"no_such_file.tsv", "no such file"}},
+	{file: "crlf.vcf", args: []string{"--regions-file", "@no_such_file.txt"}, code: 2, msg: []string{"no_such_file.txt", "no such file"}},
+	{file: "crlf.vcf", args: []string{"--genetic-map", "@no_such_file.txt"}, code: 2, msg: []string{"no_such_file.txt", "no such file"}},
+}
+
+// TestBadInputs runs scan on every corpus file and checks the exit code,
+// the message, and that a failed run leaves OUTDIR as it found it: absent
+// when scan created it, holding only the user's own file otherwise.
+func TestBadInputs(t *testing.T) {
+	covered := map[string]bool{}
+	for _, tc := range badCases {
+		covered[tc.file] = true
+		for _, a := range tc.args {
+			if strings.HasPrefix(a, "@") {
+				covered[a[1:]] = true
+			}
+		}
+		name := tc.file
+		if len(tc.args) > 0 {
+			name += strings.Join(tc.args, "_")
+		}
+		t.Run(name, func(t *testing.T) {
+			t.Parallel()
+			for _, existing := range []bool{false, true} {
+				out := filepath.Join(t.TempDir(), "out")
+				if existing {
+					if err := os.Mkdir(out, 0o755); err != nil {
+						t.Fatal(err)
+					}
+					if err := os.WriteFile(filepath.Join(out, "notes.txt"), []byte("mine"), 0o644); err != nil {
+						t.Fatal(err)
+					}
+				}
+				args := []string{"scan", filepath.Join(badDir, tc.file), "-o", out, "--no-progress", "--threads", "2"}
+				for _, a := range tc.args {
+					if strings.HasPrefix(a, "@") {
+						a = filepath.Join(badDir, a[1:])
+					}
+					args = append(args, a)
+				}
+				code, stderr := badRun(t, args...)
+				if code != tc.code {
+					t.Fatalf("exit code %d, want %d; stderr:\n%s", code, tc.code, stderr)
+				}
+				for _, m := range tc.msg {
+					if !strings.Contains(stderr, m) {
+						t.Errorf("stderr lacks %q:\n%s", m, stderr)
+					}
+				}
+				if strings.Contains(stderr, "panic") || strings.Contains(stderr, "goroutine ") {
+					t.Errorf("stderr shows a crash:\n%s", stderr)
+				}
+				left := leftovers(t, out)
+				if tc.code != 0 {
+					want := ""
+					if existing {
+						want = "notes.txt"
+					}
+					if strings.Join(left, ",") != want {
+						t.Errorf("OUTDIR holds %v after a failed run, want %q", left, want)
+					}
+					continue
+				}
+				var info struct {
+					Warnings map[string]int64 `json:"warnings"`
+				}
+				raw, err := os.ReadFile(filepath.Join(out, "run.json"))
+				if err != nil {
+					t.Fatalf("%v (left: %v)", err, left)
+				}
+				if err := json.Unmarshal(raw, &info); err != nil {
+					t.Fatal(err)
+				}
+				if tc.warn != "" && info.Warnings[tc.warn] == 0 {
+					t.Errorf("run.json warnings %v lack %s", info.Warnings, tc.warn)
+				}
+				for _, n := range left {
+					if strings.HasPrefix(n, ".fgauge-tmp") {
+						t.Errorf("temporary folder %s left after success", n)
+					}
+				}
+			}
+		})
+	}
+	// Every corpus file is exercised.
+	ents, err := os.ReadDir(badDir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range ents {
+		n := e.Name()
+		if e.IsDir() || n == "README.md" || strings.HasSuffix(n, ".tbi") {
+			continue
+		}
+		if !covered[n] {
+			t.Errorf("corpus file %s has no case", n)
+		}
+	}
+}
+
+// TestBadInputsExistingResults: an OUTDIR holding results is refused
+// without --force and left untouched.
+func TestBadInputsExistingResults(t *testing.T) {
+	out := t.TempDir()
+	old := []byte("old results\n")
+	if err := os.WriteFile(filepath.Join(out, "samples.tsv"), old, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, stderr := badRun(t, "scan", filepath.Join(badDir, "crlf.vcf"), "-o", out, "--no-progress")
+	if code != 2 || !strings.Contains(stderr, "already holds results (samples.tsv)") || !strings.Contains(stderr, "--force") {
+		t.Fatalf("code %d, stderr %s", code, stderr)
+	}
+	if got, _ := os.ReadFile(filepath.Join(out, "samples.tsv")); !bytes.Equal(got, old) {
+		t.Errorf("samples.tsv changed: %q", got)
+	}
+	if left := leftovers(t, out); len(left) != 1 {
+		t.Errorf("left %v", left)
+	}
+	// A failing run with --force still keeps the old results.
+	code, _ = badRun(t, "scan", filepath.Join(badDir, "pos_negative.vcf"), "-o", out, "--no-progress", "--force")
+	if code != 2 {
+		t.Fatalf("code %d", code)
+	}
+	if got, _ := os.ReadFile(filepath.Join(out, "samples.tsv")); !bytes.Equal(got, old) {
+		t.Errorf("a failed --force run changed samples.tsv: %q", got)
+	}
+	if left := leftovers(t, out); len(left) != 1 {
+		t.Errorf("left %v", left)
+	}
+}
+
+// TestBadInputCancelled: a scan whose context is already cancelled exits
+// 130 and leaves nothing behind.
+func TestBadInputCancelled(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "out")
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	var errb bytes.Buffer
+	args := []string{"scan", filepath.Join("..", "..", "testdata", "cohort189.vcf.gz"), "-o", out, "--no-progress"}
+	start := time.Now()
+	code := run(ctx, &runEnv{stdout: &bytes.Buffer{}, stderr: &errb, argv: args}, args)
+	if code != exitInterrupted || !strings.Contains(errb.String(), "interrupted") {
+		t.Fatalf("code %d, stderr %s", code, errb.String())
+	}
+	if d := time.Since(start); d > 5*time.Second {
+		t.Errorf("took %v to stop", d)
+	}
+	if left := leftovers(t, out); left != nil {
+		t.Errorf("left %v", left)
+	}
+}
