@@ -24,6 +24,7 @@ type chromData struct {
 	plSite []int32
 	pl     [][]uint8 // nil until a site with likelihoods is seen
 	nPL    int32
+	stage  []uint64 // per sample, the calls of the current block of 32 sites (Collector only)
 
 	// built before detection, shared read-only by workers
 	emit  []float64 // 8 per site: see emissionRow
@@ -48,5 +49,21 @@ func (ch *chromData) unpack(s int, dst []uint8) {
 			dst[t] = uint8(v & 3)
 			v >>= 2
 		}
+	}
+}
+
+// flushStage appends the staged block of calls to each sample's words.
+// Sites already in geno are those of whole earlier blocks, so the staged
+// block is always the next word.
+func (ch *chromData) flushStage() {
+	if ch.stage == nil || len(ch.pos) == 0 {
+		return
+	}
+	if len(ch.geno) > 0 && len(ch.geno[0]) == (len(ch.pos)+31)/32 {
+		return // already flushed
+	}
+	for s, v := range ch.stage {
+		ch.geno[s] = append(ch.geno[s], v)
+		ch.stage[s] = 0
 	}
 }

@@ -178,18 +178,21 @@ func (c *Collector) AddBatch(b *vcfscan.Batch, freqs []float64) error {
 		t := len(ch.pos)
 		ch.pos = append(ch.pos, rec.Pos)
 		ch.freq = append(ch.freq, p)
-		sh := uint(t&31) * 2
-		if sh == 0 {
-			for s := range ch.geno {
-				ch.geno[s] = append(ch.geno[s], 0)
-			}
+		// Calls go to a staging word per sample (sequential writes) and
+		// are appended to the per-sample slices once per 32 sites.
+		if ch.stage == nil {
+			ch.stage = make([]uint64, ns)
 		}
-		w := t >> 5
+		stage := ch.stage[:len(calls)]
+		sh := uint(t&31) * 2
 		for s, g := range calls {
 			if g > 3 {
-				g = 3
+				g = 3 // haploid calls count as missing
 			}
-			ch.geno[s][w] |= uint64(g) << sh
+			stage[s] |= uint64(g) << sh
+		}
+		if t&31 == 31 {
+			ch.flushStage()
 		}
 		if b.PL != nil && i < len(b.HasPL) && b.HasPL[i] {
 			if ch.pl == nil {
@@ -285,6 +288,7 @@ func (c *Collector) prepare(ch *chromData, w *chromWork) {
 // dispatch queues a finished chromosome for detection, after the previous
 // one is done (bounding memory).
 func (c *Collector) dispatch(ch *chromData) {
+	ch.flushStage()
 	w := &chromWork{data: ch, perSample: make([][]Run, len(c.samples))}
 	c.chroms = append(c.chroms, w)
 	if c.pending != nil {
@@ -353,9 +357,7 @@ func (c *Collector) detect(sc *hmmScratch, j job) {
 	maxGap := int64(c.cfg.MaxGapKB * 1000)
 	for s := j.s0; s < j.s1; s++ {
 		if c.cfg.Method == MethodRules {
-			sc.code = grow(sc.code, len(ch.pos))
-			ch.unpack(s, sc.code)
-			j.w.perSample[s] = rulesRuns(ch, s, sc.code, &c.cfg.Rules, maxGap)
+			j.w.perSample[s] = rulesRuns(ch, s, sc, &c.cfg.Rules, maxGap)
 			continue
 		}
 		sc.code = grow(sc.code, len(ch.pos))

@@ -96,6 +96,8 @@ type hmmScratch struct {
 	path  []uint8
 	post  []float64
 	tr    []float64
+	ev    []int32 // rules: indices of heterozygous and missing calls
+	kind  []uint8 // rules: their codes
 }
 
 func grow[T any](s []T, n int) []T {

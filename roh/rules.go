@@ -3,6 +3,7 @@ package roh
 import (
 	"container/heap"
 	"math"
+	"math/bits"
 	"sort"
 )
 
@@ -19,9 +20,33 @@ import (
 // r.MaxKBPerSite. Resolving by length rather than by a left-to-right scan
 // makes the result independent of the direction of the scan (up to exact
 // length ties), which a greedy scan is not.
-func rulesRuns(ch *chromData, s int, code []uint8, r *Rules, maxGap int64) []Run {
-	n := len(code)
-	hom := func(t int) bool { return code[t] == 0 || code[t] == 2 }
+//
+// It works on the packed calls: only the heterozygous and missing calls
+// ("events", found 32 sites at a time with bit masks) are visited, since a
+// maximal window always starts just after an event and ends just before
+// one. rulesRunsRef in the tests is the plain per-site version it is
+// checked against.
+func rulesRuns(ch *chromData, s int, sc *hmmScratch, r *Rules, maxGap int64) []Run {
+	n := len(ch.pos)
+	words := ch.geno[s]
+	// events: sites whose code has the low bit set (1 het, 3 missing)
+	ev, kind := sc.ev[:0], sc.kind[:0]
+	for w, v := range words {
+		m := v & 0x5555555555555555
+		for m != 0 {
+			tz := bits.TrailingZeros64(m)
+			t := w*32 + tz/2
+			if t >= n {
+				break
+			}
+			ev = append(ev, int32(t))
+			kind = append(kind, uint8(v>>uint(tz))&3)
+			m &= m - 1
+		}
+	}
+	sc.ev, sc.kind = ev, kind
+	bad := func(t int) bool { return words[t>>5]>>(uint(t&31)*2)&1 != 0 }
+
 	var cands candHeap
 	minBP := r.MinKB * 1000
 	// ok applies the length, count and density thresholds; a window that
@@ -31,55 +56,70 @@ func rulesRuns(ch *chromData, s int, code []uint8, r *Rules, maxGap int64) []Run
 		ns := b - a + 1
 		return bp >= minBP && ns >= r.MinSites && bp/1000/float64(ns) <= r.MaxKBPerSite
 	}
-	// segments between large gaps
+	e0 := 0 // first event of the current segment
 	lo := 0
 	for lo < n {
 		hi := lo
 		for hi+1 < n && ch.pos[hi+1]-ch.pos[hi] <= maxGap {
 			hi++
 		}
-		// two pointers over [lo,hi]
+		e1 := e0 // events of [lo, hi] are ev[e0:e1]
+		for e1 < len(ev) && int(ev[e1]) <= hi {
+			e1++
+		}
+		E, K := ev[e0:e1], kind[e0:e1]
+		nE := len(E)
+		// window after event i (i = -1: from lo) includes events i+1..j
+		j := -1
 		nh, nm := 0, 0
-		right := lo - 1 // window is [l, right]
 		lastEnd := -1
-		for l := lo; l <= hi; l++ {
-			if right < l-1 {
-				right = l - 1
-				nh, nm = 0, 0
+		for i := -1; i < nE; i++ {
+			if i >= 0 { // event i leaves the window
+				if j >= i {
+					if K[i] == 1 {
+						nh--
+					} else {
+						nm--
+					}
+				} else {
+					j = i
+					nh, nm = 0, 0
+				}
 			}
-			for right+1 <= hi {
-				g := code[right+1]
-				if g == 1 && nh == r.MaxHet || g == 3 && nm == r.MaxMissing {
+			start := lo
+			if i >= 0 {
+				start = int(E[i]) + 1
+			}
+			for j+1 < nE {
+				k := K[j+1]
+				if k == 1 && nh == r.MaxHet || k == 3 && nm == r.MaxMissing {
 					break
 				}
-				right++
-				if g == 1 {
+				j++
+				if k == 1 {
 					nh++
-				} else if g == 3 {
+				} else {
 					nm++
 				}
 			}
-			if hom(l) {
-				e := right
-				for e >= l && !hom(e) {
-					e--
-				}
-				if e >= l && e > lastEnd {
-					if ok(l, e) {
-						cands = append(cands, cand{ch.pos[e] - ch.pos[l] + 1, l, e})
-					}
-					lastEnd = e
-				}
+			if start > hi || (i+1 < nE && int(E[i+1]) == start) {
+				continue // starts on an event: inside the next window
 			}
-			if right >= l { // drop l from the window
-				switch code[l] {
-				case 1:
-					nh--
-				case 3:
-					nm--
+			end := hi
+			if j+1 < nE {
+				end = int(E[j+1]) - 1
+			}
+			for jj := j; jj > i && int(E[jj]) == end; jj-- {
+				end--
+			}
+			if end >= start && end > lastEnd {
+				if ok(start, end) {
+					cands = append(cands, cand{ch.pos[end] - ch.pos[start] + 1, start, end})
 				}
+				lastEnd = end
 			}
 		}
+		e0 = e1
 		lo = hi + 1
 	}
 	heap.Init(&cands)
@@ -98,23 +138,23 @@ func rulesRuns(ch *chromData, s int, code []uint8, r *Rules, maxGap int64) []Run
 		a := c.a
 		for k := i; k < len(acc) && acc[k][0] <= c.b; k++ {
 			if acc[k][0]-1 >= a {
-				pushTrimmed(&cands, ch, code, a, acc[k][0]-1, ok)
+				pushTrimmed(&cands, ch, bad, a, acc[k][0]-1, ok)
 			}
 			a = acc[k][1] + 1
 		}
 		if a <= c.b {
-			pushTrimmed(&cands, ch, code, a, c.b, ok)
+			pushTrimmed(&cands, ch, bad, a, c.b, ok)
 		}
 	}
 	runs := make([]Run, 0, len(acc))
 	for _, w := range acc {
 		run := Run{Sample: s, Start: ch.pos[w[0]], End: ch.pos[w[1]], StartCM: ch.cm[w[0]], EndCM: ch.cm[w[1]],
 			NSites: w[1] - w[0] + 1, Quality: math.NaN()}
-		for t := w[0]; t <= w[1]; t++ {
-			switch code[t] {
-			case 1:
+		k := sort.Search(len(ev), func(k int) bool { return int(ev[k]) >= w[0] })
+		for ; k < len(ev) && int(ev[k]) <= w[1]; k++ {
+			if kind[k] == 1 {
 				run.NHet++
-			case 3:
+			} else {
 				run.NMissing++
 			}
 		}
@@ -123,11 +163,11 @@ func rulesRuns(ch *chromData, s int, code []uint8, r *Rules, maxGap int64) []Run
 	return runs
 }
 
-func pushTrimmed(h *candHeap, ch *chromData, code []uint8, a, b int, ok func(a, b int) bool) {
-	for a <= b && code[a] != 0 && code[a] != 2 {
+func pushTrimmed(h *candHeap, ch *chromData, bad func(int) bool, a, b int, ok func(a, b int) bool) {
+	for a <= b && bad(a) {
 		a++
 	}
-	for b >= a && code[b] != 0 && code[b] != 2 {
+	for b >= a && bad(b) {
 		b--
 	}
 	if a <= b && ok(a, b) {
