@@ -2,6 +2,7 @@ package vcfscan
 
 import (
 	"encoding/binary"
+	"errors"
 	"io"
 	"os"
 
@@ -23,7 +24,21 @@ import (
 // recordOffset returns the virtual offset of the first byte of the record
 // being decoded, or -1 when it cannot be known (standard input, plain BCF,
 // a name that is not a file).
-func (d *bcfDecoder) recordOffset() int64 {
+func (d *bcfDecoder) recordOffset() int64 { return d.offsetAt(d.cur) }
+
+// frameError wraps an error of readBCFRecord for the record after the last
+// one decoded (index) into a ParseError with that record's virtual offset.
+func (d *bcfDecoder) frameError(index int64, err error) error {
+	var pe *ParseError
+	if errors.As(err, &pe) {
+		return err
+	}
+	return &ParseError{File: d.name, Offset: d.offsetAt(d.seen), Record: index, Field: "record", Err: err}
+}
+
+// offsetAt returns the virtual offset of byte u of the record stream (u
+// counts record bytes only: the header is added here).
+func (d *bcfDecoder) offsetAt(u int64) int64 {
 	f, err := os.Open(d.name)
 	if err != nil {
 		return -1
@@ -37,7 +52,7 @@ func (d *bcfDecoder) recordOffset() int64 {
 		if chunks, err = regionChunks(d.name, d.hdr, d.opt.Regions); err != nil || len(chunks) == 0 {
 			return -1
 		}
-		return bgzfVirtualOffset(f, chunks, d.cur)
+		return bgzfVirtualOffset(f, chunks, u)
 	}
 	// The header length comes from the first 9 uncompressed bytes.
 	z, err := bgzf.NewReader(f, 1)
@@ -50,8 +65,7 @@ func (d *bcfDecoder) recordOffset() int64 {
 	if err != nil || string(pre[:5]) != bcfMagic22 {
 		return -1
 	}
-	u := 9 + int64(binary.LittleEndian.Uint32(pre[5:])) + d.cur
-	return bgzfVirtualOffset(f, nil, u)
+	return bgzfVirtualOffset(f, nil, 9+int64(binary.LittleEndian.Uint32(pre[5:]))+u)
 }
 
 // bgzfVirtualOffset returns the virtual offset of byte u of the

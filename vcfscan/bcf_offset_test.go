@@ -5,6 +5,7 @@ import (
 	"compress/gzip"
 	"encoding/binary"
 	"errors"
+	"fmt"
 	"io"
 	"os"
 	"path/filepath"
@@ -135,5 +136,28 @@ func TestBGZFVirtualOffsetChunks(t *testing.T) {
 	}
 	if v := bgzfVirtualOffset(g, chunks, int64(len(stream))+5); v != -1 {
 		t.Errorf("past the end: %d, want -1", v)
+	}
+}
+
+// TestBCFFrameErrorOffset checks the offset given to a record cut short:
+// the start of the record after the last one decoded.
+func TestBCFFrameErrorOffset(t *testing.T) {
+	path := "../testdata/bcf/cohort189.bcf"
+	h, recs := bcfFixtureRecords(t, path)
+	d := newBCFDecoder(h, nil, Options{IncludeFiltered: true})
+	d.name = path
+	b := &Batch{NSamples: len(h.Samples)}
+	for i, r := range recs[:40] {
+		if _, _, err := d.decode(r, int64(i), b); err != nil {
+			t.Fatal(err)
+		}
+	}
+	err := d.frameError(40, fmt.Errorf("%w: cut", ErrTruncated))
+	var pe *ParseError
+	if !errors.As(err, &pe) || !errors.Is(err, ErrTruncated) || pe.Record != 40 || pe.Offset < 0 {
+		t.Fatalf("%v", err)
+	}
+	if got := readAtVirtual(t, path, pe.Offset, 32); !bytes.Equal(got, recs[40][:32]) {
+		t.Errorf("bytes at %d: % x, want % x", pe.Offset, got, recs[40][:32])
 	}
 }
