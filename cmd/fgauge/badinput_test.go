@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"compress/gzip"
 	"context"
 	"encoding/json"
 	"os"
@@ -9,6 +10,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"fgauge/vcfscan"
 )
 
 // badDir is the malformed-input corpus written by testdata/bad/gen (its
@@ -279,5 +282,77 @@ func TestBadInputCancelled(t *testing.T) {
 	}
 	if left := leftovers(t, out); left != nil {
 		t.Errorf("left %v", left)
+	}
+}
+
+// TestBadInputsHuge builds the hostile inputs too large to commit in a
+// temporary folder: a 200 MB single line, a BGZF bomb (one 64 KiB block of
+// zeros repeated to inflate to 1 GiB, 1.7 MB on disk) and a plain gzip bomb
+// (256 MiB of zeros in about 250 kB). Each is refused at the default
+// --max-line-bytes, with exit 2 and nothing left in OUTDIR.
+func TestBadInputsHuge(t *testing.T) {
+	dir := t.TempDir()
+	head := "##fileformat=VCFv4.2\n#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT\tgoat_a\n1\t10\t.\tA\tG\t.\tPASS\tNOTE="
+
+	line := filepath.Join(dir, "line200mb.vcf")
+	f, err := os.Create(line)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f.WriteString(head)
+	chunk := bytes.Repeat([]byte("x"), 1<<20)
+	for i := 0; i < 200; i++ {
+		f.Write(chunk)
+	}
+	f.WriteString("\tGT\t0/1\n")
+	if err := f.Close(); err != nil {
+		t.Fatal(err)
+	}
+
+	var bomb bytes.Buffer
+	bw := vcfscan.NewBGZFWriter(&bomb, 9)
+	bw.Write([]byte(head))
+	bw.Flush()
+	zeros := make([]byte, 0xff00)
+	var one bytes.Buffer
+	zw := vcfscan.NewBGZFWriter(&one, 9)
+	zw.Write(zeros)
+	zw.Close()
+	block := one.Bytes()[:one.Len()-28] // without its EOF block
+	for i := 0; i < (1<<30)/len(zeros); i++ {
+		bomb.Write(block)
+	}
+	bw.Close()
+	bgzfBomb := filepath.Join(dir, "bomb.vcf.gz")
+	if err := os.WriteFile(bgzfBomb, bomb.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+
+	var gz bytes.Buffer
+	gw, _ := gzip.NewWriterLevel(&gz, gzip.BestCompression)
+	gw.Write([]byte(head))
+	big := make([]byte, 1<<20)
+	for i := 0; i < 256; i++ {
+		gw.Write(big)
+	}
+	gw.Close()
+	gzBomb := filepath.Join(dir, "bomb_plain.vcf.gz")
+	if err := os.WriteFile(gzBomb, gz.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("BGZF bomb %d bytes, gzip bomb %d bytes", bomb.Len(), gz.Len())
+
+	for _, in := range []string{line, bgzfBomb, gzBomb} {
+		t.Run(filepath.Base(in), func(t *testing.T) {
+			out := filepath.Join(dir, "out_"+filepath.Base(in))
+			code, stderr := badRun(t, "scan", in, "-o", out, "--no-progress", "--threads", "2")
+			want := filepath.Base(in) + ":3: line: limit exceeded: line longer than 67108864 bytes; raise --max-line-bytes"
+			if code != 2 || !strings.Contains(stderr, want) {
+				t.Fatalf("code %d, stderr %s; want 2 and %q", code, stderr, want)
+			}
+			if left := leftovers(t, out); left != nil {
+				t.Errorf("left %v", left)
+			}
+		})
 	}
 }
