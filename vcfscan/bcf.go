@@ -28,7 +28,9 @@ import (
 // header order. An IDX=n attribute on a line overrides its position.
 
 // Seam with the reader (binsource.go): readBCFHeader, then for each record
-// readBCFRecord and bcfDecoder.decode; regionChunks (region.go) gives the
+// readBCFRecord and bcfDecoder.decode (wrap readBCFRecord's errors with
+// bcfDecoder.frameError to give them the record's virtual offset);
+// regionChunks (region.go) gives the
 // chunks to read for Options.Regions. bcf_twin_test.go and
 // region_query_test.go test the whole path through Open.
 
