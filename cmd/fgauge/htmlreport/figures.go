@@ -107,7 +107,14 @@ func (c *cohort) figEstimators() (figure, error) {
 	var panels []*plot.Plot
 	for _, e := range others {
 		xs := c.col(e)
-		lab := outliers(xs, ys, maxLabels)
+		// highlighted samples are labelled first, then the outliers
+		var hl []int
+		for i := range c.names {
+			if c.highlight[i] {
+				hl = append(hl, i)
+			}
+		}
+		lab := declutter(xs, ys, append(hl, byDistance(xs, ys, nil)...), maxLabels)
 		keep := map[int]bool{}
 		for _, i := range lab {
 			keep[i] = true
@@ -116,7 +123,7 @@ func (c *cohort) figEstimators() (figure, error) {
 			keep[i] = true
 		}
 		rows := subsample(n, maxScatterPoints, keep)
-		p, k := scatterPanel("", e, yCol, xs, ys, rows, c.names, lab, true)
+		p, k := scatterPanel("", e, yCol, xs, ys, rows, c.names, lab, c.highlight, true)
 		f.Points += k
 		for i := range xs {
 			if !math.IsNaN(xs[i]) && !math.IsNaN(ys[i]) {
@@ -137,6 +144,9 @@ func (c *cohort) figEstimators() (figure, error) {
 	var err error
 	f.SVG, err = renderGrid(grid, plotW, vg.Length(rows)*6.5*vg.Centimeter)
 	f.Caption = fmt.Sprintf("Each point is one sample; the dashed line is where both estimators agree. Labelled: up to %d samples per panel that lie furthest from the bulk of the cohort (robust distance), skipping labels that would overlap.", maxLabels)
+	if len(c.highlight) > 0 {
+		f.Caption += " Samples named with --highlight are ochre triangles and are labelled first."
+	}
 	if f.Points < f.Total {
 		f.Note = fmt.Sprintf("%d of %d sample-estimator pairs drawn: one sample in %d, evenly through the file, plus the labelled and highlighted ones.", f.Points, f.Total, max(1, n/maxScatterPoints))
 	}

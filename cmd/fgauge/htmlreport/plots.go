@@ -133,31 +133,44 @@ func labelTop(score []float64, k int) []int {
 }
 
 // scatterPanel draws y against x for the given rows with a diagonal and
-// labels on the rows in label. It returns the plot and the number of
-// points drawn.
-func scatterPanel(title, xl, yl string, xs, ys []float64, rows []int, names []string, label []int, diag bool) (*plot.Plot, int) {
+// labels on the rows in label; rows in hl are drawn as larger ochre
+// diamonds on top. It returns the plot and the number of points drawn.
+func scatterPanel(title, xl, yl string, xs, ys []float64, rows []int, names []string, label []int, hl map[int]bool, diag bool) (*plot.Plot, int) {
 	p := newPlot(title, xl, yl)
 	pts := make(plotter.XYs, 0, len(rows))
+	var hpts plotter.XYs
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for _, r := range rows {
 		x, y := xs[r], ys[r]
 		if math.IsNaN(x) || math.IsNaN(y) || math.IsInf(x, 0) || math.IsInf(y, 0) {
 			continue
 		}
-		pts = append(pts, plotter.XY{X: x, Y: y})
+		if hl[r] {
+			hpts = append(hpts, plotter.XY{X: x, Y: y})
+		} else {
+			pts = append(pts, plotter.XY{X: x, Y: y})
+		}
 		lo, hi = math.Min(lo, math.Min(x, y)), math.Max(hi, math.Max(x, y))
 	}
-	if len(pts) == 0 {
+	n := len(pts) + len(hpts)
+	if n == 0 {
 		return p, 0
 	}
 	if diag {
 		p.Add(diagonal(lo, hi))
 	}
-	s, _ := plotter.NewScatter(pts)
-	s.GlyphStyle = draw.GlyphStyle{Color: colPoint, Radius: vg.Points(2.2), Shape: draw.CircleGlyph{}}
-	p.Add(s)
+	if len(pts) > 0 {
+		s, _ := plotter.NewScatter(pts)
+		s.GlyphStyle = draw.GlyphStyle{Color: colPoint, Radius: vg.Points(2.2), Shape: draw.CircleGlyph{}}
+		p.Add(s)
+	}
+	if len(hpts) > 0 {
+		s, _ := plotter.NewScatter(hpts)
+		s.GlyphStyle = draw.GlyphStyle{Color: colOchre, Radius: vg.Points(3.4), Shape: draw.PyramidGlyph{}}
+		p.Add(s)
+	}
 	addLabels(p, xs, ys, label, names)
-	return p, len(pts)
+	return p, n
 }
 
 // addLabels puts sample names beside the given rows.
@@ -326,13 +339,6 @@ func noData(what string) string { return fmt.Sprintf("No %s in this output folde
 // legendRoom widens a painting's x range so the legend sits beside the
 // tracks, not on them.
 const legendRoom = 1.2
-
-// outliers picks up to k points to label: those furthest from the bulk
-// (see byDistance), skipping points whose label would sit on top of one
-// already chosen.
-func outliers(xs, ys []float64, k int) []int {
-	return declutter(xs, ys, byDistance(xs, ys, nil), k)
-}
 
 // byDistance orders rows (all rows when nil) by their distance from the
 // median of the whole cloud, each axis scaled by its median absolute

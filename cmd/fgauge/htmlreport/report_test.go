@@ -482,15 +482,15 @@ func TestOutlierLabels(t *testing.T) {
 	// a tight cloud, one far point, one point right beside it, one NaN
 	xs := []float64{0, 0.01, -0.01, 0.02, 0, 1, 1.01, math.NaN(), 0.5}
 	ys := []float64{0, 0.01, 0.01, -0.01, 0.02, 1, 1.001, 3, 0}
-	got := outliers(xs, ys, 3)
+	got := declutter(xs, ys, byDistance(xs, ys, nil), 3)
 	// 6 (1.01, 1.001) and 5 are furthest; 5 overlaps 6's label box and is
 	// skipped; 8 comes next
 	if len(got) != 3 || got[0] != 6 || got[1] != 8 {
-		t.Errorf("outliers = %v, want [6 8 ...]", got)
+		t.Errorf("labels = %v, want [6 8 ...]", got)
 	}
 	for _, i := range got {
 		if i == 5 || i == 7 {
-			t.Errorf("outliers = %v: overlapping or NaN point labelled", got)
+			t.Errorf("labels = %v: overlapping or NaN point labelled", got)
 		}
 	}
 	if got := byDistance(xs, ys, []int{0, 5, 7}); len(got) != 2 || got[0] != 5 {
