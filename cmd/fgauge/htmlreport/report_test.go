@@ -165,6 +165,9 @@ func TestSelfContainedAndEscaped(t *testing.T) {
 				t.Errorf("%s contains %q", p, bad)
 			}
 		}
+		if strings.HasSuffix(p, ".html") && !strings.Contains(s, `http-equiv="Content-Security-Policy" content="default-src 'none';`) {
+			t.Errorf("%s has no content security policy", p)
+		}
 		return nil
 	})
 	must(t, err)
