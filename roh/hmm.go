@@ -254,15 +254,16 @@ func (w *hmmScratch) forwardViterbi(ch *chromData, tr []float64, lookup bool) {
 		a, b = (a*k[0]+b*k[2])*e[0], (a*k[1]+b*k[3])*e[1]
 		xa, xn := va*k[0], vn*k[2]
 		ya, yn := va*k[1], vn*k[3]
-		na, nn := max(xa, xn), max(ya, yn)
 		var f uint8
 		if xn >= xa {
+			xa = xn
 			f = 1 // A came from N
 		}
 		if ya > yn {
+			yn = ya
 			f |= 2 // N came from A
 		}
-		va, vn = na*e[0], nn*e[1]
+		va, vn = xa*e[0], yn*e[1]
 		if t%rescaleEvery == 0 {
 			inv := 1 / (a + b)
 			a, b = a*inv, b*inv

@@ -261,3 +261,51 @@ func TestSimulatedTruth(t *testing.T) {
 		}
 	}
 }
+
+// Low-depth sequence with phred likelihoods (roh/simulate reads at mean
+// depth 4 with 1% base error; GT is the most likely genotype, so many true
+// heterozygotes are called homozygous and a few homozygotes heterozygous).
+// The HMM reading PL should stay accurate; the numbers are reported next
+// to those of the same HMM reading GT alone.
+func TestSimulatedLowDepthPL(t *testing.T) {
+	if testing.Short() {
+		t.Skip("simulation: skipped with -short")
+	}
+	var ds []simulate.Design
+	dstr := map[string]string{}
+	for _, s := range []string{"full_sib", "half_sib"} {
+		d, err := simulate.ParseDesign(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ds = append(ds, d)
+		dstr[s] = d.String()
+	}
+	sim, err := simulate.Run(simulate.Config{
+		Seed:        7,
+		Chromosomes: []simulate.Chromosome{{Name: "1", LengthBP: 100_000_000, LengthCM: 100}, {Name: "2", LengthBP: 80_000_000, LengthCM: 80}},
+		SiteSpacing: 5_000,
+		Spectrum:    simulate.SpectrumNeutral,
+		Designs:     ds,
+		Replicates:  25,
+		Depth:       4,
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	names, contigs, bs := simBatches(t, sim)
+	withPL := detectSim(t, DefaultConfig(), names, contigs, bs)
+	for _, b := range bs {
+		b.PL, b.HasPL = nil, nil
+	}
+	gtOnly := detectSim(t, DefaultConfig(), names, contigs, bs)
+	for _, d := range []string{"full_sib", "half_sib"} {
+		a := scoreSim(sim, withPL, dstr[d])
+		g := scoreSim(sim, gtOnly, dstr[d])
+		t.Logf("%s depth 4: PL recall=%.4f precision=%.4f r=%.4f mean_f_roh=%.4f realized=%.4f | GT only recall=%.4f precision=%.4f r=%.4f mean_f_roh=%.4f",
+			d, a.recall, a.precision, a.r, a.meanFROH, a.meanF, g.recall, g.precision, g.r, g.meanFROH)
+		if a.recall < 0.9 || a.precision < 0.9 || a.r < 0.95 {
+			t.Errorf("%s: with PL recall %.4f precision %.4f r %.4f, want >= 0.9, 0.9, 0.95", d, a.recall, a.precision, a.r)
+		}
+	}
+}
