@@ -309,3 +309,60 @@ func TestSimulatedLowDepthPL(t *testing.T) {
 		}
 	}
 }
+
+// With --fit (per-sample, per-chromosome EM of the autozygous fraction
+// and the rate) the HMM stays as accurate on array-density full-sib and
+// first-cousin offspring, and the fitted fractions track realized F.
+func TestSimulatedFit(t *testing.T) {
+	if testing.Short() {
+		t.Skip("simulation: skipped with -short")
+	}
+	var ds []simulate.Design
+	dstr := map[string]string{}
+	for _, s := range []string{"full_sib", "first_cousin"} {
+		d, _ := simulate.ParseDesign(s)
+		ds = append(ds, d)
+		dstr[s] = d.String()
+	}
+	sim, err := simulate.Run(simulate.Config{
+		Seed:          11,
+		Chromosomes:   []simulate.Chromosome{{Name: "1", LengthBP: 150_000_000, LengthCM: 150}, {Name: "2", LengthBP: 120_000_000, LengthCM: 120}},
+		SiteSpacing:   30_000,
+		Designs:       ds,
+		Replicates:    30,
+		GenotypeError: 0.001,
+		MissingRate:   0.005,
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	names, contigs, bs := simBatches(t, sim)
+	cfg := DefaultConfig()
+	cfg.Fit = true
+	res := detectSim(t, cfg, names, contigs, bs)
+	for _, d := range []string{"full_sib", "first_cousin"} {
+		sc := scoreSim(sim, res, dstr[d])
+		t.Logf("fit %s: recall=%.4f precision=%.4f r=%.4f mean_f_roh=%.4f realized=%.4f", d, sc.recall, sc.precision, sc.r, sc.meanFROH, sc.meanF)
+		if sc.recall < 0.95 || sc.precision < 0.95 || sc.r < 0.98 {
+			t.Errorf("fit %s: recall %.4f precision %.4f r %.4f", d, sc.recall, sc.precision, sc.r)
+		}
+	}
+	// fitted autozygous fraction (mean over chromosomes) against realized F
+	var xs, ys []float64
+	for i, st := range sim.Samples {
+		if st.Class != "focal" {
+			continue
+		}
+		f := 0.0
+		for _, c := range res.Chroms {
+			f += c.FitF[i] / float64(len(res.Chroms))
+		}
+		xs = append(xs, f)
+		ys = append(ys, st.FRealized)
+	}
+	if r := pearson(xs, ys); r < 0.95 {
+		t.Errorf("r(fitted fraction, realized F) = %.4f, want >= 0.95", r)
+	} else {
+		t.Logf("r(fitted fraction, realized F) = %.4f; summary %v", r, res.Summary()["mean_fitted_rate_per_morgan"])
+	}
+}
