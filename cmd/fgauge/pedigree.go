@@ -60,6 +60,14 @@ func runPedigree(ctx context.Context, env *runEnv, args []string) error {
 	if err := ctx.Err(); err != nil {
 		return err
 	}
+	if c := ped.SexConflicts(); len(c) > 0 {
+		for _, msg := range c[:min(5, len(c))] {
+			fmt.Fprintln(env.stderr, "fgauge pedigree: warning:", msg)
+		}
+		if len(c) > 5 {
+			fmt.Fprintf(env.stderr, "fgauge pedigree: warning: %d more sex conflicts\n", len(c)-5)
+		}
+	}
 	f := ped.Inbreeding()
 	if err := ctx.Err(); err != nil {
 		return err

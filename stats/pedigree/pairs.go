@@ -48,3 +48,24 @@ func (p *Pedigree) ReadPairs(r io.Reader, name string) ([][2]int, error) {
 	}
 	return out, nil
 }
+
+// SexConflicts lists animals whose recorded sex contradicts their use as a
+// parent: a female recorded as a sire or a male as a dam. Each entry names
+// the offspring's line. Unknown sex never conflicts; selfing (sire = dam)
+// is allowed for animals of unknown sex.
+func (p *Pedigree) SexConflicts() []string {
+	var out []string
+	for i := range p.ids {
+		where := p.name
+		if p.line[i] > 0 {
+			where = fmt.Sprintf("%s:%d", p.name, p.line[i])
+		}
+		if s := p.sire[i]; s >= 0 && p.sex[s] == SexFemale {
+			out = append(out, fmt.Sprintf("%s: sire %q of %q is recorded as female", where, p.ids[s], p.ids[i]))
+		}
+		if m := p.dam[i]; m >= 0 && p.sex[m] == SexMale {
+			out = append(out, fmt.Sprintf("%s: dam %q of %q is recorded as male", where, p.ids[m], p.ids[i]))
+		}
+	}
+	return out
+}

@@ -1,9 +1,12 @@
 // Package pedigree reads animal pedigrees and computes pedigree inbreeding
 // coefficients and coancestries.
 //
-// Inbreeding uses the algorithm of Meuwissen & Luo (1992, Genetics Selection
-// Evolution 24:305-313), which traces only the ancestors of each animal
-// through the L factor of A = L D L' and so scales to millions of animals.
+// Inbreeding coefficients are those of Meuwissen & Luo (1992, Genetics
+// Selection Evolution 24:305-313), which trace only the ancestors of each
+// animal through the L factor of A = L D L'. The traces are grouped by sire
+// (Sargolzaei, Iwaisaki & Colleau 2005) so that a sire's ancestry is walked
+// once for all its offspring; a generated herd book of 10^6 animals takes
+// about a second and a half (BenchmarkInbreeding1M).
 // The package knows nothing about genotypes: it is the pedigree side of the
 // comparison between expected (pedigree) and realised (genomic) inbreeding.
 package pedigree

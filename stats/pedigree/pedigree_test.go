@@ -313,3 +313,15 @@ func TestBySireMatchesML(t *testing.T) {
 		}
 	}
 }
+
+func TestSexConflicts(t *testing.T) {
+	p := mustRead(t, "b\t0\t0\tF\nd\t0\t0\tF\nk\tb\td\tM\nj\tk\tk\tM\n")
+	got := p.SexConflicts()
+	want := []string{
+		`test.tsv:3: sire "b" of "k" is recorded as female`,
+		`test.tsv:4: dam "k" of "j" is recorded as male`,
+	}
+	if strings.Join(got, "\n") != strings.Join(want, "\n") {
+		t.Errorf("SexConflicts() =\n%s\nwant\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
+	}
+}
