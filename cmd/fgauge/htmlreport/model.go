@@ -19,15 +19,15 @@ func estimatorLabel(col string) string {
 	case "f_roh":
 		return "F_ROH (share of genome in runs)"
 	case "f_hom":
-		return "F_hom (excess homozygosity, method of moments)"
+		return "F_hom (method-of-moments excess homozygosity: observed against expected homozygous sites)"
 	case "f_grm":
-		return "F_GRM (diagonal of the genomic relationship matrix minus 1)"
+		return "F_GRM (Yang et al. 2011 F-hat-I: genomic relationship diagonal minus 1)"
 	case "f_excess_hom":
-		return "F_excess_hom (Yang et al. 2011, Fhat1)"
+		return "F_excess_hom (Yang et al. 2011 F-hat-II: excess homozygosity)"
 	case "f_uniting_gametes":
-		return "F_uniting_gametes (Yang et al. 2011, Fhat3)"
+		return "F_uniting_gametes (Yang et al. 2011 F-hat-III: correlation of uniting gametes)"
 	case "f_vanraden":
-		return "F_VanRaden (VanRaden 2008 G diagonal minus 1)"
+		return "F_VanRaden (VanRaden 2008 method 1: relationship diagonal minus 1)"
 	case "f_pedigree":
 		return "F_pedigree (from the pedigree, not the genotypes)"
 	}
