@@ -39,10 +39,10 @@ func estimatorLabel(col string) string {
 
 // flagText explains each flag word in plain language.
 var flagText = map[string]string{
-	"low_call_rate":       "Fewer of this sample's genotypes were called than the scan's threshold; every estimate rests on fewer sites and is less certain.",
-	"het_rate_outlier":    "The share of heterozygous calls is far from the rest of the cohort. Very high can mean a mixed or contaminated sample; very low can mean real inbreeding or a sample from another population.",
-	"estimators_disagree": "The genomic F estimators give clearly different answers. This often points to an allele-frequency reference that does not fit this sample (for example another breed or population).",
-	"no_calls":            "No genotype of this sample was called; nothing can be estimated.",
+	"low_call_rate":       "Fewer of this sample's genotypes were called than the scan's threshold (--min-call-rate); every estimate rests on fewer sites and is less certain.",
+	"het_rate_outlier":    "The share of heterozygous calls is more than 3 standard deviations from the cohort mean. Very high can mean a contaminated or mixed-up sample; very low can mean real inbreeding or a sample from another population.",
+	"estimators_disagree": "The genomic F estimators point in opposite directions (one clearly above zero, another below). Check the allele-frequency reference and the data quality for this sample before reading either.",
+	"no_calls":            "No diploid genotype of this sample was called at any kept site; nothing can be estimated.",
 }
 
 // rohClass is one --roh-classes column: runs longer than MinMb.
