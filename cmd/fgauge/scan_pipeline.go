@@ -331,7 +331,7 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 		}
 		return nil
 	})
-	if err := g.Wait(); err != nil {
+	if err := waitOrCancel(ctx, g.Wait); err != nil {
 		bar.finish()
 		if ctx.Err() != nil {
 			return ctx.Err()
@@ -430,6 +430,25 @@ func (t *contigTable) feed(rc *roh.Collector) {
 	if len(t.list) > t.rohSeen {
 		rc.UpdateContigs(t.list)
 		t.rohSeen = len(t.list)
+	}
+}
+
+// waitOrCancel waits for wait to return; once ctx is cancelled it waits at
+// most two more seconds, so that an interrupt is honoured even when the
+// reader is blocked on a stalled pipe, which cannot be interrupted.
+func waitOrCancel(ctx context.Context, wait func() error) error {
+	ch := make(chan error, 1)
+	go func() { ch <- wait() }()
+	select {
+	case err := <-ch:
+		return err
+	case <-ctx.Done():
+	}
+	select {
+	case err := <-ch:
+		return err
+	case <-time.After(2 * time.Second):
+		return ctx.Err()
 	}
 }
 
