@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"fgauge/roh/simulate"
+	"fgauge/vcfscan"
 )
 
 func ExampleRun() {
@@ -29,4 +30,31 @@ func ExampleRun() {
 func ExampleHaldaneR() {
 	fmt.Printf("%.4f\n", simulate.HaldaneR(0.5))
 	// Output: 0.3161
+}
+
+// ForEachSite hands over every site with the true and observed calls of all
+// samples; autozygous stretches are in Result.Segments.
+func ExampleResult_ForEachSite() {
+	d, _ := simulate.ParseDesign("selfing:4")
+	res, err := simulate.Run(simulate.Config{
+		Seed:        7,
+		Chromosomes: []simulate.Chromosome{{Name: "1", LengthBP: 20_000_000, LengthCM: 20}},
+		Designs:     []simulate.Design{d},
+		SiteSpacing: 50_000,
+	})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	focal := len(res.Samples) - 1 // parents come first; the last selfed plant
+	hets, sites := 0, 0
+	res.ForEachSite(func(s *simulate.Site) error {
+		sites++
+		if s.GT[focal] == vcfscan.Het {
+			hets++
+		}
+		return nil
+	})
+	fmt.Println(res.Samples[focal].ID, res.Samples[focal].FPedigree, hets <= sites/4)
+	// Output: selfing_r1_s4 0.9375 true
 }

@@ -76,12 +76,12 @@ func TestInbreedingSelfingSeries(t *testing.T) {
 	}
 }
 
-// Published worked example: the six-animal pedigree used to build the
-// numerator relationship matrix by the tabular method in Mrode (2005),
-// Linear Models for the Prediction of Animal Breeding Values, 2nd ed.,
-// CABI, Example 2.1 (animal 3 = 1x2, 4 = 1x?, 5 = 4x3, 6 = 5x2). Taken from
-// memory; the A values below were re-derived by hand with the tabular
-// method: a_55 = a_66 = 1.125, a_35 = a_45 = 0.625, a_56 = 0.6875.
+// Published worked example: the six-animal pedigree with which Mrode (2005,
+// Linear Models for the Prediction of Animal Breeding Values, 2nd ed., CABI,
+// chapter 2) builds the numerator relationship matrix by the tabular method
+// (animal 3 = 1x2, 4 = 1x?, 5 = 4x3, 6 = 5x2). Pedigree and values are
+// taken from memory and re-derived here by hand with the tabular method:
+// a_55 = a_66 = 1.125, a_35 = a_45 = 0.625, a_56 = 0.6875.
 func TestMrodeExample(t *testing.T) {
 	p := mustRead(t, "animal\tsire\tdam\n1\t0\t0\n2\t0\t0\n3\t1\t2\n4\t1\t0\n5\t4\t3\n6\t5\t2\n")
 	f := p.Inbreeding()
