@@ -450,6 +450,7 @@ func (c *Collector) Finish() (*Result, error) {
 		GenotypeError: c.cfg.GenotypeError,
 		CMPerMB:       c.cfg.CMPerMB,
 		Fit:           c.cfg.Fit,
+		MapUsed:       c.cfg.Map != nil,
 		Excluded:      c.excluded,
 	}
 	for _, w := range c.chroms {

@@ -97,3 +97,62 @@ func ExampleResult_Summary() {
 	// Output:
 	// hmm 10000000 contig_lengths [1]
 }
+
+// Results of disjoint chromosomes (for example two shards of one input)
+// merge into the result of one pass.
+func ExampleResult_Merge() {
+	contigs := []vcfscan.Contig{{Name: "1", Length: 10_000_000}, {Name: "2", Length: 10_000_000}}
+	shard := func(chrom int) *roh.Result {
+		c, _ := roh.NewCollector(roh.DefaultConfig(), []string{"calf_07"}, contigs)
+		b, freqs := calfBatch()
+		for i := range b.Records {
+			b.Records[i].ChromID = chrom
+		}
+		c.AddBatch(b, freqs)
+		r, _ := c.Finish()
+		return r
+	}
+	all := shard(0)
+	if err := all.Merge(shard(1)); err != nil {
+		panic(err)
+	}
+	_, rows := all.SampleTable()
+	fmt.Println(len(all.Chroms), rows[0][0], rows[0][2])
+	// Output:
+	// 2 2 0.5050001
+}
+
+func ExampleColumnDocs() {
+	for _, d := range roh.ColumnDocs()[:3] {
+		fmt.Printf("%s %s: %s\n", d.File, d.Column, d.Meaning)
+	}
+	// Output:
+	// runs.tsv sample: sample name
+	// runs.tsv chrom: chromosome (autosomes only)
+	// runs.tsv start: position of the run's first site (1-based)
+}
+
+func ExampleSpecies() {
+	p, _ := roh.Species("cattle")
+	fmt.Println(len(p.Autosomes), p.Autosomes[0], p.Autosomes[28], p.CMPerMB)
+	// Output:
+	// 29 1 29 1
+}
+
+func ExampleClassColumn() {
+	fmt.Println(roh.ClassColumn(1), roh.ClassColumn(0.5))
+	// Output:
+	// f_roh_gt_1mb f_roh_gt_0p5mb
+}
+
+func ExampleConfig_Validate() {
+	cfg := roh.DefaultConfig()
+	cfg.Species = "sheep"
+	cfg.Classes = []float64{4, 1, 2}
+	if err := cfg.Validate(); err != nil {
+		panic(err)
+	}
+	fmt.Println(cfg.CMPerMB, cfg.Classes)
+	// Output:
+	// 1.2 [1 2 4]
+}

@@ -172,55 +172,6 @@ func (w *hmmScratch) forward(tr []float64, wantLL bool) float64 {
 	return ll
 }
 
-// viterbi writes the most probable state path (stA or stN per site) into
-// w.path, in linear space with periodic renormalisation. Ties go to the
-// non-autozygous state.
-func (w *hmmScratch) viterbi(tr []float64) {
-	n := len(w.em) / 2
-	w.path = grow(w.path, n)
-	em, bp := w.em, w.path
-	va := tr[0] * em[0]
-	vn := tr[1] * em[1]
-	bp[0] = 0
-	for t := 1; t < n; t++ {
-		k := tr[4*t : 4*t+4 : 4*t+4]
-		e := em[2*t : 2*t+2 : 2*t+2]
-		// into A and into N, branch-free: the comparisons are
-		// unpredictable, so max and flag-setting beat branches.
-		xa, xn := va*k[0], vn*k[2]
-		ya, yn := va*k[1], vn*k[3]
-		na, nn := max(xa, xn), max(ya, yn)
-		var b uint8
-		if xn >= xa {
-			b = 1 // A came from N
-		}
-		if ya > yn {
-			b |= 2 // N came from A
-		}
-		va, vn = na*e[0], nn*e[1]
-		if t%rescaleEvery == 0 {
-			inv := 1 / max(va, vn)
-			va, vn = va*inv, vn*inv
-		}
-		bp[t] = b
-	}
-	st := uint8(stA)
-	if vn >= va {
-		st = stN
-	}
-	for t := n - 1; t >= 0; t-- {
-		b := bp[t]
-		bp[t] = st
-		if st == stA {
-			if b&1 != 0 {
-				st = stN
-			}
-		} else if b&2 != 0 {
-			st = stA
-		}
-	}
-}
-
 // forwardViterbi runs the forward pass and the Viterbi recursion in one
 // sweep (two independent dependency chains per step, so the processor
 // overlaps them), storing forward values in w.alpha and the most probable

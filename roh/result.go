@@ -46,6 +46,7 @@ type Result struct {
 	GenotypeError float64
 	CMPerMB       float64
 	Fit           bool
+	MapUsed       bool             // a genetic map was given (see ChromResult.MapSource)
 	Chroms        []ChromResult    // autosomes with at least one site, in input order
 	Excluded      map[string]int64 // non-autosomal contigs -> sites seen
 }
@@ -68,6 +69,7 @@ func (r *Result) Merge(o *Result) error {
 		}
 	}
 	r.Chroms = append(r.Chroms, o.Chroms...)
+	r.MapUsed = r.MapUsed || o.MapUsed
 	if r.Excluded == nil {
 		r.Excluded = map[string]int64{}
 	}
@@ -281,12 +283,13 @@ func (r *Result) Summary() map[string]any {
 		"min_counted_bp":   minBP,
 		"classes_mb":       r.Classes,
 		"cm_per_mb":        r.CMPerMB,
-		"chroms_by_cm_per_mb": func() []string {
-			if mapMissing == nil {
-				return []string{}
-			}
-			return mapMissing
-		}(),
+	}
+	if r.MapUsed {
+		// chromosomes the genetic map did not cover: distances from cm_per_mb
+		if mapMissing == nil {
+			mapMissing = []string{}
+		}
+		m["chroms_without_map"] = mapMissing
 	}
 	if r.Method == MethodHMM {
 		m["genotype_error"] = r.GenotypeError

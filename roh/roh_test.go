@@ -587,3 +587,33 @@ func TestSampleTableAndSummary(t *testing.T) {
 		t.Errorf("runs.tsv:\n%s", buf.String())
 	}
 }
+
+// FuzzReadGeneticMap: the map reader never panics, and what it accepts is
+// sorted and interpolates monotonically.
+func FuzzReadGeneticMap(f *testing.F) {
+	f.Add("chrom pos cm\n1 1000 0.1\n1 2000 0.3\n")
+	f.Add("# c\nchr2 5 0\nchr2 9 0\n")
+	f.Add("1 1 1\n1 1 1\n")
+	f.Fuzz(func(t *testing.T, in string) {
+		m, err := ReadGeneticMap(strings.NewReader(in), "fuzz.map")
+		if err != nil {
+			if !errors.Is(err, ErrMap) && !strings.Contains(err.Error(), "fuzz.map") {
+				t.Fatalf("error without position or sentinel: %v", err)
+			}
+			return
+		}
+		for _, c := range m.Chroms {
+			for i := 1; i < len(c.Pos); i++ {
+				if c.Pos[i] <= c.Pos[i-1] || c.CM[i] < c.CM[i-1] {
+					t.Fatalf("accepted unsorted map %v %v", c.Pos, c.CM)
+				}
+			}
+			if len(c.Pos) >= 2 {
+				a, b := c.At(c.Pos[0], 1), c.At(c.Pos[len(c.Pos)-1], 1)
+				if b < a {
+					t.Fatalf("interpolation decreases: %g then %g", a, b)
+				}
+			}
+		}
+	})
+}
