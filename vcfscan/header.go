@@ -3,7 +3,6 @@ package vcfscan
 import (
 	"bufio"
 	"bytes"
-	"errors"
 	"fmt"
 	"io"
 	"strconv"
@@ -249,5 +248,3 @@ func clip(b []byte) string {
 	}
 	return string(b)
 }
-
-var errBCFPending = errors.New("BCF not supported yet")
