@@ -356,3 +356,96 @@ func TestBadInputsHuge(t *testing.T) {
 		})
 	}
 }
+
+// TestEdgeFilesScan takes every shared edge-case file (testdata/edge, from
+// python3-cyvcf2 0.30.18 and r-bioc-variantannotation 1.44.1; see
+// testdata/SOURCES.md) through fgauge scan. The reader-level decisions are
+// in vcfscan/edge_test.go; here: the exit code, the records read and kept
+// in run.json, and the warnings it counts. Two upstream files list TP53
+// records out of order: refused while runs of homozygosity are on (they
+// need sorted input), read with --no-roh.
+func TestEdgeFilesScan(t *testing.T) {
+	type want struct {
+		args       []string
+		code       int
+		read, kept int64
+		warns      string // sorted warning kinds in run.json
+		msg        string // for code 2
+	}
+	cases := map[string][]want{
+		"FORMAT_header_no_SAMPLEs.vcf": {{read: 5, warns: "contig_not_in_header"}},
+		"banded_gvcf.vcf":              {{read: 5}},
+		"buffer_realloc.vcf":           {{read: 2}},
+		"chr7-sub.vcf.gz":              {{read: 3791, kept: 988, warns: "contig_not_in_header"}},
+		"decomposed.vcf":               {{read: 1, kept: 1}},
+		"empty.vcf":                    {{code: 2, msg: "empty.vcf: malformed input: input is empty"}},
+		"expand.vcf":                   {{read: 20, warns: "contig_not_in_header"}},
+		"gl_chr1.vcf":                  {{read: 9, kept: 3, warns: "contig_not_in_header"}},
+		"issue_198.vcf":                {{read: 2, kept: 2}},
+		"missing-FORMAT-metadata-elt.vcf": {
+			{code: 2, msg: "missing-FORMAT-metadata-elt.vcf:12: POS: records out of order: position 1011392 on TP53 comes after position 1012027 (line 11)"},
+			{args: []string{"--no-roh"}, read: 3, warns: "contig_not_in_header"}},
+		"multiple_INFO_fields.vcf": {{read: 2}},
+		"no-seq-len.vcf":           {{read: 1, kept: 1, warns: "contig_without_length"}},
+		"no-seq-names.vcf":         {{read: 1, kept: 1, warns: "contig_not_in_header"}},
+		"no_FORMAT_column.vcf":     {{read: 5, warns: "contig_not_in_header"}},
+		"no_GENO_row.vcf": {
+			{code: 2, msg: "no_GENO_row.vcf:12: POS: records out of order"},
+			{args: []string{"--no-roh"}, read: 3, warns: "contig_not_in_header"}},
+		"no_INFO_header.vcf":                      {{read: 5, kept: 5, warns: "contig_not_in_header"}},
+		"structural.vcf":                          {{read: 7, warns: "contig_not_in_header"}},
+		"test-format-string.vcf":                  {{read: 4, kept: 2, warns: "contig_not_in_header,haploid_calls,polyploid_calls_as_missing"}},
+		"test-genotypes.vcf":                      {{read: 5, kept: 5, warns: "haploid_calls"}},
+		"test-haploidX.vcf":                       {{read: 777, kept: 689, warns: "haploid_calls"}},
+		"test-hemi.vcf":                           {{read: 2, kept: 1, warns: "contig_without_length"}},
+		"test-invalid-header.vcf":                 {{code: 2, msg: "test-invalid-header.vcf:2: #CHROM: malformed input: sample column 2 has an empty name"}},
+		"test-multiallelic-homozygous-alt.vcf.gz": {{read: 1}},
+		"test.mnp.vcf":                            {{read: 6}},
+	}
+	files, err := filepath.Glob(filepath.Join("..", "..", "testdata", "edge", "*"))
+	if err != nil || len(files) != len(cases) {
+		t.Fatalf("%d edge files, %d decisions (%v)", len(files), len(cases), err)
+	}
+	for _, f := range files {
+		ws, ok := cases[filepath.Base(f)]
+		if !ok {
+			t.Errorf("no decision for %s", f)
+			continue
+		}
+		for _, w := range ws {
+			t.Run(filepath.Base(f)+strings.Join(w.args, "_"), func(t *testing.T) {
+				t.Parallel()
+				out := filepath.Join(t.TempDir(), "out")
+				args := append([]string{"scan", f, "-o", out, "--no-progress", "--threads", "2"}, w.args...)
+				code, stderr := badRun(t, args...)
+				if code != w.code {
+					t.Fatalf("exit %d, want %d:\n%s", code, w.code, stderr)
+				}
+				if code != 0 {
+					if !strings.Contains(stderr, w.msg) {
+						t.Errorf("stderr lacks %q:\n%s", w.msg, stderr)
+					}
+					if left := leftovers(t, out); left != nil {
+						t.Errorf("left %v", left)
+					}
+					return
+				}
+				var info struct {
+					Records  struct{ Read, Kept int64 }
+					Warnings map[string]int64
+				}
+				raw, err := os.ReadFile(filepath.Join(out, "run.json"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				if err := json.Unmarshal(raw, &info); err != nil {
+					t.Fatal(err)
+				}
+				kinds := sortedKeys(info.Warnings)
+				if info.Records.Read != w.read || info.Records.Kept != w.kept || strings.Join(kinds, ",") != w.warns {
+					t.Errorf("read %d kept %d warnings %v; want %d %d %q", info.Records.Read, info.Records.Kept, kinds, w.read, w.kept, w.warns)
+				}
+			})
+		}
+	}
+}
