@@ -435,3 +435,57 @@ func TestBCFInfoValues(t *testing.T) {
 		}
 	}
 }
+
+// TestBCFBatchCap checks that many samples make smaller batches: 600
+// records of 2000 samples are 1.2 million calls, more than one batch holds.
+func TestBCFBatchCap(t *testing.T) {
+	const nSamples, nRecs = 2000, 600
+	var text strings.Builder
+	text.WriteString("##fileformat=VCFv4.2\n##contig=<ID=1>\n##FORMAT=<ID=GT,Number=1,Type=String,Description=\"g\">\n#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT")
+	for i := 0; i < nSamples; i++ {
+		fmt.Fprintf(&text, "\tS%d", i)
+	}
+	text.WriteString("\n\x00")
+	var buf bytes.Buffer
+	buf.WriteString("BCF\x02\x02")
+	binary.Write(&buf, binary.LittleEndian, uint32(text.Len()))
+	buf.WriteString(text.String())
+	gt := []byte{0x11, 1, 2<<4 | bcfTypeInt8} // dictionary: PASS=0, GT=1
+	for i := 0; i < nSamples; i++ {
+		gt = append(gt, 2, byte(2+2*(i%2)))
+	}
+	for i := 0; i < nRecs; i++ {
+		buf.Write(bcfRec{pos0: int32(100 * (i + 1)), alleles: []string{"A", "C"}, fmt: [][]byte{gt}, nSample: nSamples}.bytes())
+	}
+	p := filepath.Join(t.TempDir(), "wide.bcf")
+	if err := os.WriteFile(p, buf.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	r, err := Open(p, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	batches, recs := 0, 0
+	for {
+		b, err := r.Next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			t.Fatal(err)
+		}
+		batches++
+		recs += len(b.Records)
+		if len(b.GT) > bcfBatchCalls+nSamples {
+			t.Errorf("batch of %d calls", len(b.GT))
+		}
+		if c := b.Calls(len(b.Records) - 1); c[0] != HomRef || c[1] != Het {
+			t.Errorf("calls %v", c[:2])
+		}
+		r.Release(b)
+	}
+	if recs != nRecs || batches < 3 {
+		t.Errorf("%d records in %d batches, want %d in at least 3", recs, batches, nRecs)
+	}
+}

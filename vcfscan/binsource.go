@@ -2,7 +2,6 @@ package vcfscan
 
 import (
 	"bufio"
-	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -21,6 +20,10 @@ type bcfSource struct {
 
 // bcfBatchRecords is the number of records read into one BCF batch.
 const bcfBatchRecords = 4096
+
+// bcfBatchCalls caps the genotype calls of one BCF batch, about those of a
+// 2 MiB VCF text chunk, so that many samples do not make huge batches.
+const bcfBatchCalls = 1 << 19
 
 // openBCF reads the BCF header from tb and prepares record decoding.
 func (r *Reader) openBCF(tb *bufio.Reader, path string) error {
@@ -91,7 +94,7 @@ func (r *Reader) nextBCF() (*Batch, error) {
 	b.NSamples = len(r.samples)
 	b.st.reset()
 	s.dec.st = b.st // haploid/polyploid warnings and sortedness blocks
-	for len(b.Records) < bcfBatchRecords && len(b.arena) < chunkTarget {
+	for len(b.Records) < bcfBatchRecords && len(b.arena) < chunkTarget && len(b.GT) < bcfBatchCalls {
 		rec, err := readBCFRecord(s.r, s.buf, r.opt.Limits.MaxLineBytes)
 		s.buf = rec
 		if err == io.EOF {
@@ -99,11 +102,7 @@ func (r *Reader) nextBCF() (*Batch, error) {
 			break
 		}
 		if err != nil {
-			var pe *ParseError
-			if !errors.As(err, &pe) {
-				err = &ParseError{File: r.name, Offset: -1, Record: s.index, Field: "record", Err: err}
-			}
-			return nil, err
+			return nil, s.dec.frameError(s.index, err) // ParseError with the virtual offset
 		}
 		kept, reason, err := s.dec.decode(rec, s.index, b)
 		s.index++
