@@ -271,6 +271,10 @@ func TestSamplePageNumbersEqualRow(t *testing.T) {
 		if len(ms) < 20 {
 			t.Fatalf("%s: only %d numbers on the page", st[i], len(ms))
 		}
+		if fr, err := strconv.ParseFloat(r["f_roh"], 64); err == nil &&
+			!strings.Contains(string(b), "red line: this sample (f_roh = "+fmtG(fr)+")") {
+			t.Errorf("%s: cohort position plot does not mark f_roh %s", st[i], r["f_roh"])
+		}
 		for _, m := range ms {
 			col, got := m[1], html.UnescapeString(m[2])
 			if col == "f_pedigree_compare" {

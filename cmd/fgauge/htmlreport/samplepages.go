@@ -12,6 +12,7 @@ import (
 	"sort"
 
 	"golang.org/x/sync/errgroup"
+	"gonum.org/v1/plot/plotter"
 
 	"gonum.org/v1/plot/vg"
 )
@@ -47,6 +48,7 @@ type sampleView struct {
 	Runs            []runView
 	NRuns           int
 	Painting        *figure
+	Position        *figure
 	CohortN, PopN   int
 	Info            *runInfo
 }
@@ -106,6 +108,7 @@ func writeSamplePages(outDir string, c *cohort, tpl *template.Template, opt Opti
 		}
 	}
 	lay := c.layout()
+	dist := c.distribution()
 	workers := opt.Workers
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
@@ -116,6 +119,10 @@ func writeSamplePages(outDir string, c *cohort, tpl *template.Template, opt Opti
 	for k, i := range which {
 		eg.Go(func() error {
 			v, js := c.sampleView(i, st[i], lay, cohortRank, popRank, popSize)
+			if dist != nil {
+				f := dist.place(c, i)
+				v.Position = &f
+			}
 			var buf bytes.Buffer
 			if err := tpl.ExecuteTemplate(&buf, "sample", v); err != nil {
 				return fmt.Errorf("report: sample page %q: %w", c.names[i], err)
@@ -329,6 +336,76 @@ func (c *cohort) samplePainting(name string, g genomeLayout) figure {
 	svg, err := renderPlot(p, plotW, h)
 	if err != nil {
 		f.Empty = "The painting could not be drawn: " + err.Error()
+		return f
+	}
+	f.SVG = svg
+	return f
+}
+
+// cohortDist is the cohort's histogram of one estimator, computed once and
+// drawn on every sample page with that sample marked.
+type cohortDist struct {
+	col  string
+	bins []plotter.HistogramBin
+	top  float64
+}
+
+// distribution bins F_ROH (or F_hom without runs) over the cohort; nil
+// when no sample has a value.
+func (c *cohort) distribution() *cohortDist {
+	col := "f_roh"
+	if _, ok := c.cols[col]; !ok {
+		col = "f_hom"
+	}
+	xs := c.col(col)
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, x := range xs {
+		if !math.IsNaN(x) && !math.IsInf(x, 0) {
+			lo, hi = math.Min(lo, x), math.Max(hi, x)
+		}
+	}
+	if math.IsInf(lo, 1) {
+		return nil
+	}
+	if hi-lo < 1e-9 {
+		lo, hi = lo-0.05, hi+0.05
+	}
+	const nbins = 30
+	w := (hi - lo) / nbins
+	d := &cohortDist{col: col, bins: make([]plotter.HistogramBin, nbins)}
+	for i := range d.bins {
+		d.bins[i] = plotter.HistogramBin{Min: lo + float64(i)*w, Max: lo + float64(i+1)*w}
+	}
+	for _, x := range xs {
+		if !math.IsNaN(x) && !math.IsInf(x, 0) {
+			k := min(nbins-1, max(0, int((x-lo)/w)))
+			d.bins[k].Weight++
+			d.top = math.Max(d.top, d.bins[k].Weight)
+		}
+	}
+	return d
+}
+
+// place draws the cohort histogram with sample i marked by a vertical line.
+func (d *cohortDist) place(c *cohort, i int) figure {
+	f := figure{ID: "fig_sample_position", Kind: "histogram", Title: "Where this sample sits in the cohort (" + d.col + ")"}
+	x := c.col(d.col)[i]
+	p := newPlot("", d.col, "samples")
+	p.Y.Tick.Marker = countTicks{}
+	p.Add(histFromCounts(d.bins, colFaint))
+	f.Points, f.Total = len(d.bins), len(c.names)
+	if !math.IsNaN(x) {
+		l, _ := plotter.NewLine(plotter.XYs{{X: x, Y: 0}, {X: x, Y: d.top * 1.05}})
+		l.Color = colBrick
+		l.Width = vg.Points(2)
+		p.Add(l)
+		f.Caption = fmt.Sprintf("Grey: the %d samples of the cohort; red line: this sample (%s = %s).", len(c.names), d.col, fmtG(x))
+	} else {
+		f.Caption = fmt.Sprintf("Grey: the %d samples of the cohort; this sample has no %s value.", len(c.names), d.col)
+	}
+	svg, err := renderPlot(p, plotW, plotH*0.5)
+	if err != nil {
+		f.Empty = "The plot could not be drawn: " + err.Error()
 		return f
 	}
 	f.SVG = svg
