@@ -24,12 +24,12 @@ type Design struct {
 
 // DesignKinds lists the built-in designs and what their focal animal is.
 var DesignKinds = map[string]string{
-	"selfing":          "a line selfed for Generations generations (F = 1 - (1/2)^t)",
-	"full_sib":         "offspring of Generations successive generations of full-sib mating (F = 1/4, 3/8, 1/2, ...)",
+	"selfing":          "a line selfed for the given t generations (F = 1 - (1/2)^t)",
+	"full_sib":         "offspring after the given generations of full-sib mating (F = 1/4, 3/8, 1/2, ...)",
 	"half_sib":         "offspring of a half-sib mating (F = 1/8)",
 	"first_cousin":     "offspring of a first-cousin mating (F = 1/16)",
 	"parent_offspring": "offspring of a sire mated to his daughter (F = 1/4)",
-	"closed_herd":      "a closed herd of HerdSize animals per generation bred from Sires sires for Generations generations",
+	"closed_herd":      "closed_herd:generations:herd_size:sires, a closed herd (half males) bred from a few random sires each generation (default 8:30:2)",
 }
 
 // ParseDesign parses "kind[:generations[:herd_size[:sires]]]", e.g.
