@@ -271,14 +271,20 @@ func readBCFRecord(r io.Reader, buf []byte, maxBytes int) ([]byte, error) {
 		return buf[:0], fmt.Errorf("%w: record of %d bytes is over the %d limit", ErrLimit, ls+li, maxBytes)
 	}
 	total := 8 + int(ls+li)
-	if cap(buf) < total {
-		nb := make([]byte, total, total+total/4)
-		copy(nb, buf[:8])
-		buf = nb
-	}
-	buf = buf[:total]
-	if _, err := io.ReadFull(r, buf[8:]); err != nil {
-		return buf[:0], fmt.Errorf("%w: record of %d bytes cut short", ErrTruncated, total)
+	// Grow by at most 1 MiB beyond the bytes actually read, so that a
+	// lying length on a short input cannot make us allocate its claim.
+	for len(buf) < total {
+		want := min(total, len(buf)+1<<20)
+		if cap(buf) < want {
+			nb := make([]byte, len(buf), max(want, 2*cap(buf)))
+			copy(nb, buf)
+			buf = nb
+		}
+		n, err := io.ReadFull(r, buf[len(buf):want])
+		buf = buf[:len(buf)+n]
+		if err != nil {
+			return buf[:0], fmt.Errorf("%w: record of %d bytes cut short after %d", ErrTruncated, total, len(buf))
+		}
 	}
 	return buf, nil
 }

@@ -10,6 +10,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"testing"
 )
@@ -467,5 +468,22 @@ func TestBCFDecodeEncodings(t *testing.T) {
 	}
 	if r := b.Records[0]; r.ChromID != 1 || r.Pos != 100 || b.GT[0] != Het {
 		t.Errorf("IDX contigs: chrom %d pos %d GT %v, want 1 100 Het", r.ChromID, r.Pos, b.GT[0])
+	}
+}
+
+// TestReadBCFRecordClaim checks that a record claiming 60 MiB on a short
+// input fails without allocating the claim.
+func TestReadBCFRecordClaim(t *testing.T) {
+	in := make([]byte, 8+100)
+	binary.LittleEndian.PutUint32(in[0:], 60<<20)
+	var ms0, ms1 runtime.MemStats
+	runtime.ReadMemStats(&ms0)
+	_, err := readBCFRecord(bytes.NewReader(in), nil, 64<<20)
+	runtime.ReadMemStats(&ms1)
+	if !errors.Is(err, ErrTruncated) {
+		t.Fatalf("error %v, want ErrTruncated", err)
+	}
+	if grew := ms1.TotalAlloc - ms0.TotalAlloc; grew > 8<<20 {
+		t.Errorf("allocated %d bytes for a 100-byte input", grew)
 	}
 }
