@@ -60,7 +60,10 @@ type namedCell struct {
 
 type pedigreeView struct{ Pedigree, Genomic, Diff cell }
 
-type indexEntry struct{ Name, Stem, Pop, FROH string }
+type indexEntry struct {
+	Name, Stem, Pop, FROH string
+	Flags                 []string
+}
 
 // basicCols are shown on each page in this order when present.
 var basicCols = []struct{ col, label string }{
@@ -141,7 +144,7 @@ func writeSamplePages(outDir string, c *cohort, tpl *template.Template, opt Opti
 			if err := writeFileAtomic(filepath.Join(dir, st[i]+".json"), append(jb, '\n')); err != nil {
 				return err
 			}
-			e := indexEntry{Name: c.names[i], Stem: st[i], FROH: fmtG(c.col("f_roh")[i])}
+			e := indexEntry{Name: c.names[i], Stem: st[i], FROH: fmtG(c.col("f_roh")[i]), Flags: c.flags[i]}
 			if c.pops != nil {
 				e.Pop = c.pops[i]
 			}
