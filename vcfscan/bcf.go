@@ -30,9 +30,8 @@ import (
 // Seam with the reader (binsource.go): readBCFHeader, then for each record
 // readBCFRecord and bcfDecoder.decode (wrap readBCFRecord's errors with
 // bcfDecoder.frameError to give them the record's virtual offset);
-// regionChunks (region.go) gives the
-// chunks to read for Options.Regions. bcf_twin_test.go and
-// region_query_test.go test the whole path through Open.
+// regionChunks (region.go) gives the chunks to read for Options.Regions.
+// bcf_twin_test.go and region_query_test.go test the whole path via Open.
 
 const (
 	bcfMagic22      = "BCF\x02\x02"
@@ -101,10 +100,10 @@ func readBCFHeader(r io.Reader, name string, lim Limits, warn func(kind, example
 		text = text[:i]
 	}
 	if lim.MaxLineBytes <= 0 {
-		lim.MaxLineBytes = bcfMaxHeaderLen
+		lim.MaxLineBytes = DefaultMaxLineBytes
 	}
 	if lim.MaxSamples <= 0 {
-		lim.MaxSamples = 10_000_000
+		lim.MaxSamples = DefaultMaxSamples
 	}
 	if warn == nil {
 		warn = func(string, string) {}
