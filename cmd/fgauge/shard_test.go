@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"reflect"
 	"strings"
@@ -413,4 +414,56 @@ func TestSkipIfValidState(t *testing.T) {
 	if _, err := readStateFile(states[0]); err != nil {
 		t.Errorf("state not rewritten: %v", err)
 	}
+}
+
+func TestPlanRunLocal(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs fgauge scripts")
+	}
+	dir := t.TempDir()
+	sim := simulatedInput(t, dir)
+	bin := filepath.Join(dir, "fgauge")
+	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
+		t.Fatalf("go build: %v\n%s", err, out)
+	}
+	pops := writePopulations(t, dir, sim)
+	single := scanSingle(t, dir, sim, []string{"--populations", pops})
+	planDir := filepath.Join(dir, "plan")
+	// Five shards of a 30/20/12 Mb genome: chromosome 1 is split, 2 and 3
+	// are kept whole.
+	if code, _, e := runCmdline(t, "plan", sim, "-o", planDir, "--shards", "5", "--fgauge", bin, "--jobs", "2", "--", "--populations", pops); code != exitOK {
+		t.Fatalf("plan: exit %d: %s", code, e)
+	}
+	tsv, err := os.ReadFile(filepath.Join(planDir, "shards.tsv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(tsv)), "\n")
+	if lines[0] != "shard\tregions\tcompressed_bytes\test_records\test_cpu_seconds\test_memory_mb" || len(lines) < 4 || len(lines) > 8 {
+		t.Fatalf("shards.tsv:\n%s", tsv)
+	}
+	if !strings.Contains(string(tsv), "\t1:1-") || !strings.Contains(string(tsv), "\t3\t") && !strings.Contains(string(tsv), ",3\t") {
+		t.Errorf("want chromosome 1 split and 3 whole:\n%s", tsv)
+	}
+	sb, _ := os.ReadFile(filepath.Join(planDir, "shard_array.sbatch"))
+	if !strings.Contains(string(sb), fmt.Sprintf("#SBATCH --array=1-%d\n", len(lines)-1)) {
+		t.Errorf("shard_array.sbatch:\n%s", sb)
+	}
+	run := func() string {
+		cmd := exec.Command("bash", filepath.Join(planDir, "run_local.sh"))
+		out, err := cmd.CombinedOutput()
+		if err != nil {
+			t.Fatalf("run_local.sh: %v\n%s", err, out)
+		}
+		return string(out)
+	}
+	run()
+	assertSameOutputs(t, single, filepath.Join(planDir, "merged"))
+	// Resuming: only the shard whose state is gone is scanned again.
+	os.Remove(filepath.Join(planDir, "states", "2.state"))
+	out := run()
+	if got := strings.Count(out, "skipped"); got != len(lines)-2 {
+		t.Errorf("%d shards skipped on the second run, want %d:\n%s", got, len(lines)-2, out)
+	}
+	assertSameOutputs(t, single, filepath.Join(planDir, "merged"))
 }
