@@ -13,7 +13,6 @@ import (
 
 	"golang.org/x/sync/errgroup"
 	"gonum.org/v1/plot/plotter"
-
 	"gonum.org/v1/plot/vg"
 )
 
