@@ -568,8 +568,9 @@ func runInfo(env *runEnv, o *scanOptions, rd *vcfscan.Reader, c *vcfscan.Batch, 
 	if st, err := os.Stat(o.input); err == nil && o.input != "-" {
 		size = st.Size()
 	}
+	warns := append(rd.Warnings(), scanWarnings(totals, kept, rres)...)
 	warnings := map[string]any{}
-	for _, w := range rd.Warnings() {
+	for _, w := range warns {
 		warnings[w.Kind] = w.Count
 	}
 	hdr := rd.Header()
@@ -606,7 +607,7 @@ func runInfo(env *runEnv, o *scanOptions, rd *vcfscan.Reader, c *vcfscan.Batch, 
 	if rres != nil {
 		info["roh"] = rres.Summary()
 	}
-	for _, w := range rd.Warnings() {
+	for _, w := range warns {
 		fmt.Fprintf(env.stderr, "fgauge: warning: %s (%d times; first: %s)\n", w.Kind, w.Count, w.Example)
 	}
 	return info

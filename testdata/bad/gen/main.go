@@ -95,7 +95,12 @@ func corpus(bcfPath string) ([]file, error) {
 
 	// Text VCF: header problems.
 	text("empty.vcf", "zero bytes", "")
-	text("header_only.vcf", "a valid header and no records (legal: scanned, empty tables)", header)
+	text("header_only.vcf", "a valid header and no records (legal: empty tables, warned no_sites_kept)", header)
+	text("sample_without_calls.vcf", "goat_c has no call and goat_b calls at half the sites (legal: warned samples_without_calls, samples_low_call_rate)",
+		header+rec("1", 1000, "A", "G", "0/0", "0/1", "./.")+rec("1", 2000, "C", "T", "0/1", "./.", "./.")+
+			rec("1", 3000, "G", "A", "1/1", "0/0", "./.")+rec("1", 4000, "T", "C", "0/0", "./.", "./."))
+	text("contig_without_length.vcf", "##contig lines without length= (legal: warned; F_ROH divides by the span of the sites)",
+		strings.NewReplacer(",length=2000000", "", ",length=1500000", "").Replace(good))
 	text("no_header.vcf", "records without any header", body)
 	text("missing_chrom_line.vcf", "meta lines, then records without the #CHROM line",
 		strings.Replace(good, "#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT\tgoat_a\tgoat_b\tgoat_c\n", "", 1))
