@@ -164,4 +164,3 @@ func (c *cohort) classOf(lengthBP float64) int {
 	}
 	return k
 }
-
