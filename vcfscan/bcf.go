@@ -184,7 +184,7 @@ func bcfDictionaries(meta []string) (strs, contigs []string, err error) {
 	seen := map[string]bool{"PASS": true}
 	seenContig := map[string]bool{}
 	put := func(list []string, idx int, id string) ([]string, error) {
-		if idx < 0 || idx > 1<<24 {
+		if idx < 0 || idx > 1<<20 { // bounds what a hostile header can allocate
 			return list, fmt.Errorf("IDX=%d out of range for %s", idx, id)
 		}
 		for len(list) <= idx {
@@ -324,8 +324,7 @@ type bcfFloatEntry struct {
 
 // newBCFDecoder prepares a decoder for records of a BCF file with header h
 // (from readBCFHeader). sel lists, in output order, the file indices of the
-// samples to keep; nil keeps all in file order. selFromDest converts the
-// column map of selectSamples.
+// samples to keep; nil keeps all in file order.
 func newBCFDecoder(h *Header, sel []int, opt Options) *bcfDecoder {
 	d := &bcfDecoder{name: "", opt: opt, sel: sel, nSamples: len(h.Samples), hdr: h,
 		keyGT: -1, keyGQ: -1, keyDP: -1, keyPL: -1, keyGL: -1, keyInfo: -1}
@@ -370,22 +369,6 @@ func newBCFDecoder(h *Header, sel []int, opt Options) *bcfDecoder {
 		d.regions = newRegionSet(opt.Regions)
 	}
 	return d
-}
-
-// selFromDest turns a file-column -> output-position map (-1 drops the
-// column, nil keeps all) into the output-order list of file indices that
-// newBCFDecoder takes.
-func selFromDest(dest []int32, nOut int) []int {
-	if dest == nil {
-		return nil
-	}
-	sel := make([]int, nOut)
-	for file, out := range dest {
-		if out >= 0 && int(out) < nOut {
-			sel[out] = file
-		}
-	}
-	return sel
 }
 
 // bcfCursor walks the typed values of one record part.
