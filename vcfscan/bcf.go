@@ -559,8 +559,8 @@ func (d *bcfDecoder) decode(rec []byte, index int64, b *Batch) (kept bool, reaso
 	if chrom < 0 || int(chrom) >= len(d.chromMap) || d.chromMap[chrom] < 0 {
 		return false, 0, d.fail(index, "CHROM", ErrMalformed, "contig number %d is not in the header's contig dictionary (%d contigs)", chrom, len(d.chromMap))
 	}
-	if pos0 < 0 {
-		return false, 0, d.fail(index, "POS", ErrMalformed, "negative position %d", pos0)
+	if pos0 < -1 { // -1 is VCF POS 0, allowed for telomeres
+		return false, 0, d.fail(index, "POS", ErrMalformed, "position %d before the start of the contig", pos0+1)
 	}
 	if nSample != d.nSamples && !(nFmt == 0 && nSample == 0) {
 		return false, 0, d.fail(index, "n_sample", ErrSampleCount, "record has %d samples, the header %d", nSample, d.nSamples)

@@ -231,6 +231,9 @@ func TestBCFDecodeHandMade(t *testing.T) {
 			kept: true, gt: []Geno{Het, Het, Het}, pl: []uint16{0, 10, 1000, 5, 65535, 0, 0, 0, 0}, info: 0.25, filter: "."},
 		{name: "wrong sample count", rec: bcfRec{alleles: []string{"A", "G"}, fmt: [][]byte{gt(2, 2)}, nSample: 1}, err: ErrSampleCount},
 		{name: "unknown contig", rec: bcfRec{chrom: 7, alleles: []string{"A", "G"}}, err: ErrMalformed},
+		{name: "position before the contig", rec: bcfRec{pos0: -2, alleles: []string{"A", "G"}}, err: ErrMalformed},
+		{name: "POS 0 (telomere)", rec: bcfRec{pos0: -1, alleles: []string{"A", "G"}, fmt: [][]byte{gt(2, 2, 2, 2, 2, 2)}, nSample: 3},
+			kept: true, gt: []Geno{HomRef, HomRef, HomRef}, filter: "."},
 		{name: "outside region", opt: Options{Regions: []Region{{Chrom: "chr1", Start: 5, End: 9}}},
 			rec: bcfRec{pos0: 10, alleles: []string{"A", "G"}, fmt: [][]byte{gt(2, 2, 2, 2, 2, 2)}, nSample: 3}, reason: SkipOutsideRegion},
 	}
