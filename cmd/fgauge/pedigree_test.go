@@ -81,3 +81,18 @@ func TestPedigreeCommandErrors(t *testing.T) {
 		t.Errorf("--help: exit %d", code)
 	}
 }
+
+func TestPedigreeCommandSexWarning(t *testing.T) {
+	dir := t.TempDir()
+	ped := writeTestInput(t, dir, "sex.tsv", "b\t0\t0\tF\nd\t0\t0\tF\nk\tb\td\tM\n")
+	code, out, errText := runCmdline(t, "pedigree", ped)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errText)
+	}
+	if !strings.Contains(errText, `warning: `+ped+`:3: sire "b" of "k" is recorded as female`) {
+		t.Errorf("stderr lacks the sex warning: %q", errText)
+	}
+	if !strings.HasPrefix(out, "id\tsire\tdam\tf_pedigree\n") {
+		t.Errorf("stdout = %q", out)
+	}
+}

@@ -48,3 +48,25 @@ func TestSimulateCommandUsage(t *testing.T) {
 		}
 	}
 }
+
+func TestSimulateTruthOnly(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "truth")
+	code, _, errText := runCmdline(t, "simulate", "-o", out, "--design", "parent_offspring", "--replicates", "4", "--truth-only")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errText)
+	}
+	if _, err := os.Stat(filepath.Join(out, "simulated.vcf.gz")); err == nil {
+		t.Error("--truth-only wrote a VCF")
+	}
+	seg, err := os.ReadFile(filepath.Join(out, "truth_segments.tsv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(seg)), "\n")
+	if lines[0] != "sample\tchrom\tstart\tend\tlength_bp\tstart_cm\tend_cm\tn_sites" || len(lines) < 2 {
+		t.Fatalf("segments table:\n%s", seg)
+	}
+	if !strings.HasSuffix(lines[1], "\tNA") {
+		t.Errorf("n_sites should be NA without sites: %q", lines[1])
+	}
+}
