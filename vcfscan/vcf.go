@@ -140,7 +140,24 @@ func (p *vcfParser) errf(line int64, sentinel error, field, format string, args 
 func (p *vcfParser) parseChunk(b *Batch, data []byte) error {
 	st := p.st
 	var lineNo int64
+	fused := p.nFile > 0 && p.regions == nil && !p.opt.WantPL && p.opt.MinDP <= 0 && p.opt.MinGQ <= 0
 	for len(data) > 0 {
+		if fused {
+			used, ok, err := p.fastLine(b, data, lineNo+1)
+			if ok {
+				lineNo++
+				if err != nil {
+					st.lines = lineNo
+					return err
+				}
+				if n := lineLen(data[:used]); n > p.opt.Limits.MaxLineBytes {
+					st.lines = lineNo
+					return p.errf(lineNo, ErrLimit, "line", "line of %d bytes is longer than the limit of %d; raise --max-line-bytes if the file is genuine", n, p.opt.Limits.MaxLineBytes)
+				}
+				data = data[used:]
+				continue
+			}
+		}
 		nl := bytes.IndexByte(data, '\n')
 		var line []byte
 		if nl < 0 {
@@ -167,6 +184,163 @@ func (p *vcfParser) parseChunk(b *Batch, data []byte) error {
 	}
 	st.lines = lineNo
 	return nil
+}
+
+// lineLen is the length of a line without its "\n" or "\r\n" ending.
+func lineLen(l []byte) int {
+	n := len(l)
+	if n > 0 && l[n-1] == '\n' {
+		n--
+	}
+	if n > 0 && l[n-1] == '\r' {
+		n--
+	}
+	return n
+}
+
+// fastLine handles the common line in one pass: a biallelic SNP kept by
+// the policy whose FORMAT starts with GT, when nothing but GT is needed.
+// It decodes the calls while looking for the end of the line, so the
+// bytes are read once. For any other line it returns ok=false having
+// changed nothing, and the caller takes the general path. used counts the
+// bytes of the line including its newline.
+func (p *vcfParser) fastLine(b *Batch, data []byte, lineNo int64) (used int, ok bool, err error) {
+	if data[0] == '#' {
+		return 0, false, nil
+	}
+	var tabs [9]int
+	off := 0
+	for k := range tabs {
+		t := bytes.IndexByte(data[off:], '\t')
+		if t < 0 {
+			return 0, false, nil
+		}
+		off += t
+		tabs[k] = off
+		off++
+	}
+	if bytes.IndexByte(data[:off], '\n') >= 0 {
+		return 0, false, nil
+	}
+	chrom := data[:tabs[0]]
+	posF := data[tabs[0]+1 : tabs[1]]
+	ref := data[tabs[2]+1 : tabs[3]]
+	alt := data[tabs[3]+1 : tabs[4]]
+	filter := data[tabs[5]+1 : tabs[6]]
+	if len(chrom) == 0 || len(ref) != 1 || len(alt) != 1 || !isACGT[ref[0]] || !isACGT[alt[0]] {
+		return 0, false, nil
+	}
+	if !p.opt.IncludeFiltered && !(len(filter) == 1 && filter[0] == '.') && string(filter) != "PASS" {
+		return 0, false, nil
+	}
+	pos, okPos := parsePos(posF)
+	if !okPos {
+		return 0, false, nil
+	}
+	p.parseFormat(data[tabs[7]+1 : tabs[8]])
+	if p.gtIdx != 0 {
+		return 0, false, nil
+	}
+	b.Read++
+	id := p.chromID(chrom)
+	p.track(id, pos, lineNo)
+	ri := len(b.Records)
+	b.Records = append(b.Records, Record{
+		ChromID: id, Pos: pos, Ref: ref, Alt: alt, ID: data[tabs[1]+1 : tabs[2]], Filter: filter,
+		InfoValue: NaN, Line: lineNo,
+	})
+	if p.opt.InfoKey != "" {
+		b.Records[ri].InfoValue = infoValue(data[tabs[6]+1:tabs[7]], p.opt.InfoKey)
+	}
+	base := len(b.GT)
+	b.GT = growGeno(b.GT, p.nOut)
+	n, err := p.fusedSamples(b.GT[base:base+p.nOut], data[off:], lineNo)
+	return off + n, true, err
+}
+
+// fusedSamples decodes the sample columns at the start of s up to the end
+// of the line ('\n' or the end of s) and returns the bytes used, newline
+// included.
+func (p *vcfParser) fusedSamples(gt []Geno, s []byte, lineNo int64) (int, error) {
+	n := len(s)
+	i := 0
+	dest := p.dest
+	nFile := p.nFile
+	for j := 0; j < nFile; j++ {
+		if dest == nil {
+			for j+2 <= nFile && i+8 <= n {
+				w := binary.LittleEndian.Uint64(s[i:])
+				if m := w & pairSepMask; m != pairPhased && m != pairUnphased {
+					break
+				}
+				c0 := gtPair[(w&0xff)|(w>>8)&0xff00]
+				c1 := gtPair[(w>>32)&0xff|(w>>40)&0xff00]
+				if c0 == slowGT || c1 == slowGT {
+					break
+				}
+				gt[j], gt[j+1] = c0, c1
+				i += 8
+				j += 2
+			}
+			if j >= nFile {
+				break
+			}
+		}
+		if i+4 <= n {
+			w := binary.LittleEndian.Uint32(s[i:])
+			if byte(w>>24) == '\t' && isPhaseSep[byte(w>>8)] {
+				if code := gt3[alleleClass[byte(w)]][alleleClass[byte(w>>16)]]; code != slowGT {
+					if dest == nil {
+						gt[j] = code
+					} else if o := dest[j]; o >= 0 {
+						gt[o] = code
+					}
+					i += 4
+					continue
+				}
+			}
+		}
+		e := i
+		for e < n && s[e] != '\t' && s[e] != '\n' {
+			e++
+		}
+		lineEnds := e == n || s[e] == '\n'
+		g := s[i:e]
+		if lineEnds && len(g) > 0 && g[len(g)-1] == '\r' {
+			g = g[:len(g)-1]
+		}
+		if c := bytes.IndexByte(g, ':'); c >= 0 {
+			g = g[:c]
+		}
+		code := slowGT
+		if len(g) == 3 && isPhaseSep[g[1]] {
+			code = gt3[alleleClass[g[0]]][alleleClass[g[2]]]
+		}
+		if code == slowGT {
+			var err error
+			if code, err = p.parseGT(g, lineNo, j); err != nil {
+				return 0, err
+			}
+		}
+		if dest == nil {
+			gt[j] = code
+		} else if o := dest[j]; o >= 0 {
+			gt[o] = code
+		}
+		if lineEnds {
+			if j != nFile-1 {
+				return 0, p.errf(lineNo, ErrSampleCount, "samples", "expected %d sample columns as in the #CHROM line, found %d", nFile, j+1)
+			}
+			return min(e+1, n), nil
+		}
+		i = e + 1
+	}
+	// The last sample column was followed by a tab: count the extra ones.
+	end := n
+	if k := bytes.IndexByte(s[i:], '\n'); k >= 0 {
+		end = i + k
+	}
+	return 0, p.errf(lineNo, ErrSampleCount, "samples", "expected %d sample columns as in the #CHROM line, found %d", nFile, nFile+bytes.Count(s[i:end], []byte{'\t'})+1)
 }
 
 // cut returns the field up to the next tab, the rest after it, and whether
