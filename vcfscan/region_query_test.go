@@ -74,3 +74,34 @@ func TestRegionOpenErrors(t *testing.T) {
 		t.Errorf("Open with stale index: %v, want ErrStaleIndex", err)
 	}
 }
+
+// TestRegionQueryVCFWithCSI reads a VCF through a CSI index (names in the
+// auxiliary field, written by python3-pysam 0.20.0) instead of its tabix
+// index, and checks the rows against a full scan.
+func TestRegionQueryVCFWithCSI(t *testing.T) {
+	dir := t.TempDir()
+	vcf := filepath.Join(dir, "chr22_1000g.vcf.gz")
+	for _, c := range [][2]string{{"../testdata/chr22_1000g.vcf.gz", vcf}, {"../testdata/bcf/chr22_1000g.vcf.gz.csi", vcf + ".csi"}} {
+		b, err := os.ReadFile(c[0])
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(c[1], b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	regs := []Region{{"22", 50500000, 50600000}, {"22", 50900000, 0}}
+	full := bcfScanFile(t, vcf, Options{})
+	got := bcfScanFile(t, vcf, Options{Regions: regs})
+	want := bcfScanResult{samples: full.samples}
+	set := newRegionSet(regs)
+	for _, r := range full.recs {
+		if set.overlaps(r.Chrom, r.Pos, r.Pos) {
+			want.recs = append(want.recs, r)
+		}
+	}
+	if len(want.recs) < 100 {
+		t.Fatalf("only %d rows in the regions", len(want.recs))
+	}
+	bcfCompareScans(t, "vcf+csi", want, got, false)
+}
