@@ -29,7 +29,7 @@ invented: no real animals, farms or people.
 
 Files in DIR: cohort.vcf.gz (+ .tbi), pedigree.tsv, herds.tsv (sample, herd),
 truth_samples.tsv and truth_segments.tsv (what the simulation knows), and
-scan/ with the scan's tables.
+scan/ with the scan's tables and report.html.
 `
 
 // demoSeed fixes the demo's data.
@@ -110,7 +110,7 @@ func runDemo(ctx context.Context, env *runEnv, args []string) error {
 
 	scanDir := filepath.Join(*dir, "scan")
 	scanErr := runScan(ctx, &runEnv{stdout: io.Discard, stderr: env.stderr, stdin: env.stdin, argv: env.argv},
-		[]string{vcfPath, "-o", scanDir, "--populations", popPath, "--pedigree", pedPath})
+		[]string{vcfPath, "-o", scanDir, "--populations", popPath, "--pedigree", pedPath, "--report", "--force"})
 	if err := ctx.Err(); err != nil {
 		return err
 	}
@@ -459,7 +459,7 @@ func writeDemoSummary(w io.Writer, ped *pedigree.Pedigree, fped, truth, genomic 
 		fmt.Fprintln(w, "    common ancestor a few generations back, short ones to old shared ancestry of the breed.")
 		fmt.Fprintf(w, "  - Compare the genomic and pedigree columns in %s/samples.tsv: large gaps in many animals\n", scanDir)
 		fmt.Fprintln(w, "    hint at recording errors or relatedness the herd book does not show.")
-		fmt.Fprintf(w, "  - %s/populations.tsv compares the herds; 'fgauge report %s' draws it all on one page.\n", scanDir, scanDir)
+		fmt.Fprintf(w, "  - %s/populations.tsv compares the herds; %s/report.html shows it all in a browser.\n", scanDir, scanDir)
 	} else {
 		fmt.Fprintln(w, "  - Run 'fgauge scan' on cohort.vcf.gz with --populations herds.tsv and --pedigree pedigree.tsv")
 		fmt.Fprintln(w, "    to see genomic F and runs of homozygosity next to the pedigree values.")
