@@ -30,7 +30,13 @@ func TestDemo(t *testing.T) {
 			t.Errorf("summary lacks %q:\n%s", want, out)
 		}
 	}
-	for _, name := range []string{"cohort.vcf.gz", "cohort.vcf.gz.tbi", "pedigree.tsv", "herds.tsv", "truth_samples.tsv", "truth_segments.tsv"} {
+	// A second run into the same folder replaces the scan and reads its
+	// genomic F back.
+	code, out, errText = runCmdline(t, "demo", "-o", dir)
+	if code != exitOK || !strings.Contains(out, "Most inbred animals (by genomic ") {
+		t.Errorf("second run: exit %d, stderr %q, summary:\n%s", code, errText, out)
+	}
+	for _, name := range []string{"scan/samples.tsv", "scan/runs.tsv", "cohort.vcf.gz", "cohort.vcf.gz.tbi", "pedigree.tsv", "herds.tsv", "truth_samples.tsv", "truth_segments.tsv"} {
 		if _, err := os.Stat(filepath.Join(dir, name)); err != nil {
 			t.Error(err)
 		}
