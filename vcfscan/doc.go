@@ -13,6 +13,12 @@
 // A/C/G/T bases; other records are counted by SkipReason. A call with any
 // missing allele is Missing; haploid calls get their own codes.
 //
+// Reader.Warnings counts conditions that do not stop reading, by kind:
+// bgzf_missing_eof (the last block is not the empty EOF block),
+// contig_without_length (##contig without length=), contig_not_in_header
+// (a CHROM with no ##contig line), haploid_calls, polyploid_calls_as_missing,
+// blank_lines, no_fileformat_line and unknown_fileformat.
+//
 // vcfscan knows nothing about statistics: the stats and roh packages
 // consume its batches. It also writes BGZF (BGZFWriter) for the tables and
 // simulated files the command line produces.

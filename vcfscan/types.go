@@ -122,8 +122,8 @@ type Options struct {
 	Threads         int      // decompression and parse workers; 0 means all cores
 	IncludeFiltered bool     // keep records whose FILTER is not PASS or "."
 	MinGQ, MinDP    int      // mask calls below these to Missing; 0 disables
-	Samples         []string // keep only these samples (nil keeps all)
-	ExcludeSamples  []string // drop these samples
+	Samples         []string // keep only these samples, in this order (nil keeps all, in file order); unknown names are an error
+	ExcludeSamples  []string // drop these samples (applied after Samples); unknown names are an error
 	InfoKey         string   // INFO key to read into Record.InfoValue (e.g. "AF")
 	WantPL          bool     // decode PL/GL into Batch.PL when present
 	Regions         []Region // restrict to these regions via the index
