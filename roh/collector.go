@@ -128,8 +128,10 @@ func (c *Collector) parseErr(line int64, field, what string, err error) error {
 // decreasing within it. freqs[i] is the alternate-allele frequency of
 // record i (for example the cohort frequency from the stats layer); freqs
 // may be nil, and a NaN entry means unknown: then the frequency is
-// estimated from the calls of this batch's record (all samples), and a
-// site with no diploid calls at all is uninformative. Calls that are
+// estimated from the calls of this batch's record (all samples, see
+// cohortFreq), and a site with no diploid calls at all is uninformative.
+// With few samples, pass panel frequencies (for example INFO AF) when
+// available: a cohort estimate from a handful of animals is poor. Calls that are
 // haploid are treated as missing.
 func (c *Collector) AddBatch(b *vcfscan.Batch, freqs []float64) error {
 	if c.finished {
@@ -218,8 +220,11 @@ func cap255(v uint16) uint8 {
 	return uint8(v)
 }
 
-// cohortFreq is the alternate-allele frequency among the diploid calls,
-// NaN when there are none.
+// cohortFreq estimates the alternate-allele frequency from the diploid
+// calls with one pseudo-count per allele, (alt+1)/(2n+2) (Laplace's rule
+// of succession; common practice): in a small cohort a sample's own calls
+// would otherwise make every site where all are homozygous look
+// monomorphic and so uninformative. NaN when there are no diploid calls.
 func cohortFreq(calls []vcfscan.Geno) float64 {
 	var n, alt int
 	for _, g := range calls {
@@ -231,7 +236,7 @@ func cohortFreq(calls []vcfscan.Geno) float64 {
 	if n == 0 {
 		return math.NaN()
 	}
-	return float64(alt) / float64(n)
+	return float64(alt+1) / float64(n+2)
 }
 
 // switchChrom closes the current chromosome and opens id.
