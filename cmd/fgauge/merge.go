@@ -390,8 +390,9 @@ func mergeRunInfo(env *runEnv, ls []loadedState, m *merged, start time.Time) map
 	for i := vcfscan.SkipReason(0); i < vcfscan.NumSkipReasons; i++ {
 		skipped[i.String()] = m.skipped[i]
 	}
+	warns := append(append([]vcfscan.Warning(nil), m.warnings...), scanWarnings(m.totals, m.kept, m.rres)...)
 	warnings := map[string]any{}
-	for _, w := range m.warnings {
+	for _, w := range warns {
 		warnings[w.Kind] = w.Count
 	}
 	keptSet := map[string]bool{}
@@ -433,7 +434,7 @@ func mergeRunInfo(env *runEnv, ls []loadedState, m *merged, start time.Time) map
 		info["roh"] = m.rres.Summary()
 	}
 	overlayShardInfo(info, f.RunJSON)
-	for _, w := range m.warnings {
+	for _, w := range warns {
 		fmt.Fprintf(env.stderr, "fgauge: warning: %s (%d times; first: %s)\n", w.Kind, w.Count, w.Example)
 	}
 	return info
@@ -451,7 +452,7 @@ func overlayShardInfo(info map[string]any, shardJSON []byte) {
 	}
 	for k, v := range sh {
 		switch k {
-		case "wall_seconds", "command_line":
+		case "wall_seconds", "command_line", "warnings":
 			continue
 		}
 		mine, ok := info[k]
