@@ -2,6 +2,7 @@ package simulate_test
 
 import (
 	"fmt"
+	"strings"
 
 	"fgauge/roh/simulate"
 	"fgauge/vcfscan"
@@ -57,4 +58,32 @@ func ExampleResult_ForEachSite() {
 	})
 	fmt.Println(res.Samples[focal].ID, res.Samples[focal].FPedigree, hets <= sites/4)
 	// Output: selfing_r1_s4 0.9375 true
+}
+
+func ExampleParseDesign() {
+	d, err := simulate.ParseDesign("closed_herd:10:40")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Println(d, d.Generations, d.HerdSize, d.Sires)
+	// Output: closed_herd:10:40:2 10 40 2
+}
+
+func ExampleWriteSamplesTruth() {
+	d, _ := simulate.ParseDesign("half_sib")
+	res, _ := simulate.Run(simulate.Config{Seed: 1, Designs: []simulate.Design{d}, NoSites: true})
+	var b strings.Builder
+	simulate.WriteSamplesTruth(&b, res)
+	lines := strings.Split(b.String(), "\n")
+	fmt.Println(lines[0])
+	for _, l := range lines {
+		if strings.HasPrefix(l, "half_sib_r1_focal\t") {
+			f := strings.Split(l, "\t")
+			fmt.Println(f[0], f[3], f[4])
+		}
+	}
+	// Output:
+	// sample	replicate	design	class	f_pedigree	f_realized	autozygous_bp	n_segments
+	// half_sib_r1_focal focal 0.125
 }

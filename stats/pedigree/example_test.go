@@ -37,3 +37,32 @@ func ExamplePedigree_Coancestry() {
 	fmt.Println(c)
 	// Output: [0.25 0.5]
 }
+
+func ExampleFromRecords() {
+	// Two generations of full-sib mating (F = 3/8).
+	recs := []pedigree.Record{
+		{ID: "b1", Sire: "s", Dam: "d"}, {ID: "g1", Sire: "s", Dam: "d"},
+		{ID: "b2", Sire: "b1", Dam: "g1"}, {ID: "g2", Sire: "b1", Dam: "g1"},
+		{ID: "x", Sire: "b2", Dam: "g2"},
+	}
+	p, err := pedigree.FromRecords(recs, "in memory")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	i, _ := p.Index("x")
+	fmt.Println(p.Inbreeding()[i])
+	// Output: 0.375
+}
+
+func ExamplePedigree_ReadPairs() {
+	p, _ := pedigree.Read(strings.NewReader("s\t0\t0\nd\t0\t0\nb\ts\td\n"), "trio.tsv")
+	pairs, err := p.ReadPairs(strings.NewReader("id_a\tid_b\ns\tb\ns\td\n"), "pairs.tsv")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	c, _ := p.Coancestry(pairs, nil)
+	fmt.Println(c)
+	// Output: [0.25 0]
+}
