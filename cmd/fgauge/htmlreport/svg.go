@@ -33,10 +33,8 @@ type figure struct {
 type pageLink struct{ Name, Href string }
 
 var (
-	reProlog  = regexp.MustCompile(`(?s)\A.*?(<svg\b)`)
-	reComment = regexp.MustCompile(`(?s)<!--.*?-->`)
-	reXmlns   = regexp.MustCompile(`\s+xmlns(:\w+)?="[^"]*"`)
-	reSize    = regexp.MustCompile(`\A(<svg)\s+width="[^"]*"\s+height="[^"]*"`)
+	reXmlns = regexp.MustCompile(`\s+xmlns(:\w+)?="[^"]*"`)
+	reSize  = regexp.MustCompile(`\A(<svg)\s+width="[^"]*"\s+height="[^"]*"`)
 )
 
 // sanitizeSVG turns the standalone SVG document written by vgsvg into an
@@ -45,21 +43,29 @@ var (
 // vgsvg already escapes text with html.EscapeString, so names drawn as tick
 // labels or point labels arrive escaped.
 func sanitizeSVG(b []byte) (template.HTML, error) {
-	b = reProlog.ReplaceAll(b, []byte("$1"))
-	b = reComment.ReplaceAll(b, nil)
-	b = reXmlns.ReplaceAll(b, nil)
-	b = reSize.ReplaceAll(b, []byte(`$1 class="plot" role="img"`))
-	if !bytes.HasPrefix(b, []byte("<svg")) {
+	// the prolog and vgsvg's comment come before the root element; only
+	// the root's opening tag needs rewriting
+	i := bytes.Index(b, []byte("<svg"))
+	if i < 0 {
 		return "", fmt.Errorf("report: plot did not render to SVG")
 	}
+	b = b[i:]
+	j := bytes.IndexByte(b, '>')
+	if j < 0 {
+		return "", fmt.Errorf("report: plot SVG has no root tag")
+	}
+	tag := reXmlns.ReplaceAll(b[:j], nil)
+	tag = reSize.ReplaceAll(tag, []byte(`$1 class="plot" role="img"`))
+	out := make([]byte, 0, len(tag)+len(b)-j)
+	out = append(append(out, tag...), b[j:]...)
 	// Names drawn as text are escaped by vgsvg, so these can only come
 	// from markup the plot itself wrote; we draw no images and no links.
-	for _, bad := range []string{"href=", "url(", "<script", "<foreignObject", "<image", "<a ", "@import"} {
-		if bytes.Contains(b, []byte(bad)) {
+	for _, bad := range []string{"href=", "url(", "<script", "<foreignObject", "<image", "<a ", "@import", "<!--", "<?"} {
+		if bytes.Contains(out, []byte(bad)) {
 			return "", fmt.Errorf("report: plot SVG holds %q", bad)
 		}
 	}
-	return template.HTML(b), nil // safe: produced by vgsvg from escaped text, checked above
+	return template.HTML(out), nil // safe: produced by vgsvg from escaped text, checked above
 }
 
 // renderPlot draws p on a w×h SVG canvas.
