@@ -114,6 +114,8 @@ func (c *Config) normalize() error {
 	if len(c.Chromosomes) == 0 {
 		c.Chromosomes = DefaultChromosomes()
 	}
+	// Own copy: lengths taken from a map must not change the caller's slice.
+	c.Chromosomes = append([]Chromosome(nil), c.Chromosomes...)
 	if c.SiteSpacing == 0 {
 		c.SiteSpacing = 30_000
 	}

@@ -406,13 +406,18 @@ func TestGeneticMap(t *testing.T) {
 	if _, err := ReadGeneticMap(strings.NewReader("1\t100\t1\n1\t50\t2\n"), "bad.tsv"); err == nil || !strings.HasPrefix(err.Error(), "bad.tsv:2:") {
 		t.Errorf("unsorted map error = %v", err)
 	}
-	// A chromosome with a map takes its genetic length from the map.
-	res, err := Run(Config{Seed: 1, Chromosomes: []Chromosome{{"1", 12000000, 99}}, Map: m, Designs: []Design{{Kind: "full_sib"}}, NoSites: true})
+	// A chromosome with a map takes its genetic length from the map, and
+	// the caller's settings stay as they were.
+	chroms := []Chromosome{{"1", 12000000, 99}}
+	res, err := Run(Config{Seed: 1, Chromosomes: chroms, Map: m, Designs: []Design{{Kind: "full_sib"}}, NoSites: true})
 	if err != nil {
 		t.Fatal(err)
 	}
 	if got := res.Chromosomes[0].LengthCM; math.Abs(got-14.4) > 1e-9 {
 		t.Errorf("length from map %v cM, want 14.4", got)
+	}
+	if chroms[0].LengthCM != 99 {
+		t.Errorf("Run changed the caller's chromosome to %v cM", chroms[0].LengthCM)
 	}
 }
 
