@@ -28,6 +28,12 @@ func TestDegenerateFolders(t *testing.T) {
 			"populations.tsv":          "population\tn_samples\tf_is\nHILL\t1\tNA\nMOOR\t1\t0.1\n",
 			"populations_pairwise.tsv": "population_a\tpopulation_b\tf_st\tf_st_se\tn_sites\nHILL\tMOOR\tNA\tNA\t0\n",
 		}, `data-plot="fig_pop_fst"`},
+		{"hostile population and contig names", map[string]string{
+			"samples.tsv":              head + "HILL-001\t<svg onload=alert(1)>\t1\t0.3\t0.01\t0.02\t.\t1\t0.1\t0.1\nMOOR-001\tMOOR\t1\t0.3\t0.01\t0.02\t.\t0\t0\t0\n",
+			"runs.tsv":                 "sample\tchrom\tstart\tend\tlength_bp\nHILL-001\t<b>chr1\t10\t5000000\t4999991\n",
+			"populations.tsv":          "population\tn_samples\tf_is\n<svg onload=alert(1)>\t1\t0.2\nMOOR\t1\t0.1\n",
+			"populations_pairwise.tsv": "population_a\tpopulation_b\tf_st\tf_st_se\tn_sites\n<svg onload=alert(1)>\tMOOR\t0.1\tNA\t9\n",
+		}, `&lt;svg onload=alert(1)&gt;`},
 		{"run.json with nulls and strings", map[string]string{
 			"samples.tsv": head + "HILL-001\tHILL\t1\t0.3\t0.01\t0.02\t.\t0\t0\t0\n",
 			"run.json":    `{"sites":{"lambda":null,"mean_f_site":"NA","qq":[]},"roh":{"covered_bp":null},"samples":{"excluded":[{"sample":"X","reason":"duplicate"}]},"extra":{"a":1}}`,
@@ -45,6 +51,16 @@ func TestDegenerateFolders(t *testing.T) {
 			must(t, err)
 			if !strings.Contains(string(b), tc.want) {
 				t.Errorf("report lacks %s", tc.want)
+			}
+			pages, _ := filepath.Glob(filepath.Join(dir, "samples", "*"))
+			for _, p := range append(pages, filepath.Join(dir, "report.html")) {
+				pb, err := os.ReadFile(p)
+				must(t, err)
+				for _, bad := range []string{"<svg onload", "<b>chr1"} {
+					if strings.Contains(string(pb), bad) {
+						t.Errorf("%s holds raw %q", filepath.Base(p), bad)
+					}
+				}
 			}
 		})
 	}
