@@ -239,7 +239,7 @@ func findIndex(path string) (string, error) {
 		// Whole seconds, as file copies within one second may land in
 		// either order.
 		if st.ModTime().Unix() < data.ModTime().Unix() {
-			return "", fmt.Errorf("%s: %w (index modified %s, data %s); rebuild the index",
+			return "", fmt.Errorf("%s: %w (index modified %s, data %s); rebuild the index, or if the data file was only copied, touch the index",
 				c, ErrStaleIndex, st.ModTime().UTC().Format("2006-01-02 15:04:05"), data.ModTime().UTC().Format("2006-01-02 15:04:05"))
 		}
 		return c, nil
@@ -280,6 +280,11 @@ func regionChunks(path string, h *Header, regs []Region) ([]bgzf.Chunk, error) {
 		return fmt.Errorf("%s: %w: %q (index has %s%s)", idxPath, ErrUnknownContig, chrom, strings.Join(show, ", "), more)
 	}
 
+	if bytes.HasPrefix(raw, []byte("TBI\x01")) || bytes.HasPrefix(raw, []byte("CSI")) {
+		if err := checkIndexCounts(raw); err != nil {
+			return nil, fmt.Errorf("%s: %w", idxPath, err)
+		}
+	}
 	var chunks []bgzf.Chunk
 	switch {
 	case bytes.HasPrefix(raw, []byte("TBI\x01")):
