@@ -40,13 +40,13 @@ func ParseChromosomes(s string) ([]Chromosome, error) {
 			return nil, fmt.Errorf("%w: chromosome %q: want name:length_bp[:length_cm]", ErrConfig, part)
 		}
 		bp, err := strconv.ParseFloat(f[1], 64)
-		if err != nil || bp < 1 || bp > 1e10 {
+		if err != nil || !(bp >= 1 && bp <= 1e10) { // also refuses NaN
 			return nil, fmt.Errorf("%w: chromosome %q: length_bp %q is not a positive number", ErrConfig, part, f[1])
 		}
 		c := Chromosome{Name: f[0], LengthBP: int64(bp), LengthCM: bp / 1e6}
 		if len(f) == 3 {
 			cm, err := strconv.ParseFloat(f[2], 64)
-			if err != nil || cm <= 0 {
+			if err != nil || !(cm > 0 && cm < 1e6) { // also refuses NaN and Inf
 				return nil, fmt.Errorf("%w: chromosome %q: length_cm %q is not a positive number", ErrConfig, part, f[2])
 			}
 			c.LengthCM = cm
