@@ -651,7 +651,7 @@ func (d *bcfDecoder) decode(rec []byte, index int64, b *Batch) (kept bool, reaso
 	// The same checks in the same order as vcfParser.parseLine.
 	reason = SkipReason(-1)
 	switch {
-	case d.regions != nil && !d.regions.overlaps(d.contigs[chrom], pos, pos+int64(len(ref))-1):
+	case d.regions != nil && !d.regions.overlaps(d.contigs[chrom], pos, regionEnd(pos, ref, d.opt.RegionsByStart)):
 		reason = SkipOutsideRegion
 	case nAllele > 2:
 		if lim := d.opt.Limits.MaxAlleles; lim > 0 && nAllele > lim {

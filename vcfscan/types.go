@@ -132,7 +132,12 @@ type Options struct {
 	// backwards within a chromosome or a chromosome's records are split
 	// into separate blocks; the error names the first out-of-order pair.
 	RequireSorted bool
-	Limits        Limits
+	// RegionsByStart keeps a record when its POS lies in a region rather
+	// than when its REF span overlaps one, so that adjacent regions never
+	// share a record (shards of one input; see regionEnd).
+	RegionsByStart bool
+
+	Limits Limits
 
 	chunkBytes int // size of the text chunks parsed in parallel; 0 = chunkTarget (tests shrink it)
 }

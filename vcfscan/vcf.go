@@ -402,7 +402,7 @@ func (p *vcfParser) parseLine(b *Batch, line []byte, lineNo int64) error {
 
 	reason := SkipReason(-1)
 	switch {
-	case p.regions != nil && !p.regions.overlaps(string(chrom), pos, pos+int64(len(ref))-1):
+	case p.regions != nil && !p.regions.overlaps(string(chrom), pos, regionEnd(pos, ref, p.opt.RegionsByStart)):
 		reason = SkipOutsideRegion
 	case bytes.IndexByte(alt, ',') >= 0:
 		if n := bytes.Count(alt, []byte{','}) + 2; n > p.opt.Limits.MaxAlleles {

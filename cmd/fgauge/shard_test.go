@@ -467,3 +467,21 @@ func TestPlanRunLocal(t *testing.T) {
 	}
 	assertSameOutputs(t, single, filepath.Join(planDir, "merged"))
 }
+
+// TestShardBoundaryRecord checks that a deletion whose REF spans the
+// boundary between two shards is read by one shard only: by the tabix
+// overlap rule both regions would hold it and merged record counts would
+// exceed the single pass's.
+func TestShardBoundaryRecord(t *testing.T) {
+	dir := t.TempDir()
+	input := "../../testdata/shard/boundary_indel.vcf.gz"
+	single := scanSingle(t, dir, input, nil)
+	merged := scanShards(t, dir, input, nil, shardSplit{"boundary", [][]string{{"1:1-1000"}, {"1:1001-"}}})
+	assertSameOutputs(t, single, merged)
+	info := summaryJSON(t, filepath.Join(merged, "run.json"))
+	rec := info["records"].(map[string]any)
+	// 20 SNPs and one deletion, written by hand (testdata/SOURCES.md).
+	if rec["read"] != 21.0 || rec["skipped"].(map[string]any)["indel_or_mnp"] != 1.0 {
+		t.Errorf("records %v, want 21 read and 1 indel", rec)
+	}
+}

@@ -477,7 +477,14 @@ func (f *shardFlags) identity(o *scanOptions) (*shardState, error) {
 // skipIfValid reports whether --skip-if-valid-state applies: the state
 // file exists, is intact, was written for the same input, options and
 // regions by this version, and its site tables are unchanged.
+//
+// It also sets what reading a shard needs: a record belongs to the region
+// holding its POS, so that adjacent shards never both count a deletion
+// that spans their boundary.
 func (f *shardFlags) skipIfValid(env *runEnv, o *scanOptions) (bool, error) {
+	if f.on() {
+		o.read.RegionsByStart = true
+	}
 	if !f.on() {
 		if f != nil && f.skipValid {
 			return false, usagef("--skip-if-valid-state needs --state-out")
