@@ -6,11 +6,14 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"fgauge/vcfscan"
 )
 
 // The .tbi is checked by htslib through python3-pysam (Debian package,
 // pysam 0.20): region fetches must return exactly the records a full scan
-// finds in the same intervals. Skipped where pysam is not installed.
+// finds in the same intervals, and the genotypes htslib decodes must match
+// the simulation's. Skipped where pysam is not installed.
 func TestTabixAgainstPysam(t *testing.T) {
 	py, err := exec.LookPath("/usr/bin/python3")
 	if err != nil {
@@ -43,14 +46,20 @@ for k in range(400):
     n = sum(1 for r in v.fetch(c, a, b))
     m = sum(1 for (cc, p) in allr if cc == c and a < p <= b)
     bad += n != m
-print(len(allr), bad)
+hets = 0
+for r in pysam.VariantFile(path):
+    for smp in r.samples.values():
+        gt = smp['GT']
+        if None not in gt and gt[0] != gt[1]:
+            hets += 1
+print(len(allr), bad, hets)
 `
 	out, err := exec.Command(py, "-c", script, path).CombinedOutput()
 	if err != nil {
 		t.Fatalf("pysam: %v\n%s", err, out)
 	}
 	f := strings.Fields(string(out))
-	if len(f) != 2 {
+	if len(f) != 3 {
 		t.Fatalf("pysam output %q", out)
 	}
 	n, _ := strconv.Atoi(f[0])
@@ -59,5 +68,18 @@ print(len(allr), bad)
 	}
 	if f[1] != "0" {
 		t.Errorf("%s of 400 region fetches disagree with a full scan", f[1])
+	}
+	// Heterozygous calls as htslib decodes them equal ours.
+	hets := 0
+	res.ForEachSite(func(s *Site) error {
+		for _, g := range s.GT {
+			if g == vcfscan.Het {
+				hets++
+			}
+		}
+		return nil
+	})
+	if f[2] != strconv.Itoa(hets) {
+		t.Errorf("pysam counts %s heterozygous calls, the simulation %d", f[2], hets)
 	}
 }
