@@ -24,6 +24,8 @@
 // Per-sample file names keep ASCII letters, digits, '-', '_' and '.', turn
 // everything else into '_', never contain "..", and get -2, -3, ... when two
 // names would collide (case-insensitively), in samples.tsv order.
+// samples/.pages lists the pages of the last run; the next run removes
+// those it no longer writes, so the folder always matches its index.
 //
 // The JSON twin of a sample page has: sample, population (when known),
 // page, values (every numeric column of the sample's row; null for NA),

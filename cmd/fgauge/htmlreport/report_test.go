@@ -243,8 +243,8 @@ func TestSamplePagesInsideFolder(t *testing.T) {
 	}
 	entries, err := os.ReadDir(filepath.Join(dir, "samples"))
 	must(t, err)
-	if len(entries) != 2*len(names)+1 {
-		t.Errorf("%d files in samples/, want %d", len(entries), 2*len(names)+1)
+	if len(entries) != 2*len(names)+2 { // pages, index.html, .pages
+		t.Errorf("%d files in samples/, want %d", len(entries), 2*len(names)+2)
 	}
 	idx, err := os.ReadFile(filepath.Join(dir, "samples", "index.html"))
 	must(t, err)
@@ -450,7 +450,7 @@ func TestPooledAndHighlight(t *testing.T) {
 	}
 	entries, err := os.ReadDir(filepath.Join(dir, "samples"))
 	must(t, err)
-	if len(entries) != 5 { // 2 pages, 2 json, index
+	if len(entries) != 6 { // 2 pages, 2 json, index, .pages
 		t.Errorf("%d files in samples/ with two highlighted samples (of %d)", len(entries), len(names))
 	}
 }
@@ -538,5 +538,26 @@ func TestSanitizeSVG(t *testing.T) {
 		if _, err := sanitizeSVG([]byte(bad)); err == nil {
 			t.Errorf("sanitizeSVG accepted %q", bad)
 		}
+	}
+}
+
+// TestOldPagesRemoved: a second run with fewer pages removes the pages it
+// wrote before and no longer writes, and leaves other files alone.
+func TestOldPagesRemoved(t *testing.T) {
+	dir := t.TempDir()
+	writeFixture(t, dir, fixtureOpts{n: 8, runs: true, sitesPerChr: 10})
+	must(t, Write(dir, Options{PerSample: true}))
+	mine := filepath.Join(dir, "samples", "notes.txt")
+	must(t, os.WriteFile(mine, []byte("kept"), 0o644))
+	must(t, Write(dir, Options{PerSample: true, Highlight: []string{"HILL-001"}}))
+	entries, err := os.ReadDir(filepath.Join(dir, "samples"))
+	must(t, err)
+	var names []string
+	for _, e := range entries {
+		names = append(names, e.Name())
+	}
+	want := ".pages HILL-001.html HILL-001.json index.html notes.txt"
+	if got := strings.Join(names, " "); got != want {
+		t.Errorf("samples/ holds %s, want %s", got, want)
 	}
 }

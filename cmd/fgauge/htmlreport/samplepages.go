@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 	"runtime"
 	"sort"
+	"strings"
 
 	"golang.org/x/sync/errgroup"
 	"gonum.org/v1/plot/plotter"
@@ -169,7 +170,42 @@ func writeSamplePages(outDir string, c *cohort, tpl *template.Template, opt Opti
 	if err := writeFileAtomic(filepath.Join(dir, "index.html"), buf.Bytes()); err != nil {
 		return nil, err
 	}
+	if err := replaceManifest(dir, which, st); err != nil {
+		return nil, err
+	}
 	return pages, nil
+}
+
+// manifestName lists the pages the last run wrote, so the next run can
+// remove those it no longer writes (a sample dropped from the cohort or
+// from --highlight) and the folder always matches its index.
+const manifestName = ".pages"
+
+// replaceManifest removes the pages listed by the previous run that this
+// run did not write, then records this run's pages. Only plain file names
+// ending in .html or .json are ever removed, and only inside dir.
+func replaceManifest(dir string, which []int, st []string) error {
+	now := map[string]bool{}
+	var list []string
+	for _, i := range which {
+		for _, ext := range []string{".html", ".json"} {
+			now[st[i]+ext] = true
+			list = append(list, st[i]+ext)
+		}
+	}
+	old, err := os.ReadFile(filepath.Join(dir, manifestName))
+	if err == nil {
+		for _, name := range strings.Split(string(old), "\n") {
+			if name == "" || now[name] || name != filepath.Base(name) || strings.HasPrefix(name, ".") ||
+				!(strings.HasSuffix(name, ".html") || strings.HasSuffix(name, ".json")) {
+				continue
+			}
+			if err := os.Remove(filepath.Join(dir, name)); err != nil && !os.IsNotExist(err) {
+				return fmt.Errorf("report: removing an old page: %w", err)
+			}
+		}
+	}
+	return writeFileAtomic(filepath.Join(dir, manifestName), []byte(strings.Join(list, "\n")+"\n"))
 }
 
 // jsonNum is a number that marshals NaN as null.
