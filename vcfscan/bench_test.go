@@ -151,3 +151,21 @@ func BenchmarkScanFile(b *testing.B) {
 		b.ReportMetric(float64(n), "records")
 	}
 }
+
+// BenchmarkBGZFWrite measures block compression at level 1, the level the
+// scan command uses for its tables (bytes/s of input).
+func BenchmarkBGZFWrite(b *testing.B) {
+	text := synthVCF(200, 5000)
+	b.SetBytes(int64(len(text)))
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		w := NewBGZFWriter(io.Discard, 1)
+		w.SetThreads(2)
+		if _, err := w.Write(text); err != nil {
+			b.Fatal(err)
+		}
+		if err := w.Close(); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
