@@ -89,3 +89,25 @@ func FuzzReadGeneticMap(f *testing.F) {
 		}
 	})
 }
+
+func FuzzParseDesignAndChromosomes(f *testing.F) {
+	f.Add("closed_herd:3:10:2", "1:1e6:1,2:5e5")
+	f.Add("selfing:4", "x:100")
+	f.Fuzz(func(t *testing.T, design, chroms string) {
+		if d, err := ParseDesign(design); err == nil {
+			if d.Generations < 1 || d.HerdSize < 1 || d.Sires < 1 {
+				t.Fatalf("accepted %q as %+v", design, d)
+			}
+			if back, err := ParseDesign(d.String()); err != nil || back != d {
+				t.Fatalf("%q -> %q does not round-trip: %v", design, d.String(), err)
+			}
+		}
+		if cs, err := ParseChromosomes(chroms); err == nil {
+			for _, c := range cs {
+				if c.Name == "" || c.LengthBP < 1 || !(c.LengthCM > 0) {
+					t.Fatalf("accepted %q as %+v", chroms, c)
+				}
+			}
+		}
+	})
+}

@@ -325,3 +325,28 @@ func TestSexConflicts(t *testing.T) {
 		t.Errorf("SexConflicts() =\n%s\nwant\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
 	}
 }
+
+func FuzzReadPairs(f *testing.F) {
+	f.Add("b\tg\n# c\ns b\n")
+	f.Add("id_a id_b\nzz b\n")
+	p := mustRead(f, "s\t0\t0\nd\t0\t0\nb\ts\td\ng\ts\td\n")
+	f.Fuzz(func(t *testing.T, text string) {
+		pairs, err := p.ReadPairs(strings.NewReader(text), "fuzz")
+		if err != nil {
+			var pe *Error
+			if !errors.As(err, &pe) {
+				t.Fatalf("error %v is not *Error", err)
+			}
+			return
+		}
+		co, err := p.Coancestry(pairs, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, c := range co {
+			if c < 0 || c > 1 {
+				t.Fatalf("coancestry %v out of [0, 1]", c)
+			}
+		}
+	})
+}
