@@ -136,3 +136,26 @@ func cpuSeconds() float64 {
 	}
 	return float64(ru.Utime.Nano()+ru.Stime.Nano()) / 1e9
 }
+
+// BenchmarkDetectLongChrom runs the HMM on one long chromosome (100
+// samples, 200,000 sites), where the per-site tables no longer fit in
+// cache: memory traffic, not arithmetic, sets the cost per call there.
+func BenchmarkDetectLongChrom(b *testing.B) {
+	const ns, nsites = 100, 200000
+	bs, fs, contigs := benchBatches(ns, nsites, false)
+	samples := sampleNames(ns)
+	b.ResetTimer()
+	c0 := cpuSeconds()
+	for it := 0; it < b.N; it++ {
+		c, _ := NewCollector(DefaultConfig(), samples, contigs)
+		for i, bt := range bs {
+			if err := c.AddBatch(bt, fs[i]); err != nil {
+				b.Fatal(err)
+			}
+		}
+		if _, err := c.Finish(); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric((cpuSeconds()-c0)*1e9/float64(b.N)/float64(ns*nsites), "cpu_ns/call")
+}

@@ -10,8 +10,8 @@ package roh
 // Memory bound for one chromosome of S sites and N samples while it is
 // collected: N*S/4 bytes of genotypes (up to twice that transiently while
 // the per-sample slices grow) + 3*N bytes per site with likelihoods + 20*S
-// bytes of per-site data; while it is detected, another 104*S bytes of
-// shared tables and 42*S bytes per worker (74*S with Fit). At most two
+// bytes of per-site data; while it is detected, another 48*S bytes of
+// shared tables and 42*S bytes per worker (50*S with Fit). At most two
 // chromosomes are held at once: the one being read and the one being
 // detected. BenchmarkCollect measures 0.36 heap bytes per sample-site at
 // 1,000 samples and 20,000 sites (0.25 packed, the rest slice growth and
@@ -30,8 +30,8 @@ type chromData struct {
 	stage  []uint64 // per sample, the calls of the current block of 32 sites (Collector only)
 
 	// built before detection, shared read-only by workers
-	emit  []float64 // 8 per site: see emissionRow
-	trans []float64 // 4 per site: see transitions
+	emit  []float32 // 8 per site: see emissionRow
+	trans []float64 // 1 per site: see switchWeights
 }
 
 func newChromData(id int, name string, length int64, nSamples int) *chromData {

@@ -280,13 +280,13 @@ func (c *Collector) prepare(ch *chromData, w *chromWork) {
 	if c.cfg.Method != MethodHMM {
 		return
 	}
-	ch.emit = make([]float64, 8*n)
+	ch.emit = make([]float32, 8*n)
 	for t := 0; t < n; t++ {
 		emissionRow(ch.emit[8*t:8*t+8], ch.freq[t], c.cfg.GenotypeError)
 	}
 	if !c.cfg.Fit {
-		ch.trans = make([]float64, 4*n)
-		transitions(ch.trans, ch.cm, c.cfg.AutozygousPrior, c.cfg.Rate)
+		ch.trans = make([]float64, n)
+		switchWeights(ch.trans, ch.cm, c.cfg.Rate)
 	}
 }
 
@@ -371,15 +371,15 @@ func (c *Collector) detect(sc *hmmScratch, j job) {
 		if hasPL || c.cfg.Fit {
 			sc.fillEmissions(ch, s)
 		}
-		tr := ch.trans
+		u, f := ch.trans, c.cfg.AutozygousPrior
 		if c.cfg.Fit {
-			f, a := sc.fitSample(ch.cm, c.cfg.AutozygousPrior, c.cfg.Rate, c.cfg.FitIterations)
-			j.w.fitF[s], j.w.fitRate[s] = f, a
-			transitions(sc.tr, ch.cm, f, a)
-			tr = sc.tr
+			fa, a := sc.fitSample(ch.cm, c.cfg.AutozygousPrior, c.cfg.Rate, c.cfg.FitIterations)
+			j.w.fitF[s], j.w.fitRate[s] = fa, a
+			switchWeights(sc.tr, ch.cm, a)
+			u, f = sc.tr, fa
 		}
-		sc.forwardViterbi(ch, tr, !hasPL && !c.cfg.Fit)
-		sc.backward(tr, ch.cm, nil)
+		sc.forwardViterbi(ch, u, f, !hasPL && !c.cfg.Fit)
+		sc.backward(u, f, ch.cm, nil)
 		j.w.perSample[s] = hmmRuns(ch, s, sc.code, sc.path, sc.post, maxGap)
 	}
 }

@@ -20,7 +20,7 @@ const (
 // other state it follows Hardy-Weinberg proportions. A missing call, and
 // every call at a site of unknown frequency, has probability 1 in both
 // states, so it is uninformative.
-func emissionRow(row []float64, p, e float64) {
+func emissionRow(row []float32, p, e float64) {
 	if p != p { // NaN: unknown frequency
 		for i := range row[:8] {
 			row[i] = 1
@@ -36,44 +36,40 @@ func emissionRow(row []float64, p, e float64) {
 	q := 1 - p
 	h := e / 2
 	// autozygous
-	row[0] = q*(1-e) + p*h
-	row[1] = h
-	row[2] = p*(1-e) + q*h
+	row[0] = float32(q*(1-e) + p*h)
+	row[1] = float32(h)
+	row[2] = float32(p*(1-e) + q*h)
 	row[3] = 1
 	// Hardy-Weinberg
 	rr, ra, aa := q*q, 2*p*q, p*p
-	row[4] = rr*(1-e) + (ra+aa)*h
-	row[5] = ra*(1-e) + (rr+aa)*h
-	row[6] = aa*(1-e) + (rr+ra)*h
+	row[4] = float32(rr*(1-e) + (ra+aa)*h)
+	row[5] = float32(ra*(1-e) + (rr+aa)*h)
+	row[6] = float32(aa*(1-e) + (rr+ra)*h)
 	row[7] = 1
 }
 
-// transitions fills, for each interval t>=1 (between sites t-1 and t), the
-// probabilities A->A, A->N, N->A, N->N of the continuous-time two-state
-// chain with stationary autozygous probability f and rate a per Morgan:
-// with r = exp(-a*d) over d Morgans, P(A->A) = r + (1-r) f and
-// P(N->A) = (1-r) f. This is the chain of Leutenegger et al. (2003); we
-// take d from a genetic map or a constant cM/Mb instead of their marker
-// map, and a is either fixed or fitted by EM (they maximise the
-// likelihood numerically). Entries for t=0 hold the stationary
-// distribution.
-func transitions(tr []float64, cm []float64, f, a float64) {
+// switchWeights fills, for each interval t>=1 (between sites t-1 and t),
+// u[t] = 1 - exp(-a*d) for the d Morgans between the sites (u[0] is 0).
+// With u and the stationary autozygous probability f, the continuous-time
+// two-state chain of Leutenegger et al. (2003) moves A->N with probability
+// u*(1-f) and N->A with u*f, and stays otherwise; storing only u (8 bytes
+// a site, shared by all samples) keeps memory traffic low, and the four
+// transition probabilities cost two multiplications per step. We take d
+// from a genetic map or a constant cM/Mb instead of their marker map, and
+// a is either fixed or fitted by EM (they maximise the likelihood
+// numerically).
+func switchWeights(u []float64, cm []float64, a float64) {
 	n := len(cm)
 	if n == 0 {
 		return
 	}
-	tr[0], tr[1], tr[2], tr[3] = f, 1-f, f, 1-f
+	u[0] = 0
 	for t := 1; t < n; t++ {
 		d := (cm[t] - cm[t-1]) / 100
 		if d < 0 {
 			d = 0
 		}
-		r := math.Exp(-a * d)
-		k := tr[4*t : 4*t+4 : 4*t+4]
-		k[0] = r + (1-r)*f
-		k[1] = (1 - r) * (1 - f)
-		k[2] = (1 - r) * f
-		k[3] = r + (1-r)*(1-f)
+		u[t] = -math.Expm1(-a * d)
 	}
 }
 
@@ -88,7 +84,7 @@ var plLinear = func() (t [256]float64) {
 // hmmScratch holds one worker's per-site buffers, reused across samples
 // and chromosomes: 2 emissions, 2 forward values, 1 posterior, 1 path
 // byte and 1 genotype byte per site (42 bytes per site), plus the
-// per-sample transitions when fitting (32 bytes per site).
+// per-sample switch weights when fitting (8 bytes per site).
 type hmmScratch struct {
 	code  []uint8
 	em    []float64
@@ -125,12 +121,12 @@ func (w *hmmScratch) fillEmissions(ch *chromData, s int) {
 		row := tab[8*t : 8*t+8 : 8*t+8]
 		if k := ch.plSite[t]; pl != nil && k >= 0 {
 			l0, l1, l2 := plLinear[pl[3*k]], plLinear[pl[3*k+1]], plLinear[pl[3*k+2]]
-			em[2*t] = l0*row[0] + l1*row[1] + l2*row[2]
-			em[2*t+1] = l0*row[4] + l1*row[5] + l2*row[6]
+			em[2*t] = l0*float64(row[0]) + l1*float64(row[1]) + l2*float64(row[2])
+			em[2*t+1] = l0*float64(row[4]) + l1*float64(row[5]) + l2*float64(row[6])
 			continue
 		}
-		em[2*t] = row[g]
-		em[2*t+1] = row[4+g]
+		em[2*t] = float64(row[g])
+		em[2*t+1] = float64(row[4+g])
 	}
 }
 
@@ -144,18 +140,19 @@ const rescaleEvery = 8
 // forward runs the forward pass, storing per site the forward values
 // (scaled by an arbitrary positive factor per site) in w.alpha. It returns
 // the log-likelihood when wantLL is set (else 0).
-func (w *hmmScratch) forward(tr []float64, wantLL bool) float64 {
+func (w *hmmScratch) forward(u []float64, f float64, wantLL bool) float64 {
 	n := len(w.em) / 2
 	w.alpha = grow(w.alpha, 2*n)
 	em, al := w.em, w.alpha
-	a := tr[0] * em[0]
-	b := tr[1] * em[1]
+	u = u[:n]
+	a := f * em[0]
+	b := (1 - f) * em[1]
 	al[0], al[1] = a, b
 	ll := 0.0
 	for t := 1; t < n; t++ {
-		k := tr[4*t : 4*t+4 : 4*t+4]
+		an, na := u[t]*(1-f), u[t]*f
 		e := em[2*t : 2*t+2 : 2*t+2]
-		a, b = (a*k[0]+b*k[2])*e[0], (a*k[1]+b*k[3])*e[1]
+		a, b = (a*(1-an)+b*na)*e[0], (a*an+b*(1-na))*e[1]
 		if t%rescaleEvery == 0 {
 			c := a + b
 			inv := 1 / c
@@ -179,18 +176,19 @@ func (w *hmmScratch) forward(tr []float64, wantLL bool) float64 {
 // chromosome the emissions are looked up from the genotype codes in the
 // same sweep and stored for the backward pass; otherwise fillEmissions
 // must have run first and lookup is false.
-func (w *hmmScratch) forwardViterbi(ch *chromData, tr []float64, lookup bool) {
+func (w *hmmScratch) forwardViterbi(ch *chromData, u []float64, f float64, lookup bool) {
 	n := len(w.code)
 	w.alpha = grow(w.alpha, 2*n)
 	w.path = grow(w.path, n)
 	w.em = grow(w.em, 2*n)
 	em, al, bp, code, tab := w.em, w.alpha, w.path, w.code, ch.emit
+	u = u[:n]
 	if lookup {
 		g := code[0]
-		em[0], em[1] = tab[g], tab[4+g]
+		em[0], em[1] = float64(tab[g]), float64(tab[4+g])
 	}
-	a := tr[0] * em[0]
-	b := tr[1] * em[1]
+	a := f * em[0]
+	b := (1 - f) * em[1]
 	al[0], al[1] = a, b
 	va, vn := a, b
 	bp[0] = 0
@@ -199,20 +197,21 @@ func (w *hmmScratch) forwardViterbi(ch *chromData, tr []float64, lookup bool) {
 		if lookup {
 			row := tab[8*t : 8*t+8 : 8*t+8]
 			g := code[t] & 3
-			e[0], e[1] = row[g], row[4+g]
+			e[0], e[1] = float64(row[g]), float64(row[4+g])
 		}
-		k := tr[4*t : 4*t+4 : 4*t+4]
-		a, b = (a*k[0]+b*k[2])*e[0], (a*k[1]+b*k[3])*e[1]
-		xa, xn := va*k[0], vn*k[2]
-		ya, yn := va*k[1], vn*k[3]
-		var f uint8
+		an, na := u[t]*(1-f), u[t]*f
+		aa, nn := 1-an, 1-na
+		a, b = (a*aa+b*na)*e[0], (a*an+b*nn)*e[1]
+		xa, xn := va*aa, vn*na
+		ya, yn := va*an, vn*nn
+		var fl uint8
 		if xn >= xa {
 			xa = xn
-			f = 1 // A came from N
+			fl = 1 // A came from N
 		}
 		if ya > yn {
 			yn = ya
-			f |= 2 // N came from A
+			fl |= 2 // N came from A
 		}
 		va, vn = xa*e[0], yn*e[1]
 		if t%rescaleEvery == 0 {
@@ -222,20 +221,20 @@ func (w *hmmScratch) forwardViterbi(ch *chromData, tr []float64, lookup bool) {
 			va, vn = va*inv, vn*inv
 		}
 		al[2*t], al[2*t+1] = a, b
-		bp[t] = f
+		bp[t] = fl
 	}
 	st := uint8(stA)
 	if vn >= va {
 		st = stN
 	}
 	for t := n - 1; t >= 0; t-- {
-		f := bp[t]
+		fl := bp[t]
 		bp[t] = st
 		if st == stA {
-			if f&1 != 0 {
+			if fl&1 != 0 {
 				st = stN
 			}
-		} else if f&2 != 0 {
+		} else if fl&2 != 0 {
 			st = stA
 		}
 	}
@@ -250,14 +249,16 @@ type emStats struct {
 // backward runs the backward pass after forward, writing the posterior
 // probability of the autozygous state per site into w.post and, when st
 // is not nil, accumulating EM statistics over intervals of cm.
-func (w *hmmScratch) backward(tr []float64, cm []float64, st *emStats) {
+func (w *hmmScratch) backward(u []float64, f float64, cm []float64, st *emStats) {
 	n := len(w.em) / 2
 	w.post = grow(w.post, n)
 	em, al, post := w.em, w.alpha, w.post
+	u = u[:n]
 	ba, bn := 1.0, 1.0
 	post[n-1] = al[2*n-2] / (al[2*n-2] + al[2*n-1])
 	for t := n - 1; t >= 1; t-- {
-		k := tr[4*t : 4*t+4 : 4*t+4]
+		an, na := u[t]*(1-f), u[t]*f
+		k := [4]float64{1 - an, an, na, 1 - na}
 		ea, en := em[2*t]*ba, em[2*t+1]*bn
 		pa, pn := al[2*t-2], al[2*t-1]
 		if st != nil {
@@ -289,14 +290,14 @@ func (w *hmmScratch) backward(tr []float64, cm []float64, st *emStats) {
 // finite when no switch is expected. Returns the fitted f and a.
 func (w *hmmScratch) fitSample(cm []float64, f0, a0 float64, iters int) (float64, float64) {
 	n := len(cm)
-	w.tr = grow(w.tr, 4*n)
+	w.tr = grow(w.tr, n)
 	f, a := f0, a0
 	prev := math.Inf(-1)
 	for it := 0; it < iters; it++ {
-		transitions(w.tr, cm, f, a)
-		ll := w.forward(w.tr, true)
+		switchWeights(w.tr, cm, a)
+		ll := w.forward(w.tr, f, true)
 		var st emStats
-		w.backward(w.tr, cm, &st)
+		w.backward(w.tr, f, cm, &st)
 		tot := st.timeA + st.timeN
 		if !(tot > 0) {
 			break
