@@ -173,30 +173,50 @@ func scatterPanel(title, xl, yl string, xs, ys []float64, rows []int, names []st
 	return p, n
 }
 
-// addLabels puts sample names beside the given rows.
+// addLabels puts sample names beside the given rows: to the right of
+// points in the left two thirds of the x range, to the left of the others,
+// so labels stay inside the plot.
 func addLabels(p *plot.Plot, xs, ys []float64, rows []int, names []string) {
-	var l plotter.XYLabels
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for i := range xs {
+		if !math.IsNaN(xs[i]) && !math.IsNaN(ys[i]) {
+			lo, hi = math.Min(lo, xs[i]), math.Max(hi, xs[i])
+		}
+	}
+	var right, left plotter.XYLabels
 	for _, r := range rows {
 		if math.IsNaN(xs[r]) || math.IsNaN(ys[r]) {
 			continue
 		}
+		l := &right
+		if hi > lo && xs[r] > lo+(hi-lo)*2/3 {
+			l = &left
+		}
 		l.XYs = append(l.XYs, plotter.XY{X: xs[r], Y: ys[r]})
 		l.Labels = append(l.Labels, clip(names[r], 16))
 	}
-	if len(l.XYs) == 0 {
-		return
-	}
-	lab, err := plotter.NewLabels(l)
-	if err != nil {
-		return
-	}
-	for i := range lab.TextStyle {
-		lab.TextStyle[i].Color = colBrick
-		lab.TextStyle[i].XAlign = draw.XLeft
-		lab.TextStyle[i].Font.Size = fontMark
+	for k, l := range []plotter.XYLabels{right, left} {
+		if len(l.XYs) == 0 {
+			continue
+		}
+		lab, err := plotter.NewLabels(l)
+		if err != nil {
+			continue
+		}
+		for i := range lab.TextStyle {
+			lab.TextStyle[i].Color = colBrick
+			lab.TextStyle[i].Font.Size = fontMark
+			lab.TextStyle[i].XAlign = draw.XLeft
+			if k == 1 {
+				lab.TextStyle[i].XAlign = draw.XRight
+			}
+		}
 		lab.Offset = vg.Point{X: vg.Points(3), Y: vg.Points(2)}
+		if k == 1 {
+			lab.Offset.X = -vg.Points(3)
+		}
+		p.Add(lab)
 	}
-	p.Add(lab)
 }
 
 // clip shortens s to at most n runes, marking the cut with an ellipsis.
