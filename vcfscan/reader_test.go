@@ -187,3 +187,33 @@ func TestCountsMatchCyvcf2(t *testing.T) {
 		}
 	}
 }
+
+// TestCallCodesMatchCyvcf2 compares every call code, haploid ones
+// included, with testdata/expected/*.calls.tsv, written by python3-cyvcf2
+// 0.30.18 with testdata/tools/call_codes.py from the edge files (any
+// FILTER; any missing allele or more than two alleles => missing).
+func TestCallCodesMatchCyvcf2(t *testing.T) {
+	for _, name := range []string{"test-haploidX", "test-genotypes"} {
+		want := readTSV(t, filepath.Join("..", "testdata", "expected", name+".calls.tsv"))
+		for _, general := range []bool{false, true} {
+			res, err := readFile(t, filepath.Join("..", "testdata", "edge", name+".vcf"),
+				Options{IncludeFiltered: true, WantPL: general, Threads: 2})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(res.sites) != len(want) {
+				t.Fatalf("%s: %d sites, cyvcf2 %d", name, len(res.sites), len(want))
+			}
+			ns := len(res.samples)
+			for i, w := range want {
+				codes := make([]string, ns)
+				for j, g := range res.gts[i*ns : (i+1)*ns] {
+					codes[j] = strconv.Itoa(int(g))
+				}
+				if got := strings.Join(codes, ","); res.sites[i].chrom != w[0] || strconv.FormatInt(res.sites[i].pos, 10) != w[1] || got != w[2] {
+					t.Fatalf("%s row %d (general=%v): %s:%d %s, cyvcf2 %s:%s %s", name, i, general, res.sites[i].chrom, res.sites[i].pos, got, w[0], w[1], w[2])
+				}
+			}
+		}
+	}
+}
