@@ -218,6 +218,16 @@ func corpus(bcfPath string) ([]file, error) {
 		mut(func(b []byte) []byte { binary.LittleEndian.PutUint32(b[5:9], 200_000_000); return b }))
 	add("bcf_record_length_lie.bcf", "first BCF record claims l_shared of 200,000,000 bytes",
 		mut(func(b []byte) []byte { binary.LittleEndian.PutUint32(b[firstRec:], 200_000_000); return b }))
+	add("bcf_sample_count_mismatch.bcf", "first BCF record says it has one more sample than the header",
+		mut(func(b []byte) []byte {
+			at := firstRec + 8 + 20 // n_sample: 24 bits after CHROM, POS, rlen, QUAL, n_info, n_allele
+			n := uint32(b[at]) | uint32(b[at+1])<<8 | uint32(b[at+2])<<16
+			n++
+			b[at], b[at+1], b[at+2] = byte(n), byte(n>>8), byte(n>>16)
+			return b
+		}))
+	add("bcf_negative_pos.bcf", "first BCF record has POS -5 (0-based -6)",
+		mut(func(b []byte) []byte { binary.LittleEndian.PutUint32(b[firstRec+8+4:], uint32(0xfffffffa)); return b }))
 	add("bcf_plain_gzip.bcf", "BCF compressed as one plain gzip member instead of BGZF", gzipBytes(bcfText))
 
 	// Index cases: a valid BGZF VCF whose index points past its end, and
