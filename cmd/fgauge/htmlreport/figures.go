@@ -213,6 +213,18 @@ func (c *cohort) figRunLengths() (figure, error) {
 	p.Add(histFromCounts(bins, colTeal))
 	f.Points, f.Total = nbins, len(c.d.runLenMb)
 	f.Caption = fmt.Sprintf("%d runs in %d bins of equal width on a logarithmic length axis (each bin spans a factor of %.3g).", len(logs), nbins, math.Pow(10, w))
+	if mc := c.d.info.ROH.MinCountedBP; mc != nil && float64(*mc) > 0 {
+		top := 0.0
+		for _, b := range bins {
+			top = math.Max(top, b.Weight)
+		}
+		x := math.Log10(float64(*mc) / 1e6)
+		l, _ := plotter.NewLine(plotter.XYs{{X: x, Y: 0}, {X: x, Y: top}})
+		l.Color = colBrick
+		l.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
+		p.Add(l)
+		f.Caption += fmt.Sprintf(" Red dashed line: %s Mb; shorter runs are listed in runs.tsv but not counted in F_ROH.", fmtG(float64(*mc)/1e6))
+	}
 	var err error
 	f.SVG, err = renderPlot(p, plotW, plotH*0.6)
 	return f, err
@@ -552,7 +564,23 @@ func (c *cohort) figQuality() (figure, error) {
 		lab = lab[:maxLabels]
 	}
 	addLabels(p, xs, ys, lab, c.names)
-	f.Caption = fmt.Sprintf("Circles: samples without a flag; red triangles: the %d flagged samples (up to %d of the most unusual labelled). Low call rate sits to the left; contamination or mixed samples tend to sit high, samples from another population or truly inbred ones low.", len(flagged), maxLabels)
+	var band string
+	if m, sd, ok := meanSD(ys); ok && sd > 0 {
+		lo, hi := math.Inf(1), math.Inf(-1)
+		for _, x := range xs {
+			if !math.IsNaN(x) {
+				lo, hi = math.Min(lo, x), math.Max(hi, x)
+			}
+		}
+		for _, y := range []float64{m - 3*sd, m + 3*sd} {
+			l, _ := plotter.NewLine(plotter.XYs{{X: lo, Y: y}, {X: hi, Y: y}})
+			l.Color = colFaint
+			l.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
+			p.Add(l)
+		}
+		band = " Dashed lines: cohort mean of the heterozygous share ± 3 standard deviations, the band outside which the scan flags het_rate_outlier."
+	}
+	f.Caption = fmt.Sprintf("Circles: samples without a flag; red triangles: the %d flagged samples (up to %d of the most unusual labelled). Low call rate sits to the left; contamination or mixed samples tend to sit high, samples from another population or truly inbred ones low.", len(flagged), maxLabels) + band
 	if f.Points < f.Total {
 		f.Note = fmt.Sprintf("%d of %d samples drawn: every flagged sample (up to %d) and an even subsample of the rest.", f.Points, f.Total, maxScatterPoints)
 	}

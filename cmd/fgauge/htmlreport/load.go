@@ -82,6 +82,7 @@ type runInfo struct {
 		CoveredSource   string           `json:"covered_source"`
 		AutosomesUsed   []string         `json:"autosomes_used"`
 		ExcludedContigs map[string]int64 `json:"excluded_contigs"`
+		MinCountedBP    *flexFloat       `json:"min_counted_bp"`
 	} `json:"roh"`
 	Warnings    map[string]int64 `json:"warnings"`
 	WallSeconds *flexFloat       `json:"wall_seconds"`

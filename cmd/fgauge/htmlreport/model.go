@@ -304,3 +304,26 @@ func fmtInt(n int64) string {
 	}
 	return b.String()
 }
+
+// meanSD is the mean and sample standard deviation (n-1 denominator) of
+// the non-NaN values; ok is false with fewer than three, as in the scan's
+// het_rate_outlier rule.
+func meanSD(xs []float64) (mean, sd float64, ok bool) {
+	n := 0
+	for _, x := range xs {
+		if !math.IsNaN(x) {
+			n++
+			mean += x
+		}
+	}
+	if n < 3 {
+		return 0, 0, false
+	}
+	mean /= float64(n)
+	for _, x := range xs {
+		if !math.IsNaN(x) {
+			sd += (x - mean) * (x - mean)
+		}
+	}
+	return mean, math.Sqrt(sd / float64(n-1)), true
+}
