@@ -45,13 +45,14 @@ in the source) times a safety factor of 4, at least 15 minutes.
 `
 
 // costPerSiteSample is the measured CPU time of 'fgauge scan' per site
-// and sample with the default options (statistics and HMM detection),
-// 2.2e-8 s = 22 ns: bench/shards on a simulated cohort of 400 samples and
-// about 16,000 sites on a 2-core machine (0.14 s CPU for 6.5 million
-// calls). The memory estimate is 1 byte per site and sample for the
-// chromosome being detected plus 0.25 for the one being read, plus 200 MB.
+// and sample with the default options (all statistics and HMM detection):
+// 52 ns, from bench/shards (1,000 samples x 50,000 synthetic sites of
+// bench/gen on 4 chromosomes, 2.61 s of CPU for 50 million calls on a
+// 2-core machine). Its peak RSS there, 220 MB, is what the memory estimate
+// (200 MB plus 1.25 bytes per site and sample: the packed genotypes of the
+// chromosome being read and the tables of the one being detected) covers.
 const (
-	costPerSiteSample = 22e-9
+	costPerSiteSample = 52e-9
 	timeSafety        = 4.0
 	minTaskSeconds    = 15 * 60
 	memBaseMB         = 200

@@ -3,10 +3,12 @@ package main
 import (
 	"bytes"
 	"compress/gzip"
+	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -14,7 +16,9 @@ import (
 	"strings"
 	"testing"
 
+	"fgauge/roh"
 	"fgauge/roh/simulate"
+	"fgauge/stats"
 )
 
 // shardSplit is one way of cutting an input into shards: the --region
@@ -484,4 +488,108 @@ func TestShardBoundaryRecord(t *testing.T) {
 	if rec["read"] != 21.0 || rec["skipped"].(map[string]any)["indel_or_mnp"] != 1.0 {
 		t.Errorf("records %v, want 21 read and 1 indel", rec)
 	}
+}
+
+// benchStates writes n shard states of nSamples samples each: one real
+// state from a scan of an invented cohort (random genotypes, 2,000 sites),
+// copied n times as n different whole chromosomes.
+func benchStates(b *testing.B, dir string, n, nSamples int) []string {
+	b.Helper()
+	var sb strings.Builder
+	sb.WriteString("##fileformat=VCFv4.2\n##contig=<ID=1,length=10000000>\n##FORMAT=<ID=GT,Number=1,Type=String,Description=\"Genotype\">\n")
+	sb.WriteString("#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT")
+	for s := 0; s < nSamples; s++ {
+		fmt.Fprintf(&sb, "\tanimal_%04d", s)
+	}
+	sb.WriteByte('\n')
+	gts := []string{"0/0", "0/1", "1/1", "./."}
+	x := uint64(12345)
+	for site := 0; site < 2000; site++ {
+		fmt.Fprintf(&sb, "1\t%d\t.\tA\tG\t.\tPASS\t.\tGT", 1000+site*4000)
+		for s := 0; s < nSamples; s++ {
+			x ^= x << 13
+			x ^= x >> 7
+			x ^= x << 17
+			g := x % 16
+			switch {
+			case g < 7:
+				g = 0
+			case g < 12:
+				g = 1
+			case g < 15:
+				g = 2
+			default:
+				g = 3
+			}
+			sb.WriteString("\t" + gts[g])
+		}
+		sb.WriteByte('\n')
+	}
+	input := filepath.Join(dir, "cohort.vcf")
+	if err := os.WriteFile(input, []byte(sb.String()), 0o644); err != nil {
+		b.Fatal(err)
+	}
+	var out, errb bytes.Buffer
+	env := &runEnv{stdout: &out, stderr: &errb, argv: []string{"fgauge"}}
+	statePath := filepath.Join(dir, "base.state")
+	if code := run(context.Background(), env, []string{"scan", input, "-o", filepath.Join(dir, "base"), "--state-out", statePath, "--no-progress"}); code != exitOK {
+		b.Fatalf("scan: %s", errb.String())
+	}
+	base, err := readStateFile(statePath)
+	if err != nil {
+		b.Fatal(err)
+	}
+	sites, _ := filepath.Abs(siteTablePath(statePath, base.SitesFile))
+	names := make([]string, n)
+	for i := range names {
+		names[i] = fmt.Sprint(i + 1)
+	}
+	blocks := base.Totals.Blocks
+	chrom := base.ROH.Chroms[0]
+	var paths []string
+	for i := 0; i < n; i++ {
+		st := *base
+		st.WholeFile = false
+		st.Regions = []stateRegion{{Chrom: names[i], Start: 1, End: math.MaxInt64}}
+		st.ContigOrder = names
+		st.SitesFile = sites
+		t := *base.Totals
+		t.Blocks = map[stats.BlockKey]*stats.BlockAcc{}
+		for k, v := range blocks {
+			t.Blocks[stats.BlockKey{Chrom: names[i], Index: k.Index}] = v
+		}
+		st.Totals = &t
+		r := *base.ROH
+		c := chrom
+		c.Name = names[i]
+		r.Chroms = []roh.ChromResult{c}
+		st.ROH = &r
+		p := filepath.Join(dir, fmt.Sprintf("shard_%03d.state", i))
+		if err := writeStateFile(p, &st); err != nil {
+			b.Fatal(err)
+		}
+		paths = append(paths, p)
+	}
+	return paths
+}
+
+// BenchmarkMerge100States merges 100 shard states of 1,000 samples
+// (statistics of 2,000 sites and the runs of one chromosome each; site
+// tables joined). Target: seconds.
+func BenchmarkMerge100States(b *testing.B) {
+	dir := b.TempDir()
+	paths := benchStates(b, dir, 100, 1000)
+	var size int64
+	for _, p := range paths {
+		st, _ := os.Stat(p)
+		size += st.Size()
+	}
+	env := &runEnv{stdout: io.Discard, stderr: io.Discard, argv: []string{"fgauge", "merge"}}
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if err := mergeStates(context.Background(), env, paths, filepath.Join(dir, "merged"), true, 2); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(size)/float64(len(paths)), "state_bytes")
 }
