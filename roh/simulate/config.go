@@ -16,6 +16,10 @@ import (
 // ErrConfig is wrapped by errors about an invalid Config or design string.
 var ErrConfig = errors.New("invalid simulation settings")
 
+// MaxSites bounds the expected number of sites of one simulation (genome
+// length / site spacing), which sets its memory use.
+const MaxSites = 20_000_000
+
 // Chromosome is one simulated chromosome: physical length in bp and
 // genetic length in centiMorgans (ignored when a GeneticMap covers it).
 type Chromosome struct {
@@ -148,6 +152,14 @@ func (c *Config) normalize() error {
 		return fmt.Errorf("%w: minimum MAF %v outside [0, 0.5)", ErrConfig, c.MinMAF)
 	case c.Depth < 0 || c.ReadError < 0 || c.ReadError >= 0.5:
 		return fmt.Errorf("%w: depth must be >= 0 and read error in [0, 0.5)", ErrConfig)
+	}
+	var genome float64
+	for _, ch := range c.Chromosomes {
+		genome += float64(ch.LengthBP)
+	}
+	if !c.NoSites && genome/c.SiteSpacing > MaxSites {
+		return fmt.Errorf("%w: about %.3g sites (genome %.4g bp / spacing %v bp) exceed the limit of %d; raise the site spacing",
+			ErrConfig, genome/c.SiteSpacing, genome, c.SiteSpacing, MaxSites)
 	}
 	seen := map[string]bool{}
 	for i := range c.Chromosomes {

@@ -2,6 +2,7 @@ package simulate
 
 import (
 	"bytes"
+	"errors"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -461,5 +462,25 @@ func TestGeneDropClosedHerd(t *testing.T) {
 	}
 	if math.Abs(mp-mr) > 0.01 {
 		t.Errorf("mean realized %v vs mean pedigree F %v (tolerance 0.01)", mr, mp)
+	}
+}
+
+func TestConfigErrors(t *testing.T) {
+	fs := []Design{{Kind: "full_sib"}}
+	tests := []struct {
+		name string
+		cfg  Config
+	}{
+		{"no pedigree", Config{}},
+		{"too many sites", Config{Designs: fs, SiteSpacing: 1}},
+		{"bad error rate", Config{Designs: fs, GenotypeError: 2}},
+		{"duplicate chromosome", Config{Designs: fs, Chromosomes: []Chromosome{{"1", 1e6, 1}, {"1", 1e6, 1}}}},
+		{"zero genetic length", Config{Designs: fs, Chromosomes: []Chromosome{{"1", 1e6, 0}}}},
+		{"unknown design", Config{Designs: []Design{{Kind: "cloning"}}}},
+	}
+	for _, tc := range tests {
+		if _, err := Run(tc.cfg); !errors.Is(err, ErrConfig) {
+			t.Errorf("%s: err = %v, want ErrConfig", tc.name, err)
+		}
 	}
 }
