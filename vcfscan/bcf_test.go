@@ -8,9 +8,11 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"runtime"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -488,5 +490,27 @@ func TestReadBCFRecordClaim(t *testing.T) {
 	}
 	if grew := ms1.TotalAlloc - ms0.TotalAlloc; grew > 8<<20 {
 		t.Errorf("allocated %d bytes for a 100-byte input", grew)
+	}
+}
+
+// TestParseNumMatchesParseFloat checks the number parser shared by the VCF
+// and BCF paths against strconv.ParseFloat (correctly rounded, Go standard
+// library): BCF floats go through their shortest decimal and this parser,
+// so any rounding error would show as a likelihood off by one.
+func TestParseNumMatchesParseFloat(t *testing.T) {
+	cases := []string{"2.95", "-2.95", "0.3", "0", "-0", "00012.5000", "999999999999999",
+		"0.000000000000001", "1234567890123456", "1.", ".5", "1e5", "-0.45", "0.0238095", "nan", "-", "1,2"}
+	r := rand.New(rand.NewPCG(1, 2))
+	for i := 0; i < 20000; i++ {
+		cases = append(cases,
+			strconv.FormatFloat(r.Float64()*1000-500, 'f', r.IntN(8), 64),
+			strconv.FormatFloat(float64(float32(r.NormFloat64())), 'g', -1, 32))
+	}
+	for _, s := range cases {
+		got, ok := parseNum([]byte(s))
+		want, err := strconv.ParseFloat(s, 64)
+		if ok != (err == nil) || (ok && got != want && !(math.IsNaN(got) && math.IsNaN(want))) {
+			t.Fatalf("parseNum(%q) = %v, %v; strconv.ParseFloat gives %v, %v", s, got, ok, want, err)
+		}
 	}
 }

@@ -10,6 +10,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -514,5 +515,51 @@ func TestBCFBatchCap(t *testing.T) {
 	}
 	if recs != nRecs || batches < 3 {
 		t.Errorf("%d records in %d batches, want %d in at least 3", recs, batches, nRecs)
+	}
+}
+
+// TestBCFMatchesHtslib compares our decoding of three BCF twins with
+// htslib's: testdata/bcf/*.htslib_calls.tsv hold the genotypes and PL/GL
+// values python3-pysam 0.20.0 (htslib) reads from the same BCF files,
+// mapped to our call codes and phred triples by
+// testdata/tools/make_bcf_twins.py (see geno_code and phred there).
+func TestBCFMatchesHtslib(t *testing.T) {
+	for _, stem := range []string{"cohort189", "test-haploidX", "gl_chr1"} {
+		got := bcfScanFile(t, "../testdata/bcf/"+stem+".bcf", Options{IncludeFiltered: true, WantPL: true})
+		raw, err := os.ReadFile("../testdata/bcf/" + stem + ".htslib_calls.tsv")
+		if err != nil {
+			t.Fatal(err)
+		}
+		lines := strings.Split(strings.TrimSpace(string(raw)), "\n")[1:]
+		if len(lines) != len(got.recs) || len(lines) == 0 {
+			t.Fatalf("%s: %d kept records, htslib %d", stem, len(got.recs), len(lines))
+		}
+		for i, line := range lines {
+			f := strings.Split(line, "\t")
+			r := got.recs[i]
+			if f[0] != r.Chrom || f[1] != strconv.FormatInt(r.Pos, 10) {
+				t.Fatalf("%s row %d: %s:%s vs %s:%d", stem, i, f[0], f[1], r.Chrom, r.Pos)
+			}
+			codes := make([]string, len(r.GT))
+			for j, g := range r.GT {
+				codes[j] = strconv.Itoa(int(g))
+			}
+			if c := strings.Join(codes, ","); c != f[2] {
+				t.Errorf("%s %s:%s: calls differ:\n ours   %s\n htslib %s", stem, f[0], f[1], c, f[2])
+			}
+			if f[3] == "." {
+				if r.HasPL {
+					t.Errorf("%s %s:%s: likelihoods where htslib has none", stem, f[0], f[1])
+				}
+				continue
+			}
+			pl := make([]string, len(r.PL))
+			for j, v := range r.PL {
+				pl[j] = strconv.Itoa(int(v))
+			}
+			if p := strings.Join(pl, ","); !r.HasPL || p != f[3] {
+				t.Errorf("%s %s:%s: likelihoods differ:\n ours   %s\n htslib %s", stem, f[0], f[1], p, f[3])
+			}
+		}
 	}
 }

@@ -125,6 +125,8 @@ type vcfParser struct {
 	fmtBuf                            []byte
 	fmtValid                          bool
 	gtIdx, dpIdx, gqIdx, plIdx, glIdx int
+	likIdx                            int // plIdx, else glIdx
+	lastKey                           int // highest FORMAT index the general decoder needs
 
 	st *batchState
 }
@@ -583,19 +585,49 @@ func (p *vcfParser) slowSamples(b *Batch, gt []Geno, pl []uint16, wantPL bool, s
 				continue
 			}
 		}
-		code, err := p.parseGT(subfield(field, p.gtIdx), lineNo, j)
-		if err != nil {
-			return err
+		// One walk over the field's values picks GT, DP, GQ and PL/GL.
+		var gtV, dpV, gqV, likV []byte
+		rest := field
+		for k := 0; k <= p.lastKey; k++ {
+			v := rest
+			if c := bytes.IndexByte(rest, ':'); c >= 0 {
+				v, rest = rest[:c], rest[c+1:]
+			} else {
+				rest = nil
+			}
+			switch k {
+			case p.gtIdx:
+				gtV = v
+			case p.dpIdx:
+				dpV = v
+			case p.gqIdx:
+				gqV = v
+			case p.likIdx:
+				likV = v
+			}
+			if rest == nil {
+				break
+			}
+		}
+		code := slowGT
+		if len(gtV) == 3 && isPhaseSep[gtV[1]] {
+			code = gt3[alleleClass[gtV[0]]][alleleClass[gtV[2]]]
+		}
+		if code == slowGT {
+			var err error
+			if code, err = p.parseGT(gtV, lineNo, j); err != nil {
+				return err
+			}
 		}
 		if code != Missing && (minDP > 0 || minGQ > 0) {
 			masked := false
-			if minDP > 0 && p.dpIdx >= 0 {
-				if v, ok := parseNum(subfield(field, p.dpIdx)); ok && v < minDP {
+			if minDP > 0 {
+				if v, ok := parseNum(dpV); ok && v < minDP {
 					masked = true
 				}
 			}
-			if minGQ > 0 && p.gqIdx >= 0 {
-				if v, ok := parseNum(subfield(field, p.gqIdx)); ok && v < minGQ {
+			if minGQ > 0 {
+				if v, ok := parseNum(gqV); ok && v < minGQ {
 					masked = true
 				}
 			}
@@ -606,12 +638,7 @@ func (p *vcfParser) slowSamples(b *Batch, gt []Geno, pl []uint16, wantPL bool, s
 		}
 		gt[o] = code
 		if wantPL {
-			dst := pl[3*o : 3*o+3]
-			if p.plIdx >= 0 {
-				decodeLikelihoods(dst, subfield(field, p.plIdx), false)
-			} else {
-				decodeLikelihoods(dst, subfield(field, p.glIdx), true)
-			}
+			decodeLikelihoods(pl[3*o:3*o+3], likV, p.plIdx < 0)
 		}
 	}
 	if i <= n {
@@ -725,6 +752,17 @@ func (p *vcfParser) parseFormat(format []byte) {
 		}
 		k++
 	}
+	p.likIdx = p.plIdx
+	if p.likIdx < 0 {
+		p.likIdx = p.glIdx
+	}
+	p.lastKey = max(p.gtIdx, p.likIdx)
+	if p.opt.MinDP > 0 {
+		p.lastKey = max(p.lastKey, p.dpIdx)
+	}
+	if p.opt.MinGQ > 0 {
+		p.lastKey = max(p.lastKey, p.gqIdx)
+	}
 }
 
 // subfield returns the k-th ':'-separated value of a sample field, or nil
@@ -795,27 +833,31 @@ func parseNum(s []byte) (float64, bool) {
 	if len(s) == 0 || len(s) > 64 || (len(s) == 1 && s[0] == '.') {
 		return 0, false
 	}
-	// Fast path: optional '-', digits, optional '.digits'.
+	// Fast path: optional '-', digits, optional '.digits', at most 15
+	// digits. The integer mantissa and the power of ten are exact in
+	// float64, so one division rounds correctly and the result equals
+	// strconv.ParseFloat's (summing digit*0.1^k does not: "2.95" gave
+	// 2.9499999999999997, and GL -2.95 became phred 29 instead of 30).
 	i, neg := 0, false
 	if s[0] == '-' {
 		neg, i = true, 1
 	}
-	var v float64
-	digits := 0
+	var m uint64
+	digits, frac := 0, 0
 	for ; i < len(s) && s[i] >= '0' && s[i] <= '9'; i++ {
-		v = v*10 + float64(s[i]-'0')
+		m = m*10 + uint64(s[i]-'0')
 		digits++
 	}
 	if i < len(s) && s[i] == '.' {
 		i++
-		scale := 0.1
 		for ; i < len(s) && s[i] >= '0' && s[i] <= '9'; i++ {
-			v += float64(s[i]-'0') * scale
-			scale /= 10
+			m = m*10 + uint64(s[i]-'0')
 			digits++
+			frac++
 		}
 	}
-	if i == len(s) && digits > 0 && len(s) < 16 {
+	if i == len(s) && digits > 0 && digits <= 15 {
+		v := float64(m) / exactPow10[frac]
 		if neg {
 			v = -v
 		}
@@ -827,6 +869,9 @@ func parseNum(s []byte) (float64, bool) {
 	}
 	return x, true
 }
+
+// exactPow10 holds the powers of ten that float64 represents exactly.
+var exactPow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
 
 // parsePos parses POS.
 func parsePos(s []byte) (int64, bool) {

@@ -12,10 +12,12 @@ header). The CSI index is built by pysam.tabix_index (htslib
 bcf_index_build2, min_shift 14).
 """
 import gzip
+import math
 import os
 import shutil
 import tempfile
 
+import numpy
 import pysam
 
 TWINS = [
@@ -100,6 +102,64 @@ def main():
     pysam.tabix_index(tmp, preset="vcf", csi=True, force=True)
     shutil.copyfile(tmp + ".csi", "testdata/bcf/chr22_1000g.vcf.gz.csi")
     print("testdata/bcf/chr22_1000g.vcf.gz.csi")
+
+    # htslib's own decoding of three twins, for an external check of the
+    # Go BCF decoder: see htslib_calls() below.
+    for stem in ("cohort189", "test-haploidX", "gl_chr1"):
+        htslib_calls("testdata/bcf/%s.bcf" % stem, "testdata/bcf/%s.htslib_calls.tsv" % stem)
+
+
+def geno_code(alleles):
+    """The project's call code (vcfscan.Geno) of a GT tuple as htslib
+    decodes it: 0/1/2 alternate alleles, 3 missing (any allele missing or
+    more than two alleles), 4/5 haploid reference/alternate."""
+    if len(alleles) == 0 or any(a is None for a in alleles) or len(alleles) > 2:
+        return 3
+    if len(alleles) == 1:
+        return 4 + alleles[0]
+    return alleles[0] + alleles[1]
+
+
+def phred(values, gl):
+    """Three phred-scaled likelihoods (0/0, 0/1, 1/1) the way vcfscan
+    stores them: PL as is; GL via the shortest decimal of the float32 value,
+    times -10, rounded half away from zero; a haploid pair (R, A) becomes
+    (R, 65535, A); anything else (missing values, other counts) is 0,0,0;
+    values are clamped to 0..65535."""
+    if values is None or any(v is None for v in values) or len(values) not in (2, 3):
+        return [0, 0, 0]
+    out = []
+    for v in values:
+        if gl:
+            x = -10.0 * float(str(numpy.float32(v)))
+            v = math.floor(x + 0.5)
+        out.append(min(max(int(v), 0), 65535))
+    if len(out) == 2:
+        return [out[0], 65535, out[1]]
+    return out
+
+
+def htslib_calls(bcf, out):
+    """Write, for each record that is one ALT with single ACGT bases, the
+    call codes and likelihoods htslib (through pysam) reads from the BCF:
+    chrom, pos, codes (comma-separated, one per sample), likelihoods
+    (3 per sample, or '.' when the record has neither PL nor GL)."""
+    with pysam.VariantFile(bcf) as vin, open(out, "w") as f:
+        f.write("chrom\tpos\tcalls\tlikelihoods\n")
+        for rec in vin:
+            if rec.alts is None or len(rec.alts) != 1:
+                continue
+            if len(rec.ref) != 1 or len(rec.alts[0]) != 1 or rec.ref.upper() not in "ACGT" or rec.alts[0].upper() not in "ACGT":
+                continue
+            codes, lik = [], []
+            key = "PL" if "PL" in rec.format else ("GL" if "GL" in rec.format else None)
+            for s in rec.samples.values():
+                gt = s.get("GT") if "GT" in rec.format else None
+                codes.append(str(geno_code(gt if gt is not None else ())))
+                if key is not None:
+                    lik.extend(str(v) for v in phred(s.get(key), key == "GL"))
+            f.write("%s\t%d\t%s\t%s\n" % (rec.chrom, rec.pos, ",".join(codes), ",".join(lik) if key else "."))
+    print(out)
 
 
 if __name__ == "__main__":
