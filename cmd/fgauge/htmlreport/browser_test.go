@@ -137,6 +137,16 @@ func TestBrowserRendersReport(t *testing.T) {
 			t.Errorf("sample page %s = %q, row has %q", col, got, rows[0][col])
 		}
 	}
+	// the sample page prints (print CSS) to a short PDF
+	pdf := filepath.Join(t.TempDir(), "sample.pdf")
+	runChromium(t, bin, "--no-pdf-header-footer", "--print-to-pdf="+pdf, "file://"+filepath.Join(dir, "samples", st[0]+".html"))
+	pb, err := os.ReadFile(pdf)
+	must(t, err)
+	pagesInPDF := len(regexp.MustCompile(`/Type\s*/Page[^s]`).FindAll(pb, -1))
+	if !bytes.HasPrefix(pb, []byte("%PDF")) || pagesInPDF < 1 || pagesInPDF > 6 {
+		t.Errorf("printed sample page: %d bytes, %d pages", len(pb), pagesInPDF)
+	}
+	t.Logf("sample page prints to %d PDF pages", pagesInPDF)
 }
 
 func distinctColours(img image.Image) int {
