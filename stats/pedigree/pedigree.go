@@ -161,6 +161,9 @@ func Read(r io.Reader, name string) (*Pedigree, error) {
 	for sc.Scan() {
 		lineNo++
 		b := bytes.TrimRight(sc.Bytes(), "\r")
+		if lineNo == 1 {
+			b = bytes.TrimPrefix(b, []byte("\xef\xbb\xbf")) // UTF-8 byte order mark
+		}
 		if len(bytes.TrimSpace(b)) == 0 || b[0] == '#' {
 			continue
 		}

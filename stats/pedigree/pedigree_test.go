@@ -226,6 +226,13 @@ func TestReadErrors(t *testing.T) {
 	}
 }
 
+func TestReadByteOrderMark(t *testing.T) {
+	p := mustRead(t, "\xef\xbb\xbfid\tsire\tdam\nk\ts\td\n")
+	if p.Len() != 3 {
+		t.Errorf("Len = %d, want 3: the header behind a byte order mark was read as an animal", p.Len())
+	}
+}
+
 func TestReadFormats(t *testing.T) {
 	// Header, comments, CRLF, space-separated lines, sex column, parent-only founders.
 	p := mustRead(t, "# herd book\r\nid sire dam sex\r\nk1 s9 d9 F\r\nk2\ts9\td9\tmale\r\n\r\n")
