@@ -17,6 +17,7 @@ type cohort struct {
 	flags     [][]string
 	highlight map[int]bool
 	missing   []float64 // all NaN, returned for absent columns (read-only)
+	unknown   []string  // --highlight names not in samples.tsv
 }
 
 func newCohort(d *data, highlight []string) *cohort {
@@ -60,9 +61,17 @@ func newCohort(d *data, highlight []string) *cohort {
 	for _, h := range highlight {
 		want[h] = true
 	}
+	found := map[string]bool{}
 	for r, nm := range c.raw {
 		if want[nm] {
 			c.highlight[r] = true
+			found[nm] = true
+		}
+	}
+	for _, h := range highlight {
+		if !found[h] {
+			c.unknown = append(c.unknown, visible(h))
+			found[h] = true // list each once
 		}
 	}
 	return c

@@ -167,6 +167,7 @@ type reportView struct {
 	SampleRows      []sampleRowView
 	SampleTableNote string
 	PageDir         bool
+	Unknown         []string
 }
 
 // Write reads the scan output folder outDir and writes outDir/report.html
@@ -217,6 +218,7 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 		v.WallSeconds = float64(*d.info.WallSeconds)
 	}
 	v.Command = shellJoin(d.info.CommandLine)
+	v.Unknown = c.unknown
 	builders := []struct {
 		dst   **figure
 		build func() (figure, error)

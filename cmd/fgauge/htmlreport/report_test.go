@@ -435,6 +435,9 @@ func TestPooledAndHighlight(t *testing.T) {
 			t.Errorf("pooled %s not shown as %s", k, v)
 		}
 	}
+	if !strings.Contains(s, "Named with --highlight but not in samples.tsv: <code>not-in-cohort</code>.") {
+		t.Error("unknown --highlight name not reported")
+	}
 	if !strings.Contains(s, "Shown: the samples listed with --highlight") {
 		t.Error("painting does not say it shows the highlighted samples")
 	}
