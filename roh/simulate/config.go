@@ -203,6 +203,9 @@ func ReadGeneticMap(r io.Reader, name string) (GeneticMap, error) {
 	for sc.Scan() {
 		line++
 		b := bytes.TrimSpace(sc.Bytes())
+		if line == 1 {
+			b = bytes.TrimPrefix(b, []byte("\xef\xbb\xbf")) // UTF-8 byte order mark
+		}
 		if len(b) == 0 || b[0] == '#' {
 			continue
 		}

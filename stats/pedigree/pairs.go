@@ -20,6 +20,9 @@ func (p *Pedigree) ReadPairs(r io.Reader, name string) ([][2]int, error) {
 	for sc.Scan() {
 		line++
 		b := bytes.TrimSpace(sc.Bytes())
+		if line == 1 {
+			b = bytes.TrimPrefix(b, []byte("\xef\xbb\xbf")) // UTF-8 byte order mark
+		}
 		if len(b) == 0 || b[0] == '#' {
 			continue
 		}
