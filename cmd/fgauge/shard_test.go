@@ -593,3 +593,15 @@ func BenchmarkMerge100States(b *testing.B) {
 	}
 	b.ReportMetric(float64(size)/float64(len(paths)), "state_bytes")
 }
+
+// TestCompareOutputDirs compares two output folders named by the
+// environment (FGAUGE_COMPARE_SINGLE, FGAUGE_COMPARE_MERGED) as the
+// identity tests do; testdata/slurm/cluster_test.sh uses it. Skipped
+// otherwise.
+func TestCompareOutputDirs(t *testing.T) {
+	a, b := os.Getenv("FGAUGE_COMPARE_SINGLE"), os.Getenv("FGAUGE_COMPARE_MERGED")
+	if a == "" || b == "" {
+		t.Skip("FGAUGE_COMPARE_SINGLE and FGAUGE_COMPARE_MERGED not set")
+	}
+	assertSameOutputs(t, a, b)
+}

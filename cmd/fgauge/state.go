@@ -484,6 +484,9 @@ func (f *shardFlags) identity(o *scanOptions) (*shardState, error) {
 func (f *shardFlags) skipIfValid(env *runEnv, o *scanOptions) (bool, error) {
 	if f.on() {
 		o.read.RegionsByStart = true
+		if o.report {
+			return false, usagef("--report needs the tables of a whole run: run 'fgauge report' on the output of 'fgauge merge'")
+		}
 	}
 	if !f.on() {
 		if f != nil && f.skipValid {
