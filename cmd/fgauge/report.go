@@ -16,10 +16,17 @@ fetched from elsewhere) with the headline numbers, plots of the per-sample
 estimators, runs of homozygosity, Hardy-Weinberg tests, populations and
 genotyping quality, read from the files 'fgauge scan' wrote into OUTDIR.
 
---highlight FILE names samples (one per line; lines starting with '#' are comments) to paint
-in the report; with --per-sample only those samples get pages.
+--highlight FILE names samples, one per line (lines starting with '#' are
+comments), to mark and paint in the report; with --per-sample only those
+samples get pages.
 --per-sample also writes OUTDIR/samples/<name>.html (printable) and
 OUTDIR/samples/<name>.json for every sample, plus OUTDIR/samples/index.html.
+
+The pages carry cautions: genomic F is an estimate that depends on marker
+density, allele frequencies and genotyping quality, not a diagnosis; mating
+and culling decisions follow the breeding programme's rules and local
+regulations, and any reading of human consanguinity belongs to licensed
+genetic counselling or medical practice.
 `
 
 // runReport writes the HTML report for a scan output folder.
