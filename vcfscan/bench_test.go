@@ -89,9 +89,34 @@ func BenchmarkVCFParse(b *testing.B) {
 	benchScan(b, synthVCF(1000, 5000), Options{Threads: 2})
 }
 
-// BenchmarkVCFParseMasked measures the general path (DP/GQ masking on).
+// BenchmarkVCFParseMasked measures the general path (DP/GQ masking and
+// PL decoding) on caller-style GT:AD:DP:GQ:PL columns.
 func BenchmarkVCFParseMasked(b *testing.B) {
-	benchScan(b, synthVCF(1000, 2000), Options{Threads: 2, MinGQ: 20})
+	benchScan(b, synthRichVCF(1000, 1000), Options{Threads: 2, MinGQ: 20, MinDP: 5, WantPL: true})
+}
+
+// synthRichVCF is synthVCF with GT:AD:DP:GQ:PL sample columns.
+func synthRichVCF(nSamples, nLines int) []byte {
+	var b bytes.Buffer
+	b.WriteString("##fileformat=VCFv4.2\n##contig=<ID=1,length=250000000>\n#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT")
+	for i := 0; i < nSamples; i++ {
+		b.WriteString("\tanimal")
+		b.WriteString(strconv.Itoa(i))
+	}
+	b.WriteByte('\n')
+	rng := rand.New(rand.NewSource(2))
+	calls := []string{"0/0:12,0:12:36:0,36,400", "0/1:6,7:13:99:120,0,110", "1/1:0,9:9:27:300,27,0", "./.:0,0:0:.:."}
+	for l := 0; l < nLines; l++ {
+		b.WriteString("1\t")
+		b.WriteString(strconv.Itoa(100 * (l + 1)))
+		b.WriteString("\t.\tA\tG\t50\tPASS\tDP=10000\tGT:AD:DP:GQ:PL")
+		for i := 0; i < nSamples; i++ {
+			b.WriteByte('\t')
+			b.WriteString(calls[rng.Intn(len(calls))])
+		}
+		b.WriteByte('\n')
+	}
+	return b.Bytes()
 }
 
 // BenchmarkScanBGZF measures inflate plus parse together.
