@@ -681,6 +681,9 @@ func (d *bcfDecoder) decode(rec []byte, index int64, b *Batch) (kept bool, reaso
 			if err != nil {
 				return false, 0, d.fail(index, "FORMAT", ErrMalformed, "%v", err)
 			}
+			if typ == bcfTypeNull {
+				n = 0 // a count without values carries nothing
+			}
 			if n > 0 && nSample > 0 && n > (len(indiv)-fc.p)/nSample {
 				return false, 0, d.fail(index, "FORMAT", ErrMalformed, "%v", errBCFShort)
 			}

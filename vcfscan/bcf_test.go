@@ -231,6 +231,10 @@ func TestBCFDecodeHandMade(t *testing.T) {
 		{name: "PL and AF", opt: Options{WantPL: true, InfoKey: "AF"},
 			rec:  bcfRec{alleles: []string{"A", "G"}, info: [][]byte{af}, fmt: [][]byte{gt(2, 4, 2, 4, 2, 4), pl16}, nSample: 3},
 			kept: true, gt: []Geno{Het, Het, Het}, pl: []uint16{0, 10, 1000, 5, 65535, 0, 0, 0, 0}, info: 0.25, filter: "."},
+		// Found by FuzzBCFRecord: a count of 3 with the null type and no values.
+		{name: "PL of null type", opt: Options{WantPL: true},
+			rec:  bcfRec{alleles: []string{"A", "G"}, fmt: [][]byte{gt(2, 4, 2, 4, 2, 4), {0x11, 6, 3<<4 | bcfTypeNull}}, nSample: 3},
+			kept: true, gt: []Geno{Het, Het, Het}, pl: []uint16{0, 0, 0, 0, 0, 0, 0, 0, 0}, filter: "."},
 		{name: "wrong sample count", rec: bcfRec{alleles: []string{"A", "G"}, fmt: [][]byte{gt(2, 2)}, nSample: 1}, err: ErrSampleCount},
 		{name: "unknown contig", rec: bcfRec{chrom: 7, alleles: []string{"A", "G"}}, err: ErrMalformed},
 		{name: "position before the contig", rec: bcfRec{pos0: -2, alleles: []string{"A", "G"}}, err: ErrMalformed},
