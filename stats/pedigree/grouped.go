@@ -2,22 +2,102 @@ package pedigree
 
 import "slices"
 
-// inbreedingBySire computes the same coefficients as the Meuwissen & Luo
-// trace, grouped by sire in the manner of Sargolzaei, Iwaisaki & Colleau
-// (2005, Journal of Animal Breeding and Genetics 122:325-331). For each
-// sire s, taken in pedigree order, the column x = A e_s is computed with
-// Colleau's (2002, Genetics Selection Evolution 34:409-421) indirect
-// method, A = T D T' (T = L of Meuwissen & Luo):
+// column computes entries of one column x = A e_s of the numerator
+// relationship matrix by Colleau's (2002, Genetics Selection Evolution
+// 34:409-421) indirect method, A = T D T' (T = L of Meuwissen & Luo):
 //
 //   - u = T' e_s by tracing the ancestors of s, youngest first;
-//   - v = D u, which needs D only on s and its ancestors, whose F are known
-//     because every sire before s in pedigree order is done;
-//   - x = T v at each mate d of s, by x_i = v_i + (x_sire + x_dam)/2 over
-//     the ancestors of the mates, memoised within the group;
-//
-// and every offspring of s and d gets F = a_sd / 2 = x_d / 2. The sire's
-// ancestry is traced once for all its offspring, and the mates' ancestries
-// are walked once for all of them.
+//   - v = D u, which needs D only on s and its ancestors;
+//   - x = T v at the animals asked for, by x_i = v_i + (x_sire + x_dam)/2
+//     over their ancestors, memoised until the next start.
+type column struct {
+	p     *Pedigree
+	t     *tracer
+	v, x  []float64
+	stamp []int32 // column number that last computed x[j]
+	num   int32
+	anc   []int32 // s and its ancestors (where v is set)
+	stack []int32
+}
+
+func newColumn(p *Pedigree) *column {
+	n := len(p.ids)
+	return &column{p: p, t: newTracer(n), v: make([]float64, n), x: make([]float64, n), stamp: make([]int32, n)}
+}
+
+// start begins the column of s; d(j) must return D_j for s and its ancestors.
+func (c *column) start(s int32, d func(int32) float64) {
+	for _, j := range c.anc {
+		c.v[j] = 0
+	}
+	c.anc = c.anc[:0]
+	c.num++
+	p, t := c.p, c.t
+	t.push(s, 1)
+	for len(t.heap) > 0 {
+		j := t.pop()
+		uj := t.l[j]
+		t.l[j] = 0
+		if a := p.sire[j]; a >= 0 {
+			t.push(a, 0.5*uj)
+		}
+		if a := p.dam[j]; a >= 0 {
+			t.push(a, 0.5*uj)
+		}
+		c.v[j] = d(j) * uj
+		c.anc = append(c.anc, j)
+	}
+}
+
+// at returns a_{s,i} for the column started last.
+func (c *column) at(i int32) float64 {
+	p := c.p
+	if c.stamp[i] == c.num {
+		return c.x[i]
+	}
+	c.stack = append(c.stack[:0], i)
+	for len(c.stack) > 0 {
+		j := c.stack[len(c.stack)-1]
+		if c.stamp[j] == c.num {
+			c.stack = c.stack[:len(c.stack)-1]
+			continue
+		}
+		a, b := p.sire[j], p.dam[j]
+		ready := true
+		if a >= 0 && c.stamp[a] != c.num {
+			c.stack = append(c.stack, a)
+			ready = false
+		}
+		if b >= 0 && c.stamp[b] != c.num {
+			c.stack = append(c.stack, b)
+			ready = false
+		}
+		if !ready {
+			continue
+		}
+		xj := c.v[j]
+		if a >= 0 {
+			xj += 0.5 * c.x[a]
+		}
+		if b >= 0 {
+			xj += 0.5 * c.x[b]
+		}
+		c.x[j] = xj
+		c.stamp[j] = c.num
+		c.stack = c.stack[:len(c.stack)-1]
+	}
+	return c.x[i]
+}
+
+// inbreedingBySire computes the same coefficients as the Meuwissen & Luo
+// trace, grouped by sire in the manner of Sargolzaei, Iwaisaki & Colleau
+// (2005, Journal of Animal Breeding and Genetics 122:325-331): for each
+// sire s, taken in pedigree order, the column A e_s is computed (see
+// column) and every offspring of s and a dam d gets F = a_sd / 2. D is
+// needed only on s and its ancestors, whose F are known because every sire
+// before s in pedigree order is done. The sire's ancestry is traced once
+// for all its offspring, and the mates' ancestries are walked once for all
+// of them.
 func (p *Pedigree) inbreedingBySire() (f, d []float64) {
 	n := len(p.ids)
 	f = make([]float64, n)
@@ -39,73 +119,16 @@ func (p *Pedigree) inbreedingBySire() (f, d []float64) {
 		}
 	}
 	slices.SortStableFunc(kids, func(a, b int32) int { return int(p.sire[a] - p.sire[b]) })
-	t := newTracer(n)
-	v := make([]float64, n) // D_j * T_{sire,j} on the sire's ancestors
-	x := make([]float64, n)
-	stamp := make([]int32, n) // group that last computed x[j]
-	var sireAnc, stack []int32
-	group := int32(0)
+	col := newColumn(p)
 	for lo := 0; lo < len(kids); {
 		s := p.sire[kids[lo]]
 		hi := lo
 		for hi < len(kids) && p.sire[kids[hi]] == s {
 			hi++
 		}
-		group++
-		sireAnc = sireAnc[:0]
-		t.push(s, 1)
-		for len(t.heap) > 0 {
-			j := t.pop()
-			uj := t.l[j]
-			t.l[j] = 0
-			if a := p.sire[j]; a >= 0 {
-				t.push(a, 0.5*uj)
-			}
-			if a := p.dam[j]; a >= 0 {
-				t.push(a, 0.5*uj)
-			}
-			v[j] = dOf(j) * uj
-			sireAnc = append(sireAnc, j)
-		}
+		col.start(s, dOf)
 		for _, i := range kids[lo:hi] {
-			dam := p.dam[i]
-			if stamp[dam] != group {
-				stack = append(stack[:0], dam)
-				for len(stack) > 0 {
-					j := stack[len(stack)-1]
-					if stamp[j] == group {
-						stack = stack[:len(stack)-1]
-						continue
-					}
-					a, b := p.sire[j], p.dam[j]
-					ready := true
-					if a >= 0 && stamp[a] != group {
-						stack = append(stack, a)
-						ready = false
-					}
-					if b >= 0 && stamp[b] != group {
-						stack = append(stack, b)
-						ready = false
-					}
-					if !ready {
-						continue
-					}
-					xj := v[j]
-					if a >= 0 {
-						xj += 0.5 * x[a]
-					}
-					if b >= 0 {
-						xj += 0.5 * x[b]
-					}
-					x[j] = xj
-					stamp[j] = group
-					stack = stack[:len(stack)-1]
-				}
-			}
-			f[i] = 0.5 * x[dam]
-		}
-		for _, j := range sireAnc {
-			v[j] = 0
+			f[i] = 0.5 * col.at(p.dam[i])
 		}
 		lo = hi
 	}

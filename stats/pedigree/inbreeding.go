@@ -1,6 +1,9 @@
 package pedigree
 
-import "fmt"
+import (
+	"fmt"
+	"slices"
+)
 
 // tracer holds the work space of the Meuwissen & Luo (1992) ancestor trace:
 // a dense L row, and a max-heap of the ancestors still to visit (animals are
@@ -124,43 +127,47 @@ func (p *Pedigree) inbreedingD() (f, d []float64) {
 
 // Coancestry returns the coefficient of coancestry (kinship) of each pair
 // of animals, indexed like ID(i): the probability that alleles drawn at
-// random from each are identical by descent, which is the inbreeding
-// coefficient their offspring would have. f is the result of Inbreeding
-// (pass nil to have it computed). It uses the same ancestor trace as
-// Inbreeding on a virtual offspring of the pair; a pair of an animal with
-// itself gives (1 + F)/2.
+// random from each are identical by descent, half the relationship a_ij,
+// which is the inbreeding coefficient their offspring would have. f is the
+// result of Inbreeding (pass nil to have it computed). Pairs are grouped by
+// their first animal, whose column of A is computed once (Colleau 2002,
+// see column); a pair of an animal with itself gives (1 + F)/2.
 func (p *Pedigree) Coancestry(pairs [][2]int, f []float64) ([]float64, error) {
-	var d []float64
 	if f == nil {
-		f, d = p.inbreedingBySire()
-	} else {
-		if len(f) != len(p.ids) {
-			return nil, fmt.Errorf("pedigree: Coancestry: %d inbreeding values for %d animals", len(f), len(p.ids))
-		}
-		d = make([]float64, len(p.ids))
-		for i := range d {
-			fs, fd := -1.0, -1.0
-			if s := p.sire[i]; s >= 0 {
-				fs = f[s]
-			}
-			if m := p.dam[i]; m >= 0 {
-				fd = f[m]
-			}
-			d[i] = 0.5 - 0.25*(fs+fd)
-		}
+		f = p.Inbreeding()
+	} else if len(f) != len(p.ids) {
+		return nil, fmt.Errorf("pedigree: Coancestry: %d inbreeding values for %d animals", len(f), len(p.ids))
 	}
-	t := newTracer(len(p.ids))
-	out := make([]float64, len(pairs))
 	for k, pr := range pairs {
-		a, b := pr[0], pr[1]
-		if a < 0 || a >= len(p.ids) || b < 0 || b >= len(p.ids) {
+		if a, b := pr[0], pr[1]; a < 0 || a >= len(p.ids) || b < 0 || b >= len(p.ids) {
 			return nil, fmt.Errorf("pedigree: Coancestry: pair %d (%d, %d) out of range [0, %d)", k, a, b, len(p.ids))
 		}
-		t.push(int32(a), 0.5)
-		t.push(int32(b), 0.5)
-		// Virtual offspring z: F_z = sum_{j != z} L^2 D + D_z - 1 with
-		// D_z = 1/2 - (F_a + F_b)/4.
-		out[k] = t.sumLD(p, d) + 0.5 - 0.25*(f[a]+f[b]) - 1
+	}
+	dOf := func(i int32) float64 {
+		fs, fd := -1.0, -1.0
+		if s := p.sire[i]; s >= 0 {
+			fs = f[s]
+		}
+		if m := p.dam[i]; m >= 0 {
+			fd = f[m]
+		}
+		return 0.5 - 0.25*(fs+fd)
+	}
+	order := make([]int, len(pairs))
+	for k := range order {
+		order[k] = k
+	}
+	slices.SortStableFunc(order, func(x, y int) int { return pairs[x][0] - pairs[y][0] })
+	out := make([]float64, len(pairs))
+	col := newColumn(p)
+	started := -1
+	for _, k := range order {
+		a, b := pairs[k][0], pairs[k][1]
+		if a != started {
+			col.start(int32(a), dOf)
+			started = a
+		}
+		out[k] = 0.5 * col.at(int32(b))
 	}
 	return out, nil
 }
