@@ -379,7 +379,7 @@ func (c *Collector) detect(sc *hmmScratch, j job) {
 			u, f = sc.tr, fa
 		}
 		sc.forwardViterbi(ch, u, f, !hasPL && !c.cfg.Fit)
-		sc.backward(u, f, ch.cm, nil)
+		sc.backward(u, f, ch.cm, nil, sc.path)
 		j.w.perSample[s] = hmmRuns(ch, s, sc.code, sc.path, sc.post, maxGap)
 	}
 }

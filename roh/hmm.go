@@ -152,7 +152,10 @@ func (w *hmmScratch) forward(u []float64, f float64, wantLL bool) float64 {
 	for t := 1; t < n; t++ {
 		an, na := u[t]*(1-f), u[t]*f
 		e := em[2*t : 2*t+2 : 2*t+2]
-		a, b = (a*(1-an)+b*na)*e[0], (a*an+b*(1-na))*e[1]
+		// transition times emission first: off the dependency chain
+		aa, na2 := (1-an)*e[0], na*e[0]
+		an2, nn := an*e[1], (1-na)*e[1]
+		a, b = a*aa+b*na2, a*an2+b*nn
 		if t%rescaleEvery == 0 {
 			c := a + b
 			inv := 1 / c
@@ -200,20 +203,23 @@ func (w *hmmScratch) forwardViterbi(ch *chromData, u []float64, f float64, looku
 			e[0], e[1] = float64(row[g]), float64(row[4+g])
 		}
 		an, na := u[t]*(1-f), u[t]*f
-		aa, nn := 1-an, 1-na
-		a, b = (a*aa+b*na)*e[0], (a*an+b*nn)*e[1]
-		xa, xn := va*aa, vn*na
-		ya, yn := va*an, vn*nn
-		var fl uint8
-		if xn >= xa {
-			xa = xn
-			fl = 1 // A came from N
-		}
-		if ya > yn {
-			yn = ya
-			fl |= 2 // N came from A
-		}
-		va, vn = xa*e[0], yn*e[1]
+		// transition times emission first: off the dependency chains
+		aa, na2 := (1-an)*e[0], na*e[0]
+		an2, nn := an*e[1], (1-na)*e[1]
+		a, b = a*aa+b*na2, a*an2+b*nn
+		// Branch-free max and argmax: the comparisons flip unpredictably
+		// in non-autozygous stretches, and for non-negative floats the
+		// order of the bit patterns (as integers) is the order of the
+		// values.
+		xa := int64(math.Float64bits(va * aa))
+		xn := int64(math.Float64bits(vn * na2))
+		ya := int64(math.Float64bits(va * an2))
+		yn := int64(math.Float64bits(vn * nn))
+		sa := (xn - xa) >> 63 // 0 when A came from N (xn >= xa), else -1
+		sn := (yn - ya) >> 63 // -1 when N came from A (ya > yn), else 0
+		fl := uint8(1+sa) | uint8(-sn)<<1
+		va = math.Float64frombits(uint64(xa ^ ((xa ^ xn) &^ sa)))
+		vn = math.Float64frombits(uint64(yn ^ ((yn ^ ya) & sn)))
 		if t%rescaleEvery == 0 {
 			inv := 1 / (a + b)
 			a, b = a*inv, b*inv
@@ -246,22 +252,27 @@ type emStats struct {
 	switchAN, switches float64 // expected A->N and all switches
 }
 
-// backward runs the backward pass after forward, writing the posterior
-// probability of the autozygous state per site into w.post and, when st
-// is not nil, accumulating EM statistics over intervals of cm.
-func (w *hmmScratch) backward(u []float64, f float64, cm []float64, st *emStats) {
+// backward runs the backward pass after forward. It writes the posterior
+// probability of the autozygous state into w.post at the sites where path
+// (the Viterbi path, when not nil) is autozygous: only run sites need it,
+// and skipping the others saves a division per site. When st is not nil
+// it accumulates EM statistics over intervals of cm.
+func (w *hmmScratch) backward(u []float64, f float64, cm []float64, st *emStats, path []uint8) {
 	n := len(w.em) / 2
 	w.post = grow(w.post, n)
 	em, al, post := w.em, w.alpha, w.post
 	u = u[:n]
+	if path != nil {
+		path = path[:n]
+	}
 	ba, bn := 1.0, 1.0
 	post[n-1] = al[2*n-2] / (al[2*n-2] + al[2*n-1])
 	for t := n - 1; t >= 1; t-- {
 		an, na := u[t]*(1-f), u[t]*f
 		k := [4]float64{1 - an, an, na, 1 - na}
-		ea, en := em[2*t]*ba, em[2*t+1]*bn
 		pa, pn := al[2*t-2], al[2*t-1]
 		if st != nil {
+			ea, en := em[2*t]*ba, em[2*t+1]*bn
 			xaa, xan := pa*k[0]*ea, pa*k[1]*en
 			xna, xnn := pn*k[2]*ea, pn*k[3]*en
 			z := 1 / (xaa + xan + xna + xnn)
@@ -272,13 +283,17 @@ func (w *hmmScratch) backward(u []float64, f float64, cm []float64, st *emStats)
 			st.switchAN += xan
 			st.switches += xan + xna
 		}
-		ba, bn = k[0]*ea+k[1]*en, k[2]*ea+k[3]*en
+		// transition times emission first: off the dependency chain
+		ea, en := em[2*t], em[2*t+1]
+		ba, bn = (k[0]*ea)*ba+(k[1]*en)*bn, (k[2]*ea)*ba+(k[3]*en)*bn
 		if t%rescaleEvery == 0 {
 			inv := 1 / (ba + bn)
 			ba, bn = ba*inv, bn*inv
 		}
-		p, q := pa*ba, pn*bn
-		post[t-1] = p / (p + q)
+		if path != nil && path[t-1] == stA {
+			p, q := pa*ba, pn*bn
+			post[t-1] = p / (p + q)
+		}
 	}
 }
 
@@ -297,7 +312,7 @@ func (w *hmmScratch) fitSample(cm []float64, f0, a0 float64, iters int) (float64
 		switchWeights(w.tr, cm, a)
 		ll := w.forward(w.tr, f, true)
 		var st emStats
-		w.backward(w.tr, f, cm, &st)
+		w.backward(w.tr, f, cm, &st, nil)
 		tot := st.timeA + st.timeN
 		if !(tot > 0) {
 			break
