@@ -486,7 +486,8 @@ func bcfInt(b []byte, typ byte, i int) int32 {
 // present (not missing, not end of vector). Floats go through their
 // shortest decimal form and the VCF parser's number parser, so that a BCF
 // float32 gives the same float64 as the decimal text it was written from
-// (0.14, not 0.14000000059604645). Char values are parsed as text.
+// (0.14, not 0.14000000059604645). For char values b is the text (up to
+// a NUL or a comma) and i must be 0.
 func (d *bcfDecoder) bcfNumber(b []byte, typ byte, i int) (float64, bool) {
 	switch typ {
 	case bcfTypeInt8, bcfTypeInt16, bcfTypeInt32:
@@ -789,12 +790,12 @@ func (d *bcfDecoder) decode(rec []byte, index int64, b *Batch) (kept bool, reaso
 			}
 			masked := false
 			if minDP > 0 && dp.n > 0 {
-				if v, ok := d.bcfNumber(dp.data, dp.typ, s*dp.n); ok && v < minDP {
+				if v, ok := d.sampleNumber(dp, s); ok && v < minDP {
 					masked = true
 				}
 			}
 			if minGQ > 0 && gq.n > 0 {
-				if v, ok := d.bcfNumber(gq.data, gq.typ, s*gq.n); ok && v < minGQ {
+				if v, ok := d.sampleNumber(gq, s); ok && v < minGQ {
 					masked = true
 				}
 			}
@@ -861,6 +862,15 @@ func (d *bcfDecoder) decode(rec []byte, index int64, b *Batch) (kept bool, reaso
 		Line:      index,
 	})
 	return true, 0, nil
+}
+
+// sampleNumber returns the first value of FORMAT field f for file sample s
+// (for a character field, the number its text spells, as in VCF).
+func (d *bcfDecoder) sampleNumber(f bcfField, s int) (float64, bool) {
+	if f.typ == bcfTypeChar {
+		return d.bcfNumber(f.data[s*f.n:(s+1)*f.n], f.typ, 0)
+	}
+	return d.bcfNumber(f.data, f.typ, s*f.n)
 }
 
 // bcfField is one FORMAT field of a record: n values of type typ per sample.

@@ -518,3 +518,20 @@ func TestParseNumMatchesParseFloat(t *testing.T) {
 		}
 	}
 }
+
+// TestBCFCharDepth checks masking by a DP declared as a String: each
+// sample's text is read from its own slot (BCF 2.2 section 6.3.3: per-sample
+// strings padded with NUL to the longest).
+func TestBCFCharDepth(t *testing.T) {
+	gt := []byte{0x11, 3, 2<<4 | bcfTypeInt8, 2, 4, 2, 4, 2, 4}
+	dp := []byte{0x11, 5, 2<<4 | bcfTypeChar, '9', 0, '1', '2', '.', 0} // "9", "12", "."
+	d := newBCFDecoder(bcfTestHeader, nil, Options{MinDP: 10})
+	b := &Batch{NSamples: 3}
+	kept, _, err := d.decode(bcfRec{alleles: []string{"A", "G"}, fmt: [][]byte{gt, dp}, nSample: 3}.bytes(), 0, b)
+	if err != nil || !kept {
+		t.Fatal(kept, err)
+	}
+	if want := []Geno{Missing, Het, Het}; fmt.Sprint(b.Calls(0)) != fmt.Sprint(want) || b.Masked != 1 {
+		t.Errorf("calls %v masked %d, want %v and 1", b.Calls(0), b.Masked, want)
+	}
+}
