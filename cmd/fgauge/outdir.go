@@ -11,7 +11,7 @@ import (
 // OUTDIR holding any of them is not overwritten without --force.
 var outputNames = []string{
 	"sites.tsv.gz", "sites_by_population.tsv.gz", "samples.tsv", "runs.tsv",
-	"populations.tsv", "populations_pairwise.tsv", "run.json", "report.html",
+	"populations.tsv", "populations_pairwise.tsv", "run.json", "report.html", "samples",
 }
 
 // stagedDir collects the outputs of one run in a hidden temporary folder
