@@ -6,46 +6,71 @@ import "slices"
 // relationship matrix by Colleau's (2002, Genetics Selection Evolution
 // 34:409-421) indirect method, A = T D T' (T = L of Meuwissen & Luo):
 //
-//   - u = T' e_s by tracing the ancestors of s, youngest first;
+//   - u = T' e_s by passing weights from s up through its ancestors;
 //   - v = D u, which needs D only on s and its ancestors;
 //   - x = T v at the animals asked for, by x_i = v_i + (x_sire + x_dam)/2
 //     over their ancestors, memoised until the next start.
 type column struct {
-	p     *Pedigree
-	t     *tracer
-	v, x  []float64
-	stamp []int32 // column number that last computed x[j]
-	num   int32
-	anc   []int32 // s and its ancestors (where v is set)
-	stack []int32
+	p       *Pedigree
+	u, v, x []float64
+	stamp   []int32 // column number that last computed x[j]
+	seen    []int32 // column number that last listed j among the ancestors
+	num     int32
+	anc     []int32 // s and its ancestors, parents first (where v is set)
+	stack   []int32
 }
 
 func newColumn(p *Pedigree) *column {
 	n := len(p.ids)
-	return &column{p: p, t: newTracer(n), v: make([]float64, n), x: make([]float64, n), stamp: make([]int32, n)}
+	return &column{p: p, u: make([]float64, n), v: make([]float64, n), x: make([]float64, n),
+		stamp: make([]int32, n), seen: make([]int32, n)}
 }
 
 // start begins the column of s; d(j) must return D_j for s and its ancestors.
+// The ancestors are listed parents-first by a depth-first post-order walk
+// (no sorting or heap needed), and u is pushed from s up through them in
+// the reverse of that order, so each node passes on its u complete.
 func (c *column) start(s int32, d func(int32) float64) {
 	for _, j := range c.anc {
 		c.v[j] = 0
 	}
 	c.anc = c.anc[:0]
 	c.num++
-	p, t := c.p, c.t
-	t.push(s, 1)
-	for len(t.heap) > 0 {
-		j := t.pop()
-		uj := t.l[j]
-		t.l[j] = 0
+	p := c.p
+	// Post-order over s and its ancestors; ^j on the stack emits j.
+	c.stack = append(c.stack[:0], s)
+	for len(c.stack) > 0 {
+		j := c.stack[len(c.stack)-1]
+		c.stack = c.stack[:len(c.stack)-1]
+		if j < 0 {
+			c.anc = append(c.anc, ^j)
+			continue
+		}
+		if c.seen[j] == c.num {
+			continue
+		}
+		c.seen[j] = c.num
+		c.stack = append(c.stack, ^j)
+		if a := p.sire[j]; a >= 0 && c.seen[a] != c.num {
+			c.stack = append(c.stack, a)
+		}
+		if a := p.dam[j]; a >= 0 && c.seen[a] != c.num {
+			c.stack = append(c.stack, a)
+		}
+	}
+	u := c.u
+	u[s] = 1
+	for k := len(c.anc) - 1; k >= 0; k-- {
+		j := c.anc[k]
+		uj := u[j]
+		u[j] = 0
 		if a := p.sire[j]; a >= 0 {
-			t.push(a, 0.5*uj)
+			u[a] += 0.5 * uj
 		}
 		if a := p.dam[j]; a >= 0 {
-			t.push(a, 0.5*uj)
+			u[a] += 0.5 * uj
 		}
 		c.v[j] = d(j) * uj
-		c.anc = append(c.anc, j)
 	}
 }
 
