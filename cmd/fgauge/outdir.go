@@ -86,6 +86,19 @@ func (s *stagedDir) Commit() error {
 		}
 		return names[i] < names[j]
 	})
+	// Results of an earlier run that this run did not write again would
+	// mix two runs in one folder (only reachable with --force).
+	made := map[string]bool{}
+	for _, n := range names {
+		made[n] = true
+	}
+	for _, n := range outputNames {
+		if !made[n] {
+			if err := os.RemoveAll(filepath.Join(s.final, n)); err != nil {
+				return fmt.Errorf("removing the earlier run's %s: %w", n, err)
+			}
+		}
+	}
 	for _, n := range names {
 		dst := filepath.Join(s.final, n)
 		if st, err := os.Stat(dst); err == nil && st.IsDir() {

@@ -211,8 +211,19 @@ func TestScanRefusesExistingResults(t *testing.T) {
 	if code != exitBadInput || !strings.Contains(msg, "--force") {
 		t.Fatalf("second scan into %s: exit %d, %q; want exit 2 naming --force", out, code, msg)
 	}
+	// A table the earlier run wrote and this one does not must not survive
+	// to be mistaken for this run's result.
+	if err := os.WriteFile(filepath.Join(out, "populations.tsv"), []byte("stale\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
 	if code, msg := runCmd(t, "scan", in, "-o", out, "--no-roh", "--force"); code != 0 {
 		t.Fatalf("--force: exit %d: %s", code, msg)
+	}
+	if _, err := os.Stat(filepath.Join(out, "populations.tsv")); !os.IsNotExist(err) {
+		t.Errorf("stale populations.tsv left beside the new results (err %v)", err)
+	}
+	if _, err := os.Stat(filepath.Join(out, "samples.tsv")); err != nil {
+		t.Errorf("samples.tsv missing after --force: %v", err)
 	}
 }
 
