@@ -39,6 +39,7 @@ type Collector struct {
 	err   error
 
 	finished bool
+	oneLane  bool // tests: detect one sample at a time only
 }
 
 // chromWork is one chromosome sent to detection.
@@ -330,7 +331,7 @@ func (c *Collector) dispatch(ch *chromData) {
 
 func (c *Collector) worker() {
 	defer c.workers.Done()
-	var sc hmmScratch
+	var sc [2]hmmScratch
 	for j := range c.jobs {
 		c.detect(&sc, j)
 		j.done.Done()
@@ -351,15 +352,20 @@ func (c *Collector) workerErr() error {
 	return c.err
 }
 
-// detect finds the runs of samples j.s0..j.s1-1 on one chromosome.
-func (c *Collector) detect(sc *hmmScratch, j job) {
+// detect finds the runs of samples j.s0..j.s1-1 on one chromosome. With
+// the HMM on genotype codes and fixed parameters, samples go through the
+// passes two at a time (forwardViterbi2, backward2).
+func (c *Collector) detect(scs *[2]hmmScratch, j job) {
 	defer func() {
 		if r := recover(); r != nil {
 			c.setErr(fmt.Errorf("roh: detection on %s failed: %v", j.w.data.name, r))
 		}
 	}()
 	ch := j.w.data
+	sc := &scs[0]
 	maxGap := int64(c.cfg.MaxGapKB * 1000)
+	hasPL := ch.pl != nil
+	pairs := c.cfg.Method == MethodHMM && !c.cfg.Fit && !hasPL && !c.oneLane
 	for s := j.s0; s < j.s1; s++ {
 		if c.cfg.Method == MethodRules {
 			j.w.perSample[s] = rulesRuns(ch, s, sc, &c.cfg.Rules, maxGap)
@@ -367,7 +373,17 @@ func (c *Collector) detect(sc *hmmScratch, j job) {
 		}
 		sc.code = grow(sc.code, len(ch.pos))
 		ch.unpack(s, sc.code)
-		hasPL := ch.pl != nil
+		if pairs && s+1 < j.s1 {
+			s2 := &scs[1]
+			s2.code = grow(s2.code, len(ch.pos))
+			ch.unpack(s+1, s2.code)
+			forwardViterbi2(ch, ch.trans, c.cfg.AutozygousPrior, sc, s2)
+			backward2(ch.trans, c.cfg.AutozygousPrior, sc, s2)
+			j.w.perSample[s] = hmmRuns(ch, s, sc.code, sc.path, sc.post, maxGap)
+			j.w.perSample[s+1] = hmmRuns(ch, s+1, s2.code, s2.path, s2.post, maxGap)
+			s++
+			continue
+		}
 		if hasPL || c.cfg.Fit {
 			sc.fillEmissions(ch, s)
 		}

@@ -618,3 +618,44 @@ func FuzzReadGeneticMap(f *testing.F) {
 		}
 	})
 }
+
+// The two-lane HMM passes give exactly the runs and qualities of the
+// one-lane passes (odd and even sample counts).
+func TestTwoLanesMatchOneLane(t *testing.T) {
+	for _, ns := range []int{7, 8} {
+		contigs, sites := randomCohort(21, ns)
+		var out [2]*Result
+		for k, one := range []bool{true, false} {
+			c, err := NewCollector(DefaultConfig(), sampleNames(ns), contigs)
+			if err != nil {
+				t.Fatal(err)
+			}
+			c.oneLane = one
+			bs, fs := batches(sites, ns, 500)
+			for i, b := range bs {
+				if err := c.AddBatch(b, fs[i]); err != nil {
+					t.Fatal(err)
+				}
+			}
+			if out[k], err = c.Finish(); err != nil {
+				t.Fatal(err)
+			}
+		}
+		n := 0
+		for ci := range out[0].Chroms {
+			a, b := out[0].Chroms[ci].Runs, out[1].Chroms[ci].Runs
+			if len(a) != len(b) {
+				t.Fatalf("%d samples, %s: %d runs one lane, %d two lanes", ns, out[0].Chroms[ci].Name, len(a), len(b))
+			}
+			for i := range a {
+				if a[i] != b[i] {
+					t.Errorf("run %d: one lane %+v, two lanes %+v", i, a[i], b[i])
+				}
+				n++
+			}
+		}
+		if n < ns {
+			t.Errorf("%d samples: only %d runs compared", ns, n)
+		}
+	}
+}

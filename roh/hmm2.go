@@ -1,0 +1,127 @@
+package roh
+
+import "math"
+
+// The two-lane passes below run the same recursions as forwardViterbi
+// (lookup mode) and backward for two samples at once. One sample's
+// recursion is a chain of dependent multiplications that leaves most of
+// the processor idle; two independent chains in one loop fill it, and the
+// per-site tables are read once for both. The arithmetic of each lane is
+// exactly that of the one-lane pass, so results are identical
+// (TestTwoLanesMatchOneLane).
+
+// vstep is one Viterbi step of one lane: branch-free max and argmax of
+// non-negative floats through their bit patterns (see forwardViterbi).
+func vstep(va, vn, aa, na2, an2, nn float64) (float64, float64, uint8) {
+	xa := int64(math.Float64bits(va * aa))
+	xn := int64(math.Float64bits(vn * na2))
+	ya := int64(math.Float64bits(va * an2))
+	yn := int64(math.Float64bits(vn * nn))
+	sa := (xn - xa) >> 63
+	sn := (yn - ya) >> 63
+	fl := uint8(1+sa) | uint8(-sn)<<1
+	return math.Float64frombits(uint64(xa ^ ((xa ^ xn) &^ sa))), math.Float64frombits(uint64(yn ^ ((yn ^ ya) & sn))), fl
+}
+
+// traceback turns Viterbi back-pointer flags into the state path in place.
+func traceback(bp []uint8, va, vn float64) {
+	st := uint8(stA)
+	if vn >= va {
+		st = stN
+	}
+	for t := len(bp) - 1; t >= 0; t-- {
+		fl := bp[t]
+		bp[t] = st
+		if st == stA {
+			if fl&1 != 0 {
+				st = stN
+			}
+		} else if fl&2 != 0 {
+			st = stA
+		}
+	}
+}
+
+// forwardViterbi2 is forwardViterbi in lookup mode for the samples whose
+// codes are in w1.code and w2.code.
+func forwardViterbi2(ch *chromData, u []float64, f float64, w1, w2 *hmmScratch) {
+	n := len(w1.code)
+	for _, w := range [2]*hmmScratch{w1, w2} {
+		w.alpha = grow(w.alpha, 2*n)
+		w.path = grow(w.path, n)
+		w.em = grow(w.em, 2*n)
+	}
+	tab := ch.emit
+	u = u[:n]
+	em1, al1, bp1, c1 := w1.em[:2*n], w1.alpha[:2*n], w1.path[:n], w1.code[:n]
+	em2, al2, bp2, c2 := w2.em[:2*n], w2.alpha[:2*n], w2.path[:n], w2.code[:n]
+	g1, g2 := c1[0]&3, c2[0]&3
+	em1[0], em1[1] = float64(tab[g1]), float64(tab[4+g1])
+	em2[0], em2[1] = float64(tab[g2]), float64(tab[4+g2])
+	a1, b1 := f*em1[0], (1-f)*em1[1]
+	a2, b2 := f*em2[0], (1-f)*em2[1]
+	al1[0], al1[1], al2[0], al2[1] = a1, b1, a2, b2
+	va1, vn1, va2, vn2 := a1, b1, a2, b2
+	bp1[0], bp2[0] = 0, 0
+	for t := 1; t < n; t++ {
+		row := tab[8*t : 8*t+8 : 8*t+8]
+		g1, g2 := c1[t]&3, c2[t]&3
+		e1a, e1n := float64(row[g1]), float64(row[4+g1])
+		e2a, e2n := float64(row[g2]), float64(row[4+g2])
+		em1[2*t], em1[2*t+1] = e1a, e1n
+		em2[2*t], em2[2*t+1] = e2a, e2n
+		an, na := u[t]*(1-f), u[t]*f
+		sa, sn := 1-an, 1-na
+		aa1, na21, an21, nn1 := sa*e1a, na*e1a, an*e1n, sn*e1n
+		aa2, na22, an22, nn2 := sa*e2a, na*e2a, an*e2n, sn*e2n
+		a1, b1 = a1*aa1+b1*na21, a1*an21+b1*nn1
+		a2, b2 = a2*aa2+b2*na22, a2*an22+b2*nn2
+		var fl1, fl2 uint8
+		va1, vn1, fl1 = vstep(va1, vn1, aa1, na21, an21, nn1)
+		va2, vn2, fl2 = vstep(va2, vn2, aa2, na22, an22, nn2)
+		if t%rescaleEvery == 0 {
+			inv1, inv2 := 1/(a1+b1), 1/(a2+b2)
+			a1, b1, a2, b2 = a1*inv1, b1*inv1, a2*inv2, b2*inv2
+			inv1, inv2 = 1/max(va1, vn1), 1/max(va2, vn2)
+			va1, vn1, va2, vn2 = va1*inv1, vn1*inv1, va2*inv2, vn2*inv2
+		}
+		al1[2*t], al1[2*t+1] = a1, b1
+		al2[2*t], al2[2*t+1] = a2, b2
+		bp1[t], bp2[t] = fl1, fl2
+	}
+	traceback(bp1, va1, vn1)
+	traceback(bp2, va2, vn2)
+}
+
+// backward2 is backward (without EM statistics) for two samples.
+func backward2(u []float64, f float64, w1, w2 *hmmScratch) {
+	n := len(w1.em) / 2
+	w1.post = grow(w1.post, n)
+	w2.post = grow(w2.post, n)
+	em1, al1, post1, p1 := w1.em[:2*n], w1.alpha[:2*n], w1.post[:n], w1.path[:n]
+	em2, al2, post2, p2 := w2.em[:2*n], w2.alpha[:2*n], w2.post[:n], w2.path[:n]
+	u = u[:n]
+	ba1, bn1, ba2, bn2 := 1.0, 1.0, 1.0, 1.0
+	post1[n-1] = al1[2*n-2] / (al1[2*n-2] + al1[2*n-1])
+	post2[n-1] = al2[2*n-2] / (al2[2*n-2] + al2[2*n-1])
+	for t := n - 1; t >= 1; t-- {
+		an, na := u[t]*(1-f), u[t]*f
+		k0, k1, k2, k3 := 1-an, an, na, 1-na
+		e1a, e1n := em1[2*t], em1[2*t+1]
+		e2a, e2n := em2[2*t], em2[2*t+1]
+		ba1, bn1 = (k0*e1a)*ba1+(k1*e1n)*bn1, (k2*e1a)*ba1+(k3*e1n)*bn1
+		ba2, bn2 = (k0*e2a)*ba2+(k1*e2n)*bn2, (k2*e2a)*ba2+(k3*e2n)*bn2
+		if t%rescaleEvery == 0 {
+			inv1, inv2 := 1/(ba1+bn1), 1/(ba2+bn2)
+			ba1, bn1, ba2, bn2 = ba1*inv1, bn1*inv1, ba2*inv2, bn2*inv2
+		}
+		if p1[t-1] == stA {
+			p, q := al1[2*t-2]*ba1, al1[2*t-1]*bn1
+			post1[t-1] = p / (p + q)
+		}
+		if p2[t-1] == stA {
+			p, q := al2[2*t-2]*ba2, al2[2*t-1]*bn2
+			post2[t-1] = p / (p + q)
+		}
+	}
+}
