@@ -183,6 +183,13 @@ func mustOpen(t *testing.T, path string) *os.File {
 // herds: full-sib, half-sib and first-cousin matings) with a tabix index.
 func simulatedInput(t *testing.T, dir string) string {
 	t.Helper()
+	return simulatedInputDepth(t, dir, "herds.vcf.gz", 0)
+}
+
+// simulatedInputDepth is simulatedInput with simulated reads of the given
+// mean depth (GT:DP:PL) when depth > 0.
+func simulatedInputDepth(t *testing.T, dir, name string, depth float64) string {
+	t.Helper()
 	var designs []simulate.Design
 	for _, s := range []string{"full_sib", "half_sib", "first_cousin"} {
 		d, err := simulate.ParseDesign(s)
@@ -199,11 +206,12 @@ func simulatedInput(t *testing.T, dir string) string {
 		SiteSpacing:   15_000,
 		MissingRate:   0.01,
 		GenotypeError: 0.001,
+		Depth:         depth,
 	})
 	if err != nil {
 		t.Fatal(err)
 	}
-	path := filepath.Join(dir, "herds.vcf.gz")
+	path := filepath.Join(dir, name)
 	if err := simulate.WriteVCFBGZF(path, res); err != nil {
 		t.Fatal(err)
 	}
@@ -213,16 +221,18 @@ func simulatedInput(t *testing.T, dir string) string {
 func TestShardMergeIdentity(t *testing.T) {
 	dir := t.TempDir()
 	sim := simulatedInput(t, dir)
+	simDepth := simulatedInputDepth(t, dir, "herds_reads.vcf.gz", 6)
 	cases := []struct {
-		name   string
-		input  string
-		opts   func(dir string) []string
-		splits []shardSplit
+		name    string
+		input   string
+		opts    func(dir string) []string
+		splits  []shardSplit
+		minRuns int // runs.tsv rows the single pass must have, so that the check is not empty
 	}{
 		{
 			// Real data: 1000 Genomes chr22 excerpt (r-bioc-variantannotation),
 			// one chromosome, so every split cuts it.
-			name: "chr22", input: "../../testdata/chr22_1000g.vcf.gz",
+			name: "chr22", input: "../../testdata/chr22_1000g.vcf.gz", minRuns: 5,
 			opts: func(string) []string { return nil },
 			splits: []shardSplit{
 				{"two", [][]string{{"22:1-50600000"}, {"22:50600001-"}}},
@@ -247,7 +257,7 @@ func TestShardMergeIdentity(t *testing.T) {
 		{
 			// Simulated three-chromosome cohort: whole chromosomes and
 			// split ones in one merge.
-			name: "simulated", input: sim,
+			name: "simulated", input: sim, minRuns: 20,
 			opts: func(d string) []string {
 				return []string{"--populations", writePopulations(t, d, sim), "--jackknife-block-mb", "2"}
 			},
@@ -261,12 +271,24 @@ func TestShardMergeIdentity(t *testing.T) {
 		{
 			// The same cohort with the rule-based detector and frequencies
 			// from the populations.
-			name: "simulated_rules", input: sim,
+			name: "simulated_rules", input: sim, minRuns: 5,
 			opts: func(d string) []string {
 				return []string{"--roh-method", "rules", "--rules-min-sites", "20"}
 			},
 			splits: []shardSplit{
 				{"three", [][]string{{"1:1-9000000"}, {"1:9000001-", "2:1-4000000"}, {"2:4000001-", "3"}}},
+			},
+		},
+		{
+			// Simulated reads: the HMM uses the likelihoods (PL), fits its
+			// parameters per sample and chromosome, and the estimators take
+			// frequencies from INFO.
+			name: "simulated_reads_fit", input: simDepth, minRuns: 20,
+			opts: func(string) []string {
+				return []string{"--fit", "--freqs-from-info", "POOL_AF"}
+			},
+			splits: []shardSplit{
+				{"three", [][]string{{"1:1-11000000"}, {"1:11000001-23456789"}, {"1:23456790-", "2", "3"}}},
 			},
 		},
 	}
@@ -278,6 +300,10 @@ func TestShardMergeIdentity(t *testing.T) {
 			}
 			opts := tc.opts(d)
 			single := scanSingle(t, d, tc.input, opts)
+			runs, _ := os.ReadFile(filepath.Join(single, "runs.tsv"))
+			if n := bytes.Count(runs, []byte("\n")) - 1; n < tc.minRuns {
+				t.Errorf("single pass found %d runs, want at least %d for a meaningful check", n, tc.minRuns)
+			}
 			for _, sp := range tc.splits {
 				t.Run(sp.name, func(t *testing.T) {
 					assertSameOutputs(t, single, scanShards(t, d, tc.input, opts, sp))
@@ -604,4 +630,46 @@ func TestCompareOutputDirs(t *testing.T) {
 		t.Skip("FGAUGE_COMPARE_SINGLE and FGAUGE_COMPARE_MERGED not set")
 	}
 	assertSameOutputs(t, a, b)
+}
+
+// FuzzReadStateFile feeds damaged state files to the reader: it must
+// return an error wrapping errStateCorrupt (or a usage error for an
+// unreadable file) and never panic; anything it accepts must be complete.
+func FuzzReadStateFile(f *testing.F) {
+	dir := f.TempDir()
+	st := filepath.Join(dir, "seed.state")
+	var out, errb bytes.Buffer
+	env := &runEnv{stdout: &out, stderr: &errb, argv: []string{"fgauge"}}
+	if code := run(context.Background(), env, []string{"scan", "../../testdata/cohort189.vcf.gz", "--region", "1:12001-",
+		"-o", filepath.Join(dir, "seed"), "--state-out", st, "--no-progress", "--threads", "1"}); code != exitOK {
+		f.Fatalf("scan: %s", errb.String())
+	}
+	seed, err := os.ReadFile(st)
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Add(seed)
+	f.Add(seed[:stateHead])
+	f.Add(seed[:len(seed)-1])
+	f.Add([]byte(stateMagic))
+	f.Add([]byte{})
+	f.Fuzz(func(t *testing.T, data []byte) {
+		p := filepath.Join(t.TempDir(), "x.state")
+		if err := os.WriteFile(p, data, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		s, err := readStateFile(p)
+		if err != nil {
+			if !errors.Is(err, errStateCorrupt) {
+				t.Fatalf("error does not wrap errStateCorrupt: %v", err)
+			}
+			if !strings.Contains(err.Error(), p) {
+				t.Fatalf("error does not name the file: %v", err)
+			}
+			return
+		}
+		if s.Totals == nil || s.Version == "" {
+			t.Fatalf("accepted an incomplete state")
+		}
+	})
 }
