@@ -11,7 +11,8 @@ package roh
 // collected: N*S/4 bytes of genotypes (up to twice that transiently while
 // the per-sample slices grow) + 3*N bytes per site with likelihoods + 20*S
 // bytes of per-site data; while it is detected, another 48*S bytes of
-// shared tables and 42*S bytes per worker (50*S with Fit). At most two
+// shared tables and 84*S bytes per worker (two samples at a time; 50*S
+// with Fit or likelihoods, one sample at a time). At most two
 // chromosomes are held at once: the one being read and the one being
 // detected. BenchmarkCollect measures 0.36 heap bytes per sample-site at
 // 1,000 samples and 20,000 sites (0.25 packed, the rest slice growth and
