@@ -120,7 +120,11 @@ func (w *hmmScratch) fillEmissions(ch *chromData, s int) {
 	for t, g := range w.code {
 		row := tab[8*t : 8*t+8 : 8*t+8]
 		if k := ch.plSite[t]; pl != nil && k >= 0 {
-			l0, l1, l2 := plLinear[pl[3*k]], plLinear[pl[3*k+1]], plLinear[pl[3*k+2]]
+			// relative to the most likely genotype, so the largest
+			// likelihood is 1 and long stretches cannot underflow
+			q0, q1, q2 := pl[3*k], pl[3*k+1], pl[3*k+2]
+			m := min(q0, q1, q2)
+			l0, l1, l2 := plLinear[q0-m], plLinear[q1-m], plLinear[q2-m]
 			em[2*t] = l0*float64(row[0]) + l1*float64(row[1]) + l2*float64(row[2])
 			em[2*t+1] = l0*float64(row[4]) + l1*float64(row[5]) + l2*float64(row[6])
 			continue
