@@ -312,7 +312,7 @@ type bcfDecoder struct {
 	keyGT, keyGQ, keyDP, keyPL, keyGL, keyInfo int // dictionary indices, -1 when absent
 	dictErr                                    error
 	num                                        [48]byte
-	fcache                                     [256]bcfFloatEntry
+	fcache                                     [4096]bcfFloatEntry
 }
 
 // bcfFloatEntry caches the float64 value of one float32 bit pattern.
@@ -503,7 +503,7 @@ func (d *bcfDecoder) bcfNumber(b []byte, typ byte, i int) (float64, bool) {
 		}
 		// Likelihoods and frequencies repeat a lot: a small direct-mapped
 		// cache saves the decimal round trip.
-		e := &d.fcache[(bits*2654435761)>>24]
+		e := &d.fcache[(bits*2654435761)>>20]
 		if e.set && e.bits == bits {
 			return e.val, e.ok
 		}
@@ -910,27 +910,42 @@ func (d *bcfDecoder) track(id int, pos, index int64) {
 func (d *bcfDecoder) likelihoods(dst []uint16, f bcfField, s int, gl bool) {
 	var v [3]uint16
 	m := 0
-	for k := 0; k < f.n; k++ {
-		off := s*f.n + k
-		if f.typ == bcfTypeFloat {
-			if binary.LittleEndian.Uint32(f.data[4*off:]) == bcfFloatVectorEnd {
+	base := s * f.n
+	switch f.typ {
+	case bcfTypeInt8, bcfTypeInt16, bcfTypeInt32:
+		// Integers (PL as htslib writes it) need no decimal round trip.
+		for k := 0; k < f.n; k++ {
+			x := bcfInt(f.data, f.typ, base+k)
+			if x == bcfIntVectorEnd {
 				break
 			}
-		} else if f.typ != bcfTypeChar && bcfInt(f.data, f.typ, off) == bcfIntVectorEnd {
-			break
+			if m == 3 || x == bcfIntMissing {
+				return // a missing value, or more than three values
+			}
+			fx := float64(x)
+			if gl {
+				fx = math.Round(-10 * fx)
+			}
+			v[m] = clampU16(fx)
+			m++
 		}
-		if m == 3 {
-			return // more than three values: not a biallelic diploid list
+	case bcfTypeFloat:
+		for k := 0; k < f.n; k++ {
+			if binary.LittleEndian.Uint32(f.data[4*(base+k):]) == bcfFloatVectorEnd {
+				break
+			}
+			x, ok := d.bcfNumber(f.data, f.typ, base+k)
+			if m == 3 || !ok {
+				return
+			}
+			if gl {
+				x = math.Round(-10 * x)
+			}
+			v[m] = clampU16(x)
+			m++
 		}
-		x, ok := d.bcfNumber(f.data, f.typ, off)
-		if !ok || f.typ == bcfTypeChar {
-			return
-		}
-		if gl {
-			x = math.Round(-10 * x)
-		}
-		v[m] = clampU16(x)
-		m++
+	default:
+		return // text likelihoods are not numbers we decode
 	}
 	switch m {
 	case 3:
