@@ -2,6 +2,7 @@ package roh
 
 import (
 	"bytes"
+	"encoding/gob"
 	"errors"
 	"math"
 	"math/rand/v2"
@@ -656,6 +657,45 @@ func TestTwoLanesMatchOneLane(t *testing.T) {
 		}
 		if n < ns {
 			t.Errorf("%d samples: only %d runs compared", ns, n)
+		}
+	}
+}
+
+// Results and configurations survive encoding/gob (shard states), and a
+// decoded result writes the same tables.
+func TestGobRoundTrip(t *testing.T) {
+	const ns = 4
+	contigs, sites := randomCohort(8, ns)
+	for _, method := range []string{MethodHMM, MethodRules} {
+		cfg := DefaultConfig()
+		cfg.Method = method
+		cfg.Map, _ = ReadGeneticMap(strings.NewReader("1 1 0\n1 30000000 40\n"), "map")
+		r := collect(t, cfg, sampleNames(ns), contigs, sites)
+		var buf bytes.Buffer
+		if err := gob.NewEncoder(&buf).Encode(struct {
+			R *Result
+			C *Config
+		}{r, cfg}); err != nil {
+			t.Fatal(err)
+		}
+		var back struct {
+			R *Result
+			C *Config
+		}
+		if err := gob.NewDecoder(&buf).Decode(&back); err != nil {
+			t.Fatal(err)
+		}
+		var w1, w2 bytes.Buffer
+		r.WriteRuns(&w1)
+		back.R.WriteRuns(&w2)
+		if w1.String() != w2.String() || strings.Count(w1.String(), "\n") < 2 {
+			t.Errorf("%s: runs.tsv differs after gob round trip", method)
+		}
+		if back.C.Map.chrom("1").At(15_000_000, 1) != cfg.Map.chrom("1").At(15_000_000, 1) {
+			t.Errorf("%s: map lost in round trip", method)
+		}
+		if !back.R.MapUsed || back.R.Chroms[0].MapSource != "genetic_map" || back.R.Chroms[1].MapSource != "cm_per_mb" {
+			t.Errorf("%s: map sources %v %q %q", method, back.R.MapUsed, back.R.Chroms[0].MapSource, back.R.Chroms[1].MapSource)
 		}
 	}
 }
