@@ -673,3 +673,37 @@ func FuzzReadStateFile(f *testing.F) {
 		}
 	})
 }
+
+// TestShardOrderWithoutContigLines merges shards of a file whose contigs
+// (2, 1, 10 in file order) have no ##contig lines: the genome order comes
+// from the tabix index, so the joined site table follows the file.
+func TestShardOrderWithoutContigLines(t *testing.T) {
+	dir := t.TempDir()
+	input := "../../testdata/shard/no_contig_lines.vcf.gz"
+	single := scanSingle(t, dir, input, nil)
+	merged := scanShards(t, dir, input, nil, shardSplit{"order", [][]string{{"2"}, {"1:1-1500000"}, {"1:1500001-", "10:1-100000"}, {"10:100001-"}}})
+	assertSameOutputs(t, single, merged)
+}
+
+// TestPlanCSI plans the BCF twin of the chr22 file through its CSI index
+// and scans the planned shards in-process: the merge equals one pass.
+func TestPlanCSI(t *testing.T) {
+	dir := t.TempDir()
+	input := "../../testdata/bcf/chr22_1000g.bcf"
+	planDir := filepath.Join(dir, "plan")
+	if code, _, e := runCmdline(t, "plan", input, "-o", planDir, "--shards", "3"); code != exitOK {
+		t.Fatalf("plan: exit %d: %s", code, e)
+	}
+	tsv, err := os.ReadFile(filepath.Join(planDir, "shards.tsv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	sp := shardSplit{name: "planned"}
+	for _, line := range strings.Split(strings.TrimSpace(string(tsv)), "\n")[1:] {
+		sp.shards = append(sp.shards, strings.Split(strings.Split(line, "\t")[1], ","))
+	}
+	if len(sp.shards) != 3 {
+		t.Fatalf("want 3 shards of the one chromosome:\n%s", tsv)
+	}
+	assertSameOutputs(t, scanSingle(t, dir, input, nil), scanShards(t, dir, input, nil, sp))
+}

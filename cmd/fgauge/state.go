@@ -445,7 +445,9 @@ type shardFlags struct {
 	fs        *flag.FlagSet
 
 	pc          *roh.PieceCollector
-	contigOrder []string // header contigs at open
+	contigOrder []string // genome order: see genomeOrder
+	input       string
+	nHeader     int // contigs in the header at open
 }
 
 func addShardFlags(fs *flag.FlagSet) *shardFlags {
@@ -483,6 +485,7 @@ func (f *shardFlags) identity(o *scanOptions) (*shardState, error) {
 // that spans their boundary.
 func (f *shardFlags) skipIfValid(env *runEnv, o *scanOptions) (bool, error) {
 	if f.on() {
+		f.input = o.input
 		o.read.RegionsByStart = true
 		if o.report {
 			return false, usagef("--report needs the tables of a whole run: run 'fgauge report' on the output of 'fgauge merge'")
@@ -542,6 +545,33 @@ func (f *shardFlags) separateHeader(ws ...*vcfscan.BGZFWriter) error {
 	return nil
 }
 
+// genomeOrder is the order merge puts shards and chromosomes in: the
+// references of the index (the order of the file for tabix, whose names
+// are listed as first met), then header contigs the index lacks; without
+// an index (a shard of the whole file), the header's contig order.
+func genomeOrder(input string, contigs []vcfscan.Contig, regs []vcfscan.Region) []string {
+	var order []string
+	seen := map[string]bool{}
+	if len(regs) > 0 {
+		hdr := &vcfscan.Header{Contigs: contigs}
+		if refs, err := readIndexRefs(input, hdr); err == nil {
+			for _, r := range refs {
+				if !seen[r.name] {
+					seen[r.name] = true
+					order = append(order, r.name)
+				}
+			}
+		}
+	}
+	for _, c := range contigs {
+		if !seen[c.Name] {
+			seen[c.Name] = true
+			order = append(order, c.Name)
+		}
+	}
+	return order
+}
+
 // batchSink receives batches in input order (the ROH collector, or a
 // shardSink in front of it).
 type batchSink interface {
@@ -552,10 +582,8 @@ type batchSink interface {
 // plain scan, and for a shard a router that keeps chromosomes held in
 // part as raw pieces.
 func (f *shardFlags) sink(rc *roh.Collector, cfg *roh.Config, samples []string, contigs []vcfscan.Contig, regs []vcfscan.Region) (batchSink, error) {
-	f.contigOrder = f.contigOrder[:0]
-	for _, c := range contigs {
-		f.contigOrder = append(f.contigOrder, c.Name)
-	}
+	f.contigOrder = genomeOrder(f.input, contigs, regs)
+	f.nHeader = len(contigs)
 	if rc == nil {
 		return nil, nil
 	}
@@ -591,7 +619,7 @@ func (f *shardFlags) writeState(o *scanOptions, rd *vcfscan.Reader, counts *vcfs
 	st.SamplesInFile = rd.Header().Samples
 	st.Samples = samples
 	st.ContigOrder = f.contigOrder
-	for _, c := range rd.Header().Contigs[len(f.contigOrder):] {
+	for _, c := range rd.Header().Contigs[f.nHeader:] {
 		st.ExtraContigs = append(st.ExtraContigs, c.Name)
 	}
 	st.Read, st.Kept, st.Masked = counts.Read, kept, counts.Masked
