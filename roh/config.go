@@ -77,6 +77,10 @@ type Rules struct {
 	MinKB        float64 // minimum run length, kb
 	MinSites     int     // minimum number of sites in a run
 	MaxKBPerSite float64 // minimum density, as the largest mean spacing (kb per site)
+	// EdgeHomSites: a tolerated heterozygous call needs at least this many
+	// homozygous calls between it and the end of the run; otherwise the
+	// run ends before it (see trimEdges). 0 disables.
+	EdgeHomSites int
 }
 
 // DefaultConfig returns the defaults documented in the command help.
@@ -98,7 +102,9 @@ type Rules struct {
 //     (Ferenčaković et al. 2013, Genet Sel Evol 45:42, recommend allowing
 //     about one heterozygote per run on medium-density arrays and none on
 //     dense ones), 1000 kb minimum length, 30 sites, at most 100 kb per site
-//     on average, and runs split at gaps over 1000 kb (chosen by us).
+//     on average, at least 10 homozygous calls between a tolerated
+//     heterozygote and the run's end, and runs split at gaps over 1000 kb
+//     (chosen by us).
 func DefaultConfig() *Config {
 	return &Config{
 		Method:          MethodHMM,
@@ -114,6 +120,7 @@ func DefaultConfig() *Config {
 			MinKB:        1000,
 			MinSites:     30,
 			MaxKBPerSite: 100,
+			EdgeHomSites: 10,
 		},
 		Threads: 1,
 	}
@@ -257,8 +264,8 @@ func (c *Config) Validate() error {
 		return bad("maximum gap %g kb: want a positive number", c.MaxGapKB)
 	}
 	r := c.Rules
-	if r.MaxHet < 0 || r.MaxMissing < 0 || r.MinSites < 1 || r.MinKB < 0 || !(r.MaxKBPerSite > 0) {
-		return bad("rule thresholds: want max het >= 0, max missing >= 0, min sites >= 1, min kb >= 0, kb per site > 0")
+	if r.MaxHet < 0 || r.MaxMissing < 0 || r.MinSites < 1 || r.MinKB < 0 || !(r.MaxKBPerSite > 0) || r.EdgeHomSites < 0 {
+		return bad("rule thresholds: want max het >= 0, max missing >= 0, min sites >= 1, min kb >= 0, kb per site > 0, edge sites >= 0")
 	}
 	if c.Threads < 1 {
 		c.Threads = 1

@@ -12,8 +12,9 @@ import (
 // A made-up calf typed at 400 sites, one every 25 kb on chromosome 1,
 // homozygous from 2 Mb to 7 Mb and cycling 0/0, 0/1, 1/1 outside. The two
 // homozygous calls just before 2 Mb (1.95 and 1.975 Mb) are part of the
-// stretch as far as any detector can tell, and the rule-based detector
-// tolerates one heterozygous call (at 1.925 Mb), reaching 1.875 Mb.
+// stretch as far as any detector can tell. The rule-based detector would
+// tolerate the heterozygous call at 1.925 Mb, but not so close to the
+// run's end (see Rules.EdgeHomSites), so it stops at 1.95 Mb too.
 func calfBatch() (*vcfscan.Batch, []float64) {
 	b := &vcfscan.Batch{NSamples: 1}
 	var freqs []float64
@@ -74,7 +75,7 @@ func ExampleResult_WriteRuns() {
 	res.WriteRuns(os.Stdout)
 	// Output:
 	// sample	chrom	start	end	length_bp	length_cm	n_sites	n_het	n_missing	quality	generations_back
-	// calf_07	1	1875000	7000000	5125001	5.125	206	1	0	NA	9.75609756097561
+	// calf_07	1	1950000	7000000	5050001	5.05	203	0	0	NA	9.900990099009901
 }
 
 func ExampleReadGeneticMap() {

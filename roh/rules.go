@@ -147,7 +147,12 @@ func rulesRuns(ch *chromData, s int, sc *hmmScratch, r *Rules, maxGap int64) []R
 		}
 	}
 	runs := make([]Run, 0, len(acc))
+	isHet := func(t int) bool { return words[t>>5]>>(uint(t&31)*2)&3 == 1 }
 	for _, w := range acc {
+		w[0], w[1] = trimEdges(w[0], w[1], isHet, bad, r.EdgeHomSites)
+		if w[0] > w[1] || !ok(w[0], w[1]) {
+			continue
+		}
 		run := Run{Sample: s, Start: ch.pos[w[0]], End: ch.pos[w[1]], StartCM: ch.cm[w[0]], EndCM: ch.cm[w[1]],
 			NSites: w[1] - w[0] + 1, Quality: math.NaN()}
 		k := sort.Search(len(ev), func(k int) bool { return int(ev[k]) >= w[0] })
@@ -161,6 +166,51 @@ func rulesRuns(ch *chromData, s int, sc *hmmScratch, r *Rules, maxGap int64) []R
 		runs = append(runs, run)
 	}
 	return runs
+}
+
+// trimEdges shortens the accepted run [a, b] so that every heterozygous
+// call in it has at least edge homozygous calls between it and each end.
+// Near a boundary of a true autozygous stretch, a tolerated heterozygote
+// followed by a few homozygous calls is more likely the boundary than a
+// genotyping error: without this, runs overshoot their true ends by a few
+// sites on average and F_ROH is biased upward. It returns a > b when
+// nothing is left.
+func trimEdges(a, b int, isHet, bad func(int) bool, edge int) (int, int) {
+	if edge <= 0 {
+		return a, b
+	}
+	for changed := true; changed && a <= b; {
+		changed = false
+		hom := 0
+		for t := b; t >= a && hom < edge; t-- {
+			if isHet(t) {
+				b = t - 1
+				for b >= a && bad(b) {
+					b--
+				}
+				changed = true
+				break
+			}
+			if !bad(t) {
+				hom++
+			}
+		}
+		hom = 0
+		for t := a; t <= b && hom < edge; t++ {
+			if isHet(t) {
+				a = t + 1
+				for a <= b && bad(a) {
+					a++
+				}
+				changed = true
+				break
+			}
+			if !bad(t) {
+				hom++
+			}
+		}
+	}
+	return a, b
 }
 
 func pushTrimmed(h *candHeap, ch *chromData, bad func(int) bool, a, b int, ok func(a, b int) bool) {

@@ -110,7 +110,13 @@ func rulesRunsRef(ch *chromData, s int, code []uint8, r *Rules, maxGap int64) []
 		}
 	}
 	runs := make([]Run, 0, len(acc))
+	isHet := func(t int) bool { return code[t] == 1 }
+	bad := func(t int) bool { return code[t] == 1 || code[t] == 3 }
 	for _, w := range acc {
+		w[0], w[1] = trimEdges(w[0], w[1], isHet, bad, r.EdgeHomSites)
+		if w[0] > w[1] || !ok(w[0], w[1]) {
+			continue
+		}
 		run := Run{Sample: s, Start: ch.pos[w[0]], End: ch.pos[w[1]], StartCM: ch.cm[w[0]], EndCM: ch.cm[w[1]],
 			NSites: w[1] - w[0] + 1, Quality: math.NaN()}
 		for t := w[0]; t <= w[1]; t++ {
@@ -172,7 +178,8 @@ func TestRulesFastMatchesReference(t *testing.T) {
 	rules := []Rules{
 		{MaxHet: 0, MaxMissing: 0, MinKB: 0, MinSites: 1, MaxKBPerSite: 1e9},
 		{MaxHet: 1, MaxMissing: 2, MinKB: 100, MinSites: 5, MaxKBPerSite: 100},
-		{MaxHet: 3, MaxMissing: 1, MinKB: 500, MinSites: 20, MaxKBPerSite: 50},
+		{MaxHet: 1, MaxMissing: 2, MinKB: 100, MinSites: 5, MaxKBPerSite: 100, EdgeHomSites: 10},
+		{MaxHet: 3, MaxMissing: 1, MinKB: 500, MinSites: 20, MaxKBPerSite: 50, EdgeHomSites: 3},
 		{MaxHet: 8, MaxMissing: 200, MinKB: 1000, MinSites: 100, MaxKBPerSite: 100},
 	}
 	rng := rand.New(rand.NewPCG(9, 9))
@@ -226,7 +233,8 @@ func FuzzRules(f *testing.F) {
 			}
 			pos[i] = p
 		}
-		r := Rules{MaxHet: int(maxHet % 6), MaxMissing: int(maxMiss % 6), MinKB: 0, MinSites: 1, MaxKBPerSite: 1e9}
+		r := Rules{MaxHet: int(maxHet % 6), MaxMissing: int(maxMiss % 6), MinKB: 0, MinSites: 1, MaxKBPerSite: 1e9,
+			EdgeHomSites: int(maxHet / 6 % 4)}
 		rulesBoth(t, codes, pos, r, 15_000)
 	})
 }

@@ -32,6 +32,7 @@ type rohFlags struct {
 	minKB       float64
 	minSites    int
 	maxKBPerSit float64
+	edgeSites   int
 }
 
 // rohHelp is appended to the scan help.
@@ -89,6 +90,8 @@ func addROHFlags(fs *flag.FlagSet) *rohFlags {
 	fs.IntVar(&f.minSites, "rules-min-sites", d.Rules.MinSites, "rules: minimum number of sites in a run")
 	fs.Float64Var(&f.maxKBPerSit, "rules-max-kb-per-site", d.Rules.MaxKBPerSite,
 		"rules: minimum density, as the largest mean spacing in kb per site")
+	fs.IntVar(&f.edgeSites, "rules-edge-hom-sites", d.Rules.EdgeHomSites,
+		"rules: homozygous calls needed between a tolerated heterozygote and the run's end, else the run stops before it (0: off)")
 	return f
 }
 
@@ -107,7 +110,8 @@ func (f *rohFlags) config() (*roh.Config, error) {
 	c.Rate = f.rate
 	c.Species = f.species
 	c.MaxGapKB = f.maxGapKB
-	c.Rules = roh.Rules{MaxHet: f.maxHet, MaxMissing: f.maxMissing, MinKB: f.minKB, MinSites: f.minSites, MaxKBPerSite: f.maxKBPerSit}
+	c.Rules = roh.Rules{MaxHet: f.maxHet, MaxMissing: f.maxMissing, MinKB: f.minKB, MinSites: f.minSites, MaxKBPerSite: f.maxKBPerSit,
+		EdgeHomSites: f.edgeSites}
 	c.Classes = nil
 	for _, s := range strings.Split(f.classes, ",") {
 		if s = strings.TrimSpace(s); s == "" {
