@@ -383,14 +383,11 @@ func (z *bgzfReader) Read(p []byte) (int, error) {
 	}
 }
 
-// Close stops the pipeline. It does not close the underlying reader.
+// Close stops the pipeline; a Read running or to come ends with an error
+// once the blocks in flight are drained. Close may be called from another
+// goroutine than Read. It does not close the underlying reader.
 func (z *bgzfReader) Close() error {
-	z.once.Do(func() {
-		close(z.quit)
-		if z.err == nil {
-			z.err = errReaderClosed
-		}
-	})
+	z.once.Do(func() { close(z.quit) })
 	return nil
 }
 
