@@ -29,8 +29,10 @@ States must come from the same input file (path, size and modification
 time), the same fgauge version, the same samples and the same
 result-changing options, and their regions must not overlap. Chromosomes
 split across shards are joined and their runs of homozygosity detected
-here. Shards are put in genome order (the header's contig order) whatever
-the order of the arguments.
+here (their raw data travel in the states; see cmd/fgauge/state.go). Shards
+are put in genome order, the order of the index's references (the file's
+order), whatever the order of the arguments; shards that interleave in that
+order are refused, as their site tables could not be joined.
 
 run.json counts the records in the shards' regions; records the index
 brought in from outside a shard's region are reported under
@@ -39,6 +41,10 @@ brought in from outside a shard's region are reported under
 With --check, each state is only verified (header, checksum, site tables)
 and one line per state is printed; the exit status is 2 if any is not
 intact.
+
+The cautions of 'fgauge scan --help' apply to merged results alike: genomic
+F and F_ROH are not a diagnosis, and mating, culling or clinical decisions
+belong to licensed practice under local regulations.
 `
 
 func runMerge(ctx context.Context, env *runEnv, args []string) error {

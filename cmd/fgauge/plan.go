@@ -548,12 +548,24 @@ exec "$FGAUGE" merge -o "$MERGED" --force --threads %d "$PLANDIR"/states/*.state
 exec %s "$SLURM_ARRAY_TASK_ID"
 `, n, p.threads, maxMem, slurmTime(maxLimit), p.dir, part, shellQuote(filepath.Join(p.dir, "run_shard.sh")))
 
-	_, mergeLimit, mergeMem := p.estimate(planShard{records: 0})
-	var totalRecords float64
+	// The merge detects runs on every chromosome split across shards, one
+	// at a time, from the joined raw data of all of them: 0.25 byte per
+	// site and sample held for all split chromosomes, plus detection
+	// tables for the largest one (1 byte per site and sample).
+	_, mergeLimit, mergeMem := p.estimate(planShard{})
+	split := map[string]float64{}
+	var splitAll, splitMax float64
 	for _, s := range p.shards {
-		totalRecords = max(totalRecords, s.records)
+		for _, pc := range s.pieces {
+			if pc.start > 1 || pc.end > 0 {
+				split[pc.chrom] += pc.records
+				splitAll += pc.records
+				splitMax = max(splitMax, split[pc.chrom])
+			}
+		}
 	}
-	mergeMem += int(math.Ceil(1.25 * totalRecords * float64(p.samples) / 1e6))
+	mergeMem += int(math.Ceil((0.25*splitAll + splitMax) * float64(p.samples) / 1e6))
+	mergeLimit = max(mergeLimit, int(math.Ceil(splitAll*float64(p.samples)*costPerSiteSample*timeSafety/float64(p.threads))))
 	merge := fmt.Sprintf(`#!/usr/bin/env bash
 #SBATCH --job-name=fgauge_merge
 #SBATCH --cpus-per-task=%d
