@@ -200,13 +200,23 @@ func (c *Collector) AddBatch(b *vcfscan.Batch, freqs []float64) error {
 		if b.PL != nil && i < len(b.HasPL) && b.HasPL[i] {
 			if ch.pl == nil {
 				ch.pl = make([][]uint8, ns)
+				ch.stagePL = make([]uint8, ns*plBlock*3)
 			}
+			// Likelihoods are staged like the calls: plBlock sites per
+			// sample, appended to the per-sample slices in one copy.
 			pl := b.PL[3*i*ns : 3*(i+1)*ns]
+			k := 3 * int(ch.nPL%plBlock)
+			stage := ch.stagePL[:ns*plBlock*3]
 			for s := 0; s < ns; s++ {
-				ch.pl[s] = append(ch.pl[s], cap255(pl[3*s]), cap255(pl[3*s+1]), cap255(pl[3*s+2]))
+				d := stage[s*plBlock*3+k : s*plBlock*3+k+3 : s*plBlock*3+k+3]
+				q := pl[3*s : 3*s+3 : 3*s+3]
+				d[0], d[1], d[2] = cap255(q[0]), cap255(q[1]), cap255(q[2])
 			}
 			ch.plSite = append(ch.plSite, ch.nPL)
 			ch.nPL++
+			if ch.nPL%plBlock == 0 {
+				ch.flushStagePL()
+			}
 		} else {
 			ch.plSite = append(ch.plSite, -1)
 		}
@@ -295,6 +305,7 @@ func (c *Collector) prepare(ch *chromData, w *chromWork) {
 // one is done (bounding memory).
 func (c *Collector) dispatch(ch *chromData) {
 	ch.flushStage()
+	ch.flushStagePL()
 	w := &chromWork{data: ch, perSample: make([][]Run, len(c.samples))}
 	c.chroms = append(c.chroms, w)
 	if c.pending != nil {
@@ -353,8 +364,8 @@ func (c *Collector) workerErr() error {
 }
 
 // detect finds the runs of samples j.s0..j.s1-1 on one chromosome. With
-// the HMM on genotype codes and fixed parameters, samples go through the
-// passes two at a time (forwardViterbi2, backward2).
+// the HMM and fixed parameters, samples go through the passes two at a
+// time (forwardViterbi2, backward2).
 func (c *Collector) detect(scs *[2]hmmScratch, j job) {
 	defer func() {
 		if r := recover(); r != nil {
@@ -365,7 +376,7 @@ func (c *Collector) detect(scs *[2]hmmScratch, j job) {
 	sc := &scs[0]
 	maxGap := int64(c.cfg.MaxGapKB * 1000)
 	hasPL := ch.pl != nil
-	pairs := c.cfg.Method == MethodHMM && !c.cfg.Fit && !hasPL && !c.oneLane
+	pairs := c.cfg.Method == MethodHMM && !c.cfg.Fit && !c.oneLane
 	for s := j.s0; s < j.s1; s++ {
 		if c.cfg.Method == MethodRules {
 			j.w.perSample[s] = rulesRuns(ch, s, sc, &c.cfg.Rules, maxGap)
@@ -377,7 +388,11 @@ func (c *Collector) detect(scs *[2]hmmScratch, j job) {
 			s2 := &scs[1]
 			s2.code = grow(s2.code, len(ch.pos))
 			ch.unpack(s+1, s2.code)
-			forwardViterbi2(ch, ch.trans, c.cfg.AutozygousPrior, sc, s2)
+			if hasPL {
+				sc.fillEmissions(ch, s)
+				s2.fillEmissions(ch, s+1)
+			}
+			forwardViterbi2(ch, ch.trans, c.cfg.AutozygousPrior, sc, s2, !hasPL)
 			backward2(ch.trans, c.cfg.AutozygousPrior, sc, s2)
 			j.w.perSample[s] = hmmRuns(ch, s, sc.code, sc.path, sc.post, maxGap)
 			j.w.perSample[s+1] = hmmRuns(ch, s+1, s2.code, s2.path, s2.post, maxGap)

@@ -42,9 +42,10 @@ func traceback(bp []uint8, va, vn float64) {
 	}
 }
 
-// forwardViterbi2 is forwardViterbi in lookup mode for the samples whose
-// codes are in w1.code and w2.code.
-func forwardViterbi2(ch *chromData, u []float64, f float64, w1, w2 *hmmScratch) {
+// forwardViterbi2 is forwardViterbi for the samples whose codes are in
+// w1.code and w2.code; with lookup false their emissions must already be
+// in w1.em and w2.em (fillEmissions).
+func forwardViterbi2(ch *chromData, u []float64, f float64, w1, w2 *hmmScratch, lookup bool) {
 	n := len(w1.code)
 	for _, w := range [2]*hmmScratch{w1, w2} {
 		w.alpha = grow(w.alpha, 2*n)
@@ -55,21 +56,29 @@ func forwardViterbi2(ch *chromData, u []float64, f float64, w1, w2 *hmmScratch) 
 	u = u[:n]
 	em1, al1, bp1, c1 := w1.em[:2*n], w1.alpha[:2*n], w1.path[:n], w1.code[:n]
 	em2, al2, bp2, c2 := w2.em[:2*n], w2.alpha[:2*n], w2.path[:n], w2.code[:n]
-	g1, g2 := c1[0]&3, c2[0]&3
-	em1[0], em1[1] = float64(tab[g1]), float64(tab[4+g1])
-	em2[0], em2[1] = float64(tab[g2]), float64(tab[4+g2])
+	if lookup {
+		g1, g2 := c1[0]&3, c2[0]&3
+		em1[0], em1[1] = float64(tab[g1]), float64(tab[4+g1])
+		em2[0], em2[1] = float64(tab[g2]), float64(tab[4+g2])
+	}
 	a1, b1 := f*em1[0], (1-f)*em1[1]
 	a2, b2 := f*em2[0], (1-f)*em2[1]
 	al1[0], al1[1], al2[0], al2[1] = a1, b1, a2, b2
 	va1, vn1, va2, vn2 := a1, b1, a2, b2
 	bp1[0], bp2[0] = 0, 0
 	for t := 1; t < n; t++ {
-		row := tab[8*t : 8*t+8 : 8*t+8]
-		g1, g2 := c1[t]&3, c2[t]&3
-		e1a, e1n := float64(row[g1]), float64(row[4+g1])
-		e2a, e2n := float64(row[g2]), float64(row[4+g2])
-		em1[2*t], em1[2*t+1] = e1a, e1n
-		em2[2*t], em2[2*t+1] = e2a, e2n
+		var e1a, e1n, e2a, e2n float64
+		if lookup {
+			row := tab[8*t : 8*t+8 : 8*t+8]
+			g1, g2 := c1[t]&3, c2[t]&3
+			e1a, e1n = float64(row[g1]), float64(row[4+g1])
+			e2a, e2n = float64(row[g2]), float64(row[4+g2])
+			em1[2*t], em1[2*t+1] = e1a, e1n
+			em2[2*t], em2[2*t+1] = e2a, e2n
+		} else {
+			e1a, e1n = em1[2*t], em1[2*t+1]
+			e2a, e2n = em2[2*t], em2[2*t+1]
+		}
 		an, na := u[t]*(1-f), u[t]*f
 		sa, sn := 1-an, 1-na
 		aa1, na21, an21, nn1 := sa*e1a, na*e1a, an*e1n, sn*e1n

@@ -701,3 +701,54 @@ func TestGobRoundTrip(t *testing.T) {
 		}
 	}
 }
+
+// Two lanes also match one lane when emissions come from likelihoods.
+func TestTwoLanesMatchOneLanePL(t *testing.T) {
+	const ns = 5
+	contigs, sites := randomCohort(22, ns)
+	var out [2]*Result
+	for k, one := range []bool{true, false} {
+		c, err := NewCollector(DefaultConfig(), sampleNames(ns), contigs)
+		if err != nil {
+			t.Fatal(err)
+		}
+		c.oneLane = one
+		bs, fs := batches(sites, ns, 500)
+		for i, b := range bs {
+			b.PL = make([]uint16, 3*len(b.GT))
+			b.HasPL = make([]bool, len(b.Records))
+			for r := range b.HasPL {
+				b.HasPL[r] = r%3 != 0 // some records without likelihoods
+			}
+			for x, g := range b.GT {
+				for h := 0; h < 3; h++ {
+					if g < 3 && int(g) != h {
+						b.PL[3*x+h] = uint16(20 + 10*x%7)
+					}
+				}
+			}
+			if err := c.AddBatch(b, fs[i]); err != nil {
+				t.Fatal(err)
+			}
+		}
+		if out[k], err = c.Finish(); err != nil {
+			t.Fatal(err)
+		}
+	}
+	n := 0
+	for ci := range out[0].Chroms {
+		a, b := out[0].Chroms[ci].Runs, out[1].Chroms[ci].Runs
+		if len(a) != len(b) {
+			t.Fatalf("%s: %d runs one lane, %d two lanes", out[0].Chroms[ci].Name, len(a), len(b))
+		}
+		for i := range a {
+			if a[i] != b[i] {
+				t.Errorf("run %d: one lane %+v, two lanes %+v", i, a[i], b[i])
+			}
+			n++
+		}
+	}
+	if n < ns {
+		t.Errorf("only %d runs compared", n)
+	}
+}
