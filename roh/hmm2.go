@@ -10,19 +10,6 @@ import "math"
 // exactly that of the one-lane pass, so results are identical
 // (TestTwoLanesMatchOneLane).
 
-// vstep is one Viterbi step of one lane: branch-free max and argmax of
-// non-negative floats through their bit patterns (see forwardViterbi).
-func vstep(va, vn, aa, na2, an2, nn float64) (float64, float64, uint8) {
-	xa := int64(math.Float64bits(va * aa))
-	xn := int64(math.Float64bits(vn * na2))
-	ya := int64(math.Float64bits(va * an2))
-	yn := int64(math.Float64bits(vn * nn))
-	sa := (xn - xa) >> 63
-	sn := (yn - ya) >> 63
-	fl := uint8(1+sa) | uint8(-sn)<<1
-	return math.Float64frombits(uint64(xa ^ ((xa ^ xn) &^ sa))), math.Float64frombits(uint64(yn ^ ((yn ^ ya) & sn))), fl
-}
-
 // traceback turns Viterbi back-pointer flags into the state path in place.
 func traceback(bp []uint8, va, vn float64) {
 	st := uint8(stA)
@@ -85,9 +72,23 @@ func forwardViterbi2(ch *chromData, u []float64, f float64, w1, w2 *hmmScratch, 
 		aa2, na22, an22, nn2 := sa*e2a, na*e2a, an*e2n, sn*e2n
 		a1, b1 = a1*aa1+b1*na21, a1*an21+b1*nn1
 		a2, b2 = a2*aa2+b2*na22, a2*an22+b2*nn2
-		var fl1, fl2 uint8
-		va1, vn1, fl1 = vstep(va1, vn1, aa1, na21, an21, nn1)
-		va2, vn2, fl2 = vstep(va2, vn2, aa2, na22, an22, nn2)
+		// branch-free max and argmax per lane, as in forwardViterbi
+		xa1 := int64(math.Float64bits(va1 * aa1))
+		xn1 := int64(math.Float64bits(vn1 * na21))
+		ya1 := int64(math.Float64bits(va1 * an21))
+		yn1 := int64(math.Float64bits(vn1 * nn1))
+		xa2 := int64(math.Float64bits(va2 * aa2))
+		xn2 := int64(math.Float64bits(vn2 * na22))
+		ya2 := int64(math.Float64bits(va2 * an22))
+		yn2 := int64(math.Float64bits(vn2 * nn2))
+		sa1, sn1 := (xn1-xa1)>>63, (yn1-ya1)>>63
+		sa2, sn2 := (xn2-xa2)>>63, (yn2-ya2)>>63
+		fl1 := uint8(1+sa1) | uint8(-sn1)<<1
+		fl2 := uint8(1+sa2) | uint8(-sn2)<<1
+		va1 = math.Float64frombits(uint64(xa1 ^ ((xa1 ^ xn1) &^ sa1)))
+		vn1 = math.Float64frombits(uint64(yn1 ^ ((yn1 ^ ya1) & sn1)))
+		va2 = math.Float64frombits(uint64(xa2 ^ ((xa2 ^ xn2) &^ sa2)))
+		vn2 = math.Float64frombits(uint64(yn2 ^ ((yn2 ^ ya2) & sn2)))
 		if t%rescaleEvery == 0 {
 			inv1, inv2 := 1/(a1+b1), 1/(a2+b2)
 			a1, b1, a2, b2 = a1*inv1, b1*inv1, a2*inv2, b2*inv2
