@@ -134,6 +134,9 @@ func runPlan(ctx context.Context, env *runEnv, args []string) error {
 	if shards == 0 && shardMB == 0 {
 		shardMB = 64
 	}
+	if scanArgs, err = planScanArgs(scanArgs); err != nil {
+		return err
+	}
 	input, err := filepath.Abs(pos[0])
 	if err != nil {
 		return err
@@ -206,6 +209,46 @@ func runPlan(ctx context.Context, env *runEnv, args []string) error {
 	fmt.Fprintf(env.stderr, "fgauge: %d shards of about %.1f MB compressed input (%d samples); plan in %s\n",
 		len(plan), float64(target)/1e6, nSamples, out)
 	return nil
+}
+
+// planScanArgs checks the scan options given after "--" and makes the
+// files they name absolute, since the scripts run from other folders.
+func planScanArgs(args []string) ([]string, error) {
+	out := append([]string(nil), args...)
+	for i := 0; i < len(out); i++ {
+		a := out[i]
+		if !strings.HasPrefix(a, "-") {
+			continue
+		}
+		name, val, hasVal := strings.Cut(strings.TrimLeft(a, "-"), "=")
+		switch {
+		case name == "o" || name == "out" || name == "region" || name == "regions-file" ||
+			name == "state-out" || name == "skip-if-valid-state" || name == "report":
+			return nil, usagef("plan: --%s cannot be given to the shards' scans (the plan sets it, or it needs a whole run)", name)
+		case !scanFlagsFiles[name]:
+			continue
+		}
+		if !hasVal {
+			if i+1 >= len(out) {
+				return nil, usagef("plan: --%s needs a value", name)
+			}
+			i++
+			val = out[i]
+		}
+		if _, err := os.Stat(val); err != nil {
+			return nil, usagef("plan: --%s: %v", name, err)
+		}
+		abs, err := filepath.Abs(val)
+		if err != nil {
+			return nil, err
+		}
+		if hasVal {
+			out[i] = "--" + name + "=" + abs
+		} else {
+			out[i] = abs
+		}
+	}
+	return out, nil
 }
 
 // readIndexRefs reads the tabix or CSI index of path and returns its
