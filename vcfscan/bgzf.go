@@ -62,10 +62,13 @@ func findBC(extra []byte) (int, bool) {
 	return 0, false
 }
 
-// bgzfJob is one block travelling through the decompression pipeline.
+// bgzfJob is a run of consecutive blocks travelling through the
+// decompression pipeline together (one block when reading index chunks),
+// so that goroutines hand over about a megabyte at a time.
 type bgzfJob struct {
-	coff     int64 // file offset of the block
-	raw      []byte
+	raw      []byte  // the raw blocks, back to back
+	ends     []int   // end of each block in raw
+	coffs    []int64 // file offset of each block
 	out      []byte
 	lo, hi   int // part of out to deliver (regions trim the first/last block)
 	err      error
@@ -73,8 +76,18 @@ type bgzfJob struct {
 	terminal bool // no more blocks after this one; err says why (io.EOF when clean)
 }
 
+func (j *bgzfJob) reset() {
+	j.raw, j.ends, j.coffs = j.raw[:0], j.ends[:0], j.coffs[:0]
+	j.out = j.out[:0]
+	j.err, j.terminal, j.lo, j.hi = nil, false, 0, -1
+}
+
+// bgzfJobBlocks is the number of blocks a job carries when reading the
+// whole stream.
+const bgzfJobBlocks = 16
+
 // bgzfReader decompresses BGZF blocks on several goroutines and delivers the
-// bytes in order. Memory is bounded by a fixed number of blocks in flight.
+// bytes in order. Memory is bounded by a fixed number of jobs in flight.
 type bgzfReader struct {
 	name     string
 	src      io.Reader
@@ -117,7 +130,10 @@ func newBGZFReader(src io.Reader, name string, threads, maxISize int, chunks []b
 	if maxISize <= 0 {
 		maxISize = bgzfDefaultMaxI
 	}
-	inflight := max(32, 8*threads) // about one parse chunk of look-ahead
+	inflight := 2*threads + 2 // jobs of up to 16 blocks: about 2 MiB per thread
+	if len(chunks) > 0 {
+		inflight = max(32, 8*threads) // single blocks
+	}
 	z := &bgzfReader{
 		name:     name,
 		src:      src,
@@ -151,13 +167,16 @@ func (z *bgzfReader) blockErr(coff int64, sentinel error, format string, args ..
 		Err: fmt.Errorf("%w: block at byte %d: %s", sentinel, coff, fmt.Sprintf(format, args...))}
 }
 
-// readRaw reads one raw block at file offset coff into j.raw. It returns
+// readRaw appends one raw block at file offset coff to j. It returns
 // io.EOF at a clean end of input.
 func (z *bgzfReader) readRaw(r io.Reader, coff int64, j *bgzfJob) error {
-	if cap(j.raw) < bgzfMaxBlock {
-		j.raw = make([]byte, bgzfMaxBlock)
+	at := len(j.raw)
+	if cap(j.raw)-at < bgzfMaxBlock {
+		nr := make([]byte, at, at+bgzfJobBlocks*bgzfMaxBlock)
+		copy(nr, j.raw)
+		j.raw = nr
 	}
-	buf := j.raw[:bgzfMaxBlock]
+	buf := j.raw[at : at+bgzfMaxBlock]
 	n, err := io.ReadFull(r, buf[:12])
 	if err == io.EOF {
 		return io.EOF
@@ -188,14 +207,16 @@ func (z *bgzfReader) readRaw(r io.Reader, coff int64, j *bgzfJob) error {
 	if n, err := io.ReadFull(r, buf[12+xlen:total]); err != nil {
 		return z.blockErr(coff, ErrTruncated, "block of %d bytes ends after %d bytes; the file was cut short", total, 12+xlen+n)
 	}
-	j.raw = buf[:total]
+	j.raw = j.raw[:at+total]
+	j.ends = append(j.ends, at+total)
+	j.coffs = append(j.coffs, coff)
 	return nil
 }
 
 func (z *bgzfReader) getJob() (*bgzfJob, bool) {
 	select {
 	case j := <-z.free:
-		j.err, j.terminal, j.lo, j.hi = nil, false, 0, 0
+		j.reset()
 		return j, true
 	case <-z.quit:
 		return nil, false
@@ -206,6 +227,11 @@ func (z *bgzfReader) finish(err error) {
 	// The terminal job is not from the free pool; order has room for it.
 	z.order <- &bgzfJob{terminal: true, err: err}
 	close(z.work)
+}
+
+func (z *bgzfReader) send(j *bgzfJob) {
+	z.order <- j
+	z.work <- j
 }
 
 func (z *bgzfReader) readLoop() {
@@ -223,9 +249,23 @@ func (z *bgzfReader) readLoop() {
 			z.finish(errReaderClosed)
 			return
 		}
-		err := z.readRaw(z.src, coff, j)
-		if err != nil {
+		var err error
+		for len(j.ends) < bgzfJobBlocks {
+			if err = z.readRaw(z.src, coff, j); err != nil {
+				break
+			}
+			last := len(j.ends) - 1
+			blk := j.raw[blockStart(j, last):j.ends[last]]
+			coff += int64(len(blk))
+			blocks++
+			lastEmpty = binary.LittleEndian.Uint32(blk[len(blk)-4:]) == 0
+		}
+		if len(j.ends) > 0 {
+			z.send(j)
+		} else {
 			z.free <- j
+		}
+		if err != nil {
 			if err == io.EOF {
 				z.eofs.mu.Lock()
 				z.eofs.missingEOF = !lastEmpty && blocks > 0
@@ -235,18 +275,19 @@ func (z *bgzfReader) readLoop() {
 			z.finish(err)
 			return
 		}
-		j.coff = coff
-		j.lo, j.hi = 0, -1
-		coff += int64(len(j.raw))
-		blocks++
-		lastEmpty = binary.LittleEndian.Uint32(j.raw[len(j.raw)-4:]) == 0
-		z.order <- j
-		z.work <- j
 	}
 }
 
-// readChunks reads the blocks covering each chunk, trimming the first and
-// last block to the chunk's virtual offsets.
+// blockStart is where block k of j starts in j.raw.
+func blockStart(j *bgzfJob, k int) int {
+	if k == 0 {
+		return 0
+	}
+	return j.ends[k-1]
+}
+
+// readChunks reads the blocks covering each chunk, one block per job,
+// trimming the first and last block to the chunk's virtual offsets.
 func (z *bgzfReader) readChunks() {
 	for _, c := range z.chunks {
 		if _, err := z.seeker.Seek(c.Begin.File, io.SeekStart); err != nil {
@@ -273,8 +314,6 @@ func (z *bgzfReader) readChunks() {
 				z.finish(err)
 				return
 			}
-			j.coff = coff
-			j.lo, j.hi = 0, -1
 			if first {
 				j.lo = int(c.Begin.Block)
 			}
@@ -282,8 +321,7 @@ func (z *bgzfReader) readChunks() {
 				j.hi = int(c.End.Block)
 			}
 			coff += int64(len(j.raw))
-			z.order <- j
-			z.work <- j
+			z.send(j)
 		}
 	}
 	z.finish(io.EOF)
@@ -299,57 +337,70 @@ func (z *bgzfReader) inflateLoop() {
 	}
 }
 
-// inflate decompresses j.raw into j.out and checks CRC32 and ISIZE.
+// inflate decompresses the blocks of j into j.out, checking the CRC32 and
+// ISIZE of each.
 func (z *bgzfReader) inflate(j *bgzfJob, fr *io.ReadCloser, br *bytes.Reader) error {
-	raw := j.raw
+	for k := range j.ends {
+		if err := z.inflateBlock(j, k, fr, br); err != nil {
+			return err
+		}
+	}
+	if j.hi < 0 || j.hi > len(j.out) {
+		j.hi = len(j.out)
+	}
+	if j.lo > j.hi {
+		j.lo = j.hi
+	}
+	return nil
+}
+
+func (z *bgzfReader) inflateBlock(j *bgzfJob, k int, fr *io.ReadCloser, br *bytes.Reader) error {
+	raw := j.raw[blockStart(j, k):j.ends[k]]
+	coff := j.coffs[k]
 	xlen := int(binary.LittleEndian.Uint16(raw[10:12]))
 	cdata := raw[12+xlen : len(raw)-8]
 	wantCRC := binary.LittleEndian.Uint32(raw[len(raw)-8:])
 	isize := int(binary.LittleEndian.Uint32(raw[len(raw)-4:]))
 	if isize > z.maxISize || isize < 0 {
-		return z.blockErr(j.coff, ErrLimit, "block claims %d uncompressed bytes, more than the limit of %d; raise --max-block-bytes if the file is genuine", isize, z.maxISize)
+		return z.blockErr(coff, ErrLimit, "block claims %d uncompressed bytes, more than the limit of %d; raise --max-block-bytes if the file is genuine", isize, z.maxISize)
 	}
-	if cap(j.out) < isize+1 {
-		j.out = make([]byte, isize+1, max(isize+1, bgzfMaxBlock+1))
+	at := len(j.out)
+	if cap(j.out) < at+isize+1 {
+		no := make([]byte, at, max(at+isize+1, len(j.ends)*bgzfMaxBlock+1))
+		copy(no, j.out)
+		j.out = no
 	}
-	out := j.out[:isize+1]
+	out := j.out[at : at+isize+1]
 	br.Reset(cdata)
 	if *fr == nil {
 		*fr = flate.NewReader(br)
 	} else if err := (*fr).(flate.Resetter).Reset(br, nil); err != nil {
-		return z.blockErr(j.coff, ErrMalformed, "resetting inflater: %v", err)
+		return z.blockErr(coff, ErrMalformed, "resetting inflater: %v", err)
 	}
 	n := 0
 	for {
-		k, err := (*fr).Read(out[n:])
-		n += k
+		m, err := (*fr).Read(out[n:])
+		n += m
 		if err == io.EOF {
 			break
 		}
 		if err != nil {
-			return z.blockErr(j.coff, ErrMalformed, "deflate data is corrupt: %v", err)
+			return z.blockErr(coff, ErrMalformed, "deflate data is corrupt: %v", err)
 		}
 		if n == len(out) {
-			return z.blockErr(j.coff, ErrChecksum, "block inflates to more than its ISIZE of %d bytes; the file is damaged", isize)
+			return z.blockErr(coff, ErrChecksum, "block inflates to more than its ISIZE of %d bytes; the file is damaged", isize)
 		}
 	}
 	if br.Len() != 0 {
-		return z.blockErr(j.coff, ErrMalformed, "%d bytes of the block follow the end of its deflate data", br.Len())
+		return z.blockErr(coff, ErrMalformed, "%d bytes of the block follow the end of its deflate data", br.Len())
 	}
 	if n != isize {
-		return z.blockErr(j.coff, ErrChecksum, "block inflates to %d bytes but its ISIZE says %d; the file is damaged", n, isize)
+		return z.blockErr(coff, ErrChecksum, "block inflates to %d bytes but its ISIZE says %d; the file is damaged", n, isize)
 	}
-	out = out[:n]
-	if got := crc32.ChecksumIEEE(out); got != wantCRC {
-		return z.blockErr(j.coff, ErrChecksum, "CRC32 of the inflated block is %08x, the block says %08x; the file is damaged", got, wantCRC)
+	if got := crc32.ChecksumIEEE(out[:n]); got != wantCRC {
+		return z.blockErr(coff, ErrChecksum, "CRC32 of the inflated block is %08x, the block says %08x; the file is damaged", got, wantCRC)
 	}
-	j.out = out
-	if j.hi < 0 || j.hi > len(out) {
-		j.hi = len(out)
-	}
-	if j.lo > j.hi {
-		j.lo = j.hi
-	}
+	j.out = j.out[:at+n]
 	return nil
 }
 
