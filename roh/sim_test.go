@@ -165,7 +165,7 @@ func pearson(x, y []float64) float64 {
 // first-cousin, parent-offspring and selfing designs (roh/simulate), with
 // 0.1% genotype error and 0.5% missing calls, at array density (one site
 // per 30 kb, U-shaped spectrum, 200 replicates) and sequence density (one
-// site per 3 kb, neutral spectrum, 60 replicates; sparser than real
+// site per 4 kb, neutral spectrum, 60 replicates; sparser than real
 // sequence to keep the test within a minute of CPU). The genome is three
 // chromosomes of 150, 120 and 100 cM, so realized F varies widely between
 // animals (SD about 0.1 for these designs): the replicate counts are what
@@ -199,7 +199,7 @@ func TestSimulatedTruth(t *testing.T) {
 		reps    int
 	}{
 		{"array", 30_000, simulate.SpectrumUShaped, 200},
-		{"sequence", 3_000, simulate.SpectrumNeutral, 60},
+		{"sequence", 4_000, simulate.SpectrumNeutral, 60},
 	}
 	for _, dn := range densities {
 		var ds []simulate.Design
@@ -233,7 +233,7 @@ func TestSimulatedTruth(t *testing.T) {
 			if dn.name == "sequence" {
 				// Counts tolerated per run must grow with density:
 				// 0.1% errors and 0.5% missing over a 16 Mb run at one
-				// site per 2 kb are about 5 heterozygous and 40 missing
+				// site per 4 kb are about 3 heterozygous and 20 missing
 				// calls.
 				cfg.Rules.MaxHet = 8
 				cfg.Rules.MaxMissing = 200

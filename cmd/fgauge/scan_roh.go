@@ -48,7 +48,7 @@ const rohHelp = `Runs of homozygosity:
   and counted in run.json. runs.tsv lists every run found, shorter ones too.
   The --rules-* counts are per run and do not scale with marker density: for
   sequence data raise them (for example --rules-max-het 8
-  --rules-max-missing 200 --rules-min-sites 100 at one site per 3 kb); the
+  --rules-max-missing 200 --rules-min-sites 100 at one site per 4 kb); the
   HMM needs no such change.
   generations_back = 100/(2*length_cm) is only a rough expectation: run
   lengths from one ancestor vary widely.
