@@ -233,7 +233,7 @@ func TestSimulatedTruth(t *testing.T) {
 			if dn.name == "sequence" {
 				// Counts tolerated per run must grow with density:
 				// 0.1% errors and 0.5% missing over a 16 Mb run at one
-				// site per 4 kb are about 3 heterozygous and 20 missing
+				// site per 4 kb are about 2 heterozygous and 20 missing
 				// calls.
 				cfg.Rules.MaxHet = 8
 				cfg.Rules.MaxMissing = 200
