@@ -28,6 +28,20 @@
 // ReadGeneticMap) and it computes no per-site or per-sample statistics
 // other than ROH.
 //
+// Memory: for a chromosome of S sites and N samples, N*S/4 bytes of packed
+// calls (at most twice that while the slices grow), 3 bytes per call where
+// likelihoods are present, about 70 bytes per site of shared tables, and
+// 84 bytes per site per worker during detection; at most two chromosomes
+// are held at once. BenchmarkCollect measures 0.36 heap bytes per
+// sample-site at 1,000 samples.
+//
+// Speed (CPU time per call, 1,000 samples, BenchmarkDetect and
+// BenchmarkDetectLongChrom): storing calls about 2 ns; the HMM about 11 ns
+// more on a 5,000-site chromosome and 15 ns on a 200,000-site one (two
+// samples per sweep, so the per-site tables are read once per pair); the
+// rule-based detector about 5 ns. BenchmarkScanRatio compares with reading
+// the same file without detection.
+//
 // Results of disjoint whole chromosomes merge exactly (Result.Merge), so a
 // genome split into per-chromosome shards gives the same tables as one
 // pass.
