@@ -364,6 +364,23 @@ func TestMergeRejects(t *testing.T) {
 		t.Fatalf("exit %d: %s", code, e)
 	}
 	otherIn := otherOut + ".state"
+	// States edited to claim another version or sample set (the options
+	// fingerprint would differ first in practice).
+	editState := func(name string, edit func(*shardState)) string {
+		st, err := readStateFile(states[1])
+		if err != nil {
+			t.Fatal(err)
+		}
+		edit(st)
+		st.SitesFile, _ = filepath.Abs(siteTablePath(states[1], st.SitesFile))
+		p := filepath.Join(dir, name+".state")
+		if err := writeStateFile(p, st); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	otherVersion := editState("version", func(s *shardState) { s.Version = "0.0.1" })
+	otherSamples := editState("samples", func(s *shardState) { s.Samples = s.Samples[1:] })
 	for _, tc := range []struct {
 		name   string
 		states []string
@@ -371,6 +388,8 @@ func TestMergeRejects(t *testing.T) {
 		words  string
 	}{
 		{"options", []string{states[0], otherOpts}, errStateMismatch, "min-call-rate"},
+		{"version", []string{states[0], otherVersion}, errStateMismatch, "versions differ"},
+		{"samples", []string{states[0], otherSamples}, errStateMismatch, "sample sets differ"},
 		{"overlap", []string{states[0], states[1], overlap}, errStateMismatch, "overlap"},
 		{"whole and part", []string{states[0], whole}, errStateMismatch, "whole input"},
 		{"other input", []string{states[0], otherIn}, errStateMismatch, "inputs differ"},
