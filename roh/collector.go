@@ -151,6 +151,10 @@ func (c *Collector) AddBatch(b *vcfscan.Batch, freqs []float64) error {
 	if freqs != nil && len(freqs) != len(b.Records) {
 		return fmt.Errorf("roh: %d frequencies for %d records", len(freqs), len(b.Records))
 	}
+	if len(b.GT) < len(b.Records)*b.NSamples || (b.PL != nil && len(b.PL) < 3*len(b.Records)*b.NSamples) {
+		return fmt.Errorf("roh: batch %d holds %d calls and %d likelihoods for %d records of %d samples",
+			b.Seq, len(b.GT), len(b.PL), len(b.Records), b.NSamples)
+	}
 	ns := b.NSamples
 	for i := range b.Records {
 		rec := &b.Records[i]
