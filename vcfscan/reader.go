@@ -36,6 +36,11 @@ type Warning struct {
 // Reader reads variant batches from a VCF or BCF file. Text is split into
 // chunks of whole lines that worker goroutines parse in parallel; Next
 // returns the batches in input order.
+//
+// Next, Header and Close belong to one goroutine (Next appends contigs met
+// in records to Header().Contigs). Release, Progress and Warnings may be
+// called from any goroutine. Close stops the pipeline; a reader that is
+// not closed keeps its goroutines until the input ends.
 type Reader struct {
 	name    string
 	format  Format
