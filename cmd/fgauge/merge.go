@@ -126,6 +126,13 @@ func loadStates(paths []string) ([]loadedState, error) {
 			if why := sameIdentity(ls[0].st, st); why != "" {
 				return nil, fmt.Errorf("%s and %s: %w: %s", ls[0].path, p, errStateMismatch, why)
 			}
+			// Sums merge exactly in any order: fold each state into the
+			// first as it is read, so that only one set of per-sample
+			// accumulators besides the total is held at a time.
+			if err := ls[0].st.Totals.Merge(st.Totals); err != nil {
+				return nil, fmt.Errorf("%s: %w: %v", p, errStateMismatch, err)
+			}
+			st.Totals = nil
 		}
 		ls = append(ls, loadedState{p, st})
 	}
@@ -153,12 +160,17 @@ func loadStates(paths []string) ([]loadedState, error) {
 		rs := l.st.Regions
 		sort.Slice(rs, func(i, j int) bool { return less(key(rs[i]), key(rs[j])) })
 	}
+	total := ls[0].st.Totals
 	sort.SliceStable(ls, func(i, j int) bool {
 		if ls[i].st.WholeFile || ls[j].st.WholeFile {
 			return false
 		}
 		return less(key(ls[i].st.Regions[0]), key(ls[j].st.Regions[0]))
 	})
+	for i := range ls {
+		ls[i].st.Totals = nil
+	}
+	ls[0].st.Totals = total // the merged sums of all states
 	// Overlaps, between and within states.
 	type owned struct {
 		r    stateRegion
@@ -214,17 +226,12 @@ type merged struct {
 
 // combine merges the accumulators of ordered states.
 func combine(ls []loadedState, threads int) (*merged, error) {
-	m := &merged{first: ls[0].st}
-	m.totals = ls[0].st.Totals
+	// loadStates has already folded every state's sums into the first.
+	m := &merged{first: ls[0].st, totals: ls[0].st.Totals}
 	warn := map[string]*vcfscan.Warning{}
 	var warnOrder []string
-	for i, l := range ls {
+	for _, l := range ls {
 		st := l.st
-		if i > 0 {
-			if err := m.totals.Merge(st.Totals); err != nil {
-				return nil, fmt.Errorf("%s: %w: %v", l.path, errStateMismatch, err)
-			}
-		}
 		out := st.Skipped[vcfscan.SkipOutsideRegion]
 		m.readAll += st.Read
 		m.outside += out
