@@ -31,9 +31,11 @@ type Collector struct {
 	excluded map[string]int64
 	chroms   []*chromWork
 
-	jobs    chan job
-	workers sync.WaitGroup
-	pending *sync.WaitGroup
+	jobs     chan job
+	workers  sync.WaitGroup
+	pending  *sync.WaitGroup // detection of inFlight
+	inFlight *chromWork
+	density  float64 // sites per bp of the last chromosome with a length
 
 	errMu sync.Mutex
 	err   error
@@ -44,6 +46,7 @@ type Collector struct {
 
 // chromWork is one chromosome sent to detection.
 type chromWork struct {
+	res       ChromResult // summary now, runs once detected
 	data      *chromData
 	perSample [][]Run
 	fitF      []float64
@@ -273,7 +276,26 @@ func (c *Collector) switchChrom(id int, line int64) error {
 		return nil
 	}
 	c.cur = newChromData(id, c.contigs[id].Name, c.contigs[id].Length, len(c.samples))
+	c.reserve(c.cur)
 	return nil
+}
+
+// reserve gives the per-sample genotype slices of a new chromosome room
+// for the sites expected from the previous chromosome's density and this
+// one's header length (plus 10%), so that they rarely grow by copying.
+// Without lengths, or for the first chromosome, slices grow as needed.
+func (c *Collector) reserve(ch *chromData) {
+	if c.density <= 0 || ch.length <= 0 {
+		return
+	}
+	sites := c.density * float64(ch.length) * 1.1
+	words := int(sites/32) + 1
+	if words > 1<<26 {
+		return
+	}
+	for s := range ch.geno {
+		ch.geno[s] = make([]uint64, 0, words)
+	}
 }
 
 // prepare computes genetic positions and the shared emission and
@@ -311,12 +333,17 @@ func (c *Collector) dispatch(ch *chromData) {
 	ch.flushStage()
 	ch.flushStagePL()
 	w := &chromWork{data: ch, perSample: make([][]Run, len(c.samples))}
-	c.chroms = append(c.chroms, w)
-	if c.pending != nil {
-		c.pending.Wait()
+	w.res = ChromResult{Name: ch.name, Length: ch.length, NSites: len(ch.pos)}
+	if n := len(ch.pos); n > 0 {
+		w.res.FirstPos, w.res.LastPos = ch.pos[0], ch.pos[n-1]
+		if ch.length > 0 {
+			c.density = float64(n) / float64(ch.length)
+		}
 	}
+	c.chroms = append(c.chroms, w)
+	c.settle()
 	if len(ch.pos) == 0 || len(c.samples) == 0 {
-		c.pending = nil
+		w.release()
 		return
 	}
 	c.prepare(ch, w)
@@ -336,12 +363,34 @@ func (c *Collector) dispatch(ch *chromData) {
 		wg.Add(1)
 		js = append(js, job{w: w, s0: s0, s1: s1, done: wg})
 	}
-	c.pending = wg
+	c.pending, c.inFlight = wg, w
 	go func() {
 		for _, j := range js {
 			c.jobs <- j
 		}
 	}()
+}
+
+// settle waits for the chromosome in detection, if any, and keeps only
+// its runs, so that its genotypes can be collected by the garbage
+// collector.
+func (c *Collector) settle() {
+	if c.pending != nil {
+		c.pending.Wait()
+		c.inFlight.release()
+		c.pending, c.inFlight = nil, nil
+	}
+}
+
+// release moves the detected runs into the chromosome's result and drops
+// the raw data.
+func (w *chromWork) release() {
+	w.res.MapSource = w.mapSource
+	w.res.FitF, w.res.FitRate = w.fitF, w.fitRate
+	for _, rs := range w.perSample {
+		w.res.Runs = append(w.res.Runs, rs...)
+	}
+	w.data, w.perSample = nil, nil
 }
 
 func (c *Collector) worker() {
@@ -474,9 +523,7 @@ func (c *Collector) Finish() (*Result, error) {
 		c.dispatch(c.cur)
 		c.cur = nil
 	}
-	if c.pending != nil {
-		c.pending.Wait()
-	}
+	c.settle()
 	c.finished = true
 	close(c.jobs)
 	c.workers.Wait()
@@ -494,17 +541,7 @@ func (c *Collector) Finish() (*Result, error) {
 		Excluded:      c.excluded,
 	}
 	for _, w := range c.chroms {
-		ch := w.data
-		cr := ChromResult{Name: ch.name, Length: ch.length, NSites: len(ch.pos), MapSource: w.mapSource,
-			FitF: w.fitF, FitRate: w.fitRate}
-		if len(ch.pos) > 0 {
-			cr.FirstPos, cr.LastPos = ch.pos[0], ch.pos[len(ch.pos)-1]
-		}
-		for _, rs := range w.perSample {
-			cr.Runs = append(cr.Runs, rs...)
-		}
-		r.Chroms = append(r.Chroms, cr)
-		w.data, w.perSample = nil, nil
+		r.Chroms = append(r.Chroms, w.res)
 	}
 	c.chroms = nil
 	return r, nil

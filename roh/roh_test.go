@@ -752,3 +752,38 @@ func TestTwoLanesMatchOneLanePL(t *testing.T) {
 		t.Errorf("only %d runs compared", n)
 	}
 }
+
+// Memory stays bounded: once the third chromosome is being read, the
+// genotypes of the first are no longer held.
+func TestChromosomesReleased(t *testing.T) {
+	contigs := []vcfscan.Contig{{Name: "1", Length: 1_000_000}, {Name: "2", Length: 1_000_000}, {Name: "3", Length: 1_000_000}}
+	var sites []site
+	for c := 0; c < 3; c++ {
+		for i := 0; i < 100; i++ {
+			sites = append(sites, site{c, int64(i+1) * 10_000, 0.5, []vcfscan.Geno{vcfscan.Geno(i % 3), 0}})
+		}
+	}
+	c, err := NewCollector(DefaultConfig(), []string{"a", "b"}, contigs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	bs, fs := batches(sites, 2, 50)
+	for i, b := range bs {
+		if err := c.AddBatch(b, fs[i]); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if len(c.chroms) != 2 || c.chroms[0].data != nil {
+		t.Errorf("while reading chromosome 3: %d chromosomes dispatched, first still held: %v", len(c.chroms), c.chroms[0].data != nil)
+	}
+	if cap(c.cur.geno[0]) < 4 {
+		t.Errorf("chromosome 3 slices not reserved from the density of chromosome 2: cap %d", cap(c.cur.geno[0]))
+	}
+	r, err := c.Finish()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(r.Chroms) != 3 || r.Chroms[2].NSites != 100 || r.Chroms[0].FirstPos != 10_000 || r.Chroms[0].LastPos != 1_000_000 {
+		t.Errorf("chromosome summaries %+v", r.Chroms)
+	}
+}
