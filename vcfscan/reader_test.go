@@ -217,3 +217,44 @@ func TestCallCodesMatchCyvcf2(t *testing.T) {
 		}
 	}
 }
+
+// TestLikelihoodsMatchHtslib compares the PL triples the text path makes
+// from GL (round(-10*GL), common practice) and PL with those computed from
+// htslib's reading of the BCF twins (python3-pysam 0.20.0, via
+// testdata/tools/make_bcf_twins.py; testdata/bcf/*.htslib_calls.tsv).
+func TestLikelihoodsMatchHtslib(t *testing.T) {
+	for _, c := range []struct{ vcf, tsv string }{
+		{"edge/gl_chr1.vcf", "bcf/gl_chr1.htslib_calls.tsv"},
+		{"cohort189.vcf.gz", "bcf/cohort189.htslib_calls.tsv"},
+		{"edge/test-haploidX.vcf", "bcf/test-haploidX.htslib_calls.tsv"},
+	} {
+		res, err := readFile(t, filepath.Join("..", "testdata", c.vcf), Options{IncludeFiltered: true, WantPL: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := readTSV(t, filepath.Join("..", "testdata", c.tsv))
+		if len(want) != len(res.sites) {
+			t.Fatalf("%s: %d sites, htslib %d", c.vcf, len(res.sites), len(want))
+		}
+		ns := len(res.samples)
+		for i, w := range want {
+			codes := make([]string, ns)
+			for j, g := range res.gts[i*ns : (i+1)*ns] {
+				codes[j] = strconv.Itoa(int(g))
+			}
+			if got := strings.Join(codes, ","); got != w[2] {
+				t.Errorf("%s %s:%s: calls %s, htslib %s", c.vcf, w[0], w[1], got, w[2])
+			}
+			if w[3] == "." {
+				continue
+			}
+			pl := make([]string, 3*ns)
+			for j, v := range res.pls[3*i*ns : 3*(i+1)*ns] {
+				pl[j] = strconv.Itoa(int(v))
+			}
+			if got := strings.Join(pl, ","); got != w[3] {
+				t.Errorf("%s %s:%s: likelihoods differ:\n ours   %s\n htslib %s", c.vcf, w[0], w[1], got, w[3])
+			}
+		}
+	}
+}
