@@ -14,6 +14,7 @@ import (
 	"sort"
 	"time"
 
+	"fgauge/cmd/fgauge/htmlreport"
 	"fgauge/roh"
 	"fgauge/stats"
 	"fgauge/vcfscan"
@@ -50,13 +51,14 @@ belong to licensed practice under local regulations.
 func runMerge(ctx context.Context, env *runEnv, args []string) error {
 	fs := newFlagSet(env.stderr, "merge", "merge -o OUTDIR STATE... | merge --check STATE...", mergeHelp)
 	var out string
-	var force, check bool
+	var force, check, report bool
 	threads := runtime.NumCPU()
 	fs.StringVar(&out, "o", "", "output folder (created if absent)")
 	fs.StringVar(&out, "out", "", "same as -o")
 	fs.BoolVar(&force, "force", false, "overwrite results already in OUTDIR")
 	fs.BoolVar(&check, "check", false, "only verify the states and their site tables")
 	fs.IntVar(&threads, "threads", threads, "detection workers for chromosomes split across shards")
+	fs.BoolVar(&report, "report", false, "also write OUTDIR/report.html")
 	paths, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
@@ -70,7 +72,13 @@ func runMerge(ctx context.Context, env *runEnv, args []string) error {
 	if check {
 		return checkStates(env, paths)
 	}
-	if err := mergeStates(ctx, env, paths, out, force, threads); err != nil {
+	err = mergeStates(ctx, env, paths, out, force, threads)
+	if err == nil && report {
+		if err := htmlreport.Write(out, htmlreport.Options{}); err != nil {
+			return fmt.Errorf("merge finished, but the report failed: %w", err)
+		}
+	}
+	if err != nil {
 		var ue *usageError
 		if errors.As(err, &ue) || ctx.Err() != nil {
 			return err

@@ -786,3 +786,15 @@ func mustGetwd(t *testing.T) string {
 	}
 	return wd
 }
+
+func TestMergeReport(t *testing.T) {
+	dir := t.TempDir()
+	_, states := shardFixture(t, dir)
+	out := filepath.Join(dir, "merged")
+	if code, _, e := runCmdline(t, "merge", "-o", out, "--report", states[0], states[1]); code != exitOK {
+		t.Fatalf("exit %d: %s", code, e)
+	}
+	if b, err := os.ReadFile(filepath.Join(out, "report.html")); err != nil || !bytes.Contains(b, []byte("<html")) {
+		t.Errorf("report.html missing or not HTML (%v)", err)
+	}
+}
