@@ -535,6 +535,18 @@ func (p *planScripts) write() error {
 		}
 		cases.WriteString(" ;;\n")
 	}
+	// A different plan in the same folder: the states and shard folders
+	// of the old one would be merged with the new ones, so they go.
+	if old, err := os.ReadFile(filepath.Join(p.dir, "shards.tsv")); err == nil && !bytes.Equal(old, []byte(tsv.String())) {
+		for _, d := range []string{"states", "shards"} {
+			if err := os.RemoveAll(filepath.Join(p.dir, d)); err != nil {
+				return err
+			}
+			if err := os.MkdirAll(filepath.Join(p.dir, d), 0o755); err != nil {
+				return err
+			}
+		}
+	}
 	if err := os.WriteFile(filepath.Join(p.dir, "shards.tsv"), []byte(tsv.String()), 0o644); err != nil {
 		return err
 	}
