@@ -13,6 +13,7 @@ import (
 	"strconv"
 	"strings"
 
+	"fgauge/cmd/fgauge/htmlreport"
 	"fgauge/roh/simulate"
 	"fgauge/stats/pedigree"
 )
@@ -110,9 +111,13 @@ func runDemo(ctx context.Context, env *runEnv, args []string) error {
 
 	scanDir := filepath.Join(*dir, "scan")
 	scanErr := runScan(ctx, &runEnv{stdout: io.Discard, stderr: env.stderr, stdin: env.stdin, argv: env.argv},
-		[]string{vcfPath, "-o", scanDir, "--populations", popPath, "--pedigree", pedPath, "--report", "--force"})
+		[]string{vcfPath, "-o", scanDir, "--populations", popPath, "--pedigree", pedPath, "--force", "--no-progress"})
 	if err := ctx.Err(); err != nil {
 		return err
+	}
+	if scanErr == nil {
+		// The cohort report plus one printable page per animal.
+		scanErr = htmlreport.Write(scanDir, htmlreport.Options{PerSample: true})
 	}
 	fpedOf := map[string]float64{}
 	truthOf := map[string]float64{}
@@ -131,6 +136,9 @@ func runDemo(ctx context.Context, env *runEnv, args []string) error {
 		fmt.Fprintf(env.stdout, "\nThe scan step did not run (%v); the summary below uses pedigree F only.\n", scanErr)
 	}
 	writeDemoSummary(env.stdout, ped, fpedOf, truthOf, genomic, genomicCol, scanDir, scanErr == nil)
+	if scanErr != nil {
+		return fmt.Errorf("demo: the scan or report step failed: %w", scanErr)
+	}
 	return nil
 }
 
@@ -460,6 +468,7 @@ func writeDemoSummary(w io.Writer, ped *pedigree.Pedigree, fped, truth, genomic 
 		fmt.Fprintf(w, "  - Compare the genomic and pedigree columns in %s/samples.tsv: large gaps in many animals\n", scanDir)
 		fmt.Fprintln(w, "    hint at recording errors or relatedness the herd book does not show.")
 		fmt.Fprintf(w, "  - %s/populations.tsv compares the herds; %s/report.html shows it all in a browser.\n", scanDir, scanDir)
+		fmt.Fprintf(w, "  - %s/samples/index.html links one printable page per animal.\n", scanDir)
 	} else {
 		fmt.Fprintln(w, "  - Run 'fgauge scan' on cohort.vcf.gz with --populations herds.tsv and --pedigree pedigree.tsv")
 		fmt.Fprintln(w, "    to see genomic F and runs of homozygosity next to the pedigree values.")
