@@ -787,6 +787,23 @@ func mustGetwd(t *testing.T) string {
 	return wd
 }
 
+func TestStateOutUsage(t *testing.T) {
+	dir := t.TempDir()
+	for _, args := range [][]string{
+		{"scan", "-", "-o", filepath.Join(dir, "a"), "--state-out", filepath.Join(dir, "a.state")},
+		{"scan", "../../testdata/cohort189.vcf.gz", "-o", filepath.Join(dir, "b"), "--state-out", filepath.Join(dir, "b.state"), "--report"},
+		{"scan", "../../testdata/cohort189.vcf.gz", "-o", filepath.Join(dir, "c"), "--skip-if-valid-state"},
+		{"merge", "-o", filepath.Join(dir, "d")},
+		{"merge", "-o", filepath.Join(dir, "e"), filepath.Join(dir, "missing.state")},
+		{"plan", "../../testdata/annotated_small.vcf", "-o", filepath.Join(dir, "f")},
+		{"plan", "../../testdata/chr22_1000g.vcf.gz", "-o", filepath.Join(dir, "g"), "--shards", "2", "--shard-mb", "3"},
+	} {
+		if code, _, e := runCmdline(t, args...); code != exitBadInput {
+			t.Errorf("%v: exit %d, want %d (%s)", args, code, exitBadInput, e)
+		}
+	}
+}
+
 func TestMergeReport(t *testing.T) {
 	dir := t.TempDir()
 	_, states := shardFixture(t, dir)

@@ -490,6 +490,9 @@ func (f *shardFlags) skipIfValid(env *runEnv, o *scanOptions) (bool, error) {
 		if o.report {
 			return false, usagef("--report needs the tables of a whole run: run 'fgauge report' on the output of 'fgauge merge'")
 		}
+		if o.input == "-" {
+			return false, usagef("--state-out needs an input file (its identity is part of the state), not standard input")
+		}
 	}
 	if !f.on() {
 		if f != nil && f.skipValid {
