@@ -91,16 +91,38 @@ func HWEExact(nAA, nAB, nBB int64) HWEResult {
 	}
 	floor := math.Min(0, logObs) - tailCut
 	var sTot, sTwo, sLow, sHigh float64
+	// Every reference is logObs or 0 (refTwo is logObs; refLow and refHigh
+	// are logObs or max(0, logObs)), and l-0 is l exactly, so each term
+	// needs at most two exponentials, exp(l) and exp(l-logObs), instead of
+	// one per sum; the sums are bit-for-bit those of one exponential per
+	// sum and reference (TestHWEExactSharedExp).
+	lowObs, highObs := refLow != 0, refHigh != 0 // reference is logObs (not 0)
 	add := func(h int64, l float64) {
-		sTot += math.Exp(l)
+		e := math.Exp(l)
+		sTot += e
+		eo, haveEo := 0.0, false
+		obsTerm := func() float64 {
+			if !haveEo {
+				eo, haveEo = math.Exp(l-logObs), true
+			}
+			return eo
+		}
 		if l <= logObs+tieTol {
-			sTwo += math.Exp(l - refTwo)
+			sTwo += obsTerm()
 		}
 		if h <= obs {
-			sLow += math.Exp(l - refLow)
+			if lowObs {
+				sLow += obsTerm()
+			} else {
+				sLow += e
+			}
 		}
 		if h >= obs {
-			sHigh += math.Exp(l - refHigh)
+			if highObs {
+				sHigh += obsTerm()
+			} else {
+				sHigh += e
+			}
 		}
 	}
 	// Pass 2: walk down and up from mid, accumulating.
