@@ -76,6 +76,10 @@ func (p planPiece) region() string {
 	return fmt.Sprintf("%s:%d-%d", p.chrom, p.start, p.end)
 }
 
+// maxRegionArgs is the most --region options a shard's command gets;
+// shards of more contigs read them from PLANDIR/regions/NUMBER.txt.
+const maxRegionArgs = 20
+
 // planShard is a list of consecutive pieces.
 type planShard struct {
 	pieces  []planPiece
@@ -272,6 +276,18 @@ func readIndexRefs(path string, hdr *vcfscan.Header) ([]indexRef, error) {
 		return usagef("plan: %s: %s: %v", idxPath, why, err)
 	}
 	var refs []indexRef
+	// One compression ratio for the file, from the first data block met.
+	cratio := -1.0
+	ratio := func(span bgzf.Chunk, haveStats bool, cs []bgzf.Chunk) float64 {
+		if cratio < 0 {
+			off := span.Begin.File
+			if !haveStats && len(cs) > 0 {
+				off = cs[0].Begin.File
+			}
+			cratio = compressionRatio(path, off)
+		}
+		return cratio
+	}
 	switch {
 	case bytes.HasPrefix(raw, []byte("TBI\x01")):
 		idx, err := tabix.ReadFrom(bytes.NewReader(raw))
@@ -285,7 +301,7 @@ func readIndexRefs(path string, hdr *vcfscan.Header) ([]indexRef, error) {
 				cs, _ := idx.Chunks(name, beg, end)
 				return cs
 			}
-			if !fillRef(&r, st.Chunk, ok, float64(st.Mapped+st.Unmapped), chunks, 1<<29) {
+			if !fillRef(&r, st.Chunk, ok, float64(st.Mapped+st.Unmapped), chunks, 1<<29, ratio(st.Chunk, ok, chunks(0, 1<<29))) {
 				continue
 			}
 			refs = append(refs, r)
@@ -311,7 +327,7 @@ func readIndexRefs(path string, hdr *vcfscan.Header) ([]indexRef, error) {
 			r := indexRef{name: names[id]}
 			st, ok := idx.ReferenceStats(id)
 			chunks := func(beg, end int) []bgzf.Chunk { return idx.Chunks(id, beg, end) }
-			if !fillRef(&r, st.Chunk, ok, float64(st.Mapped+st.Unmapped), chunks, maxPos) {
+			if !fillRef(&r, st.Chunk, ok, float64(st.Mapped+st.Unmapped), chunks, maxPos, ratio(st.Chunk, ok, chunks(0, maxPos))) {
 				continue
 			}
 			refs = append(refs, r)
@@ -323,38 +339,69 @@ func readIndexRefs(path string, hdr *vcfscan.Header) ([]indexRef, error) {
 }
 
 // fillRef sets a reference's offsets from its index statistics (or its
-// chunks) and the function giving the file offset where records at or
-// after a position start. It reports false for references without records.
-func fillRef(r *indexRef, span bgzf.Chunk, haveStats bool, records float64, chunks func(beg, end int) []bgzf.Chunk, maxPos int) bool {
+// chunks) and the function giving the offset where records at or after a
+// position start. Offsets are approximate compressed byte positions:
+// the block's file offset plus the offset inside the uncompressed block
+// scaled by the compression ratio ratio (so that records sharing a block
+// still differ). It reports false for references without records.
+func fillRef(r *indexRef, span bgzf.Chunk, haveStats bool, records float64, chunks func(beg, end int) []bgzf.Chunk, maxPos int, ratio float64) bool {
+	vpos := func(o bgzf.Offset) int64 { return o.File + int64(float64(o.Block)*ratio) }
 	first := func(beg int) (int64, bool) {
 		cs := chunks(beg, maxPos)
 		if len(cs) == 0 {
 			return 0, false
 		}
-		m := cs[0].Begin.File
+		m := vpos(cs[0].Begin)
 		for _, c := range cs[1:] {
-			m = min(m, c.Begin.File)
+			m = min(m, vpos(c.Begin))
 		}
 		return m, true
 	}
 	if haveStats {
-		r.begin, r.end = span.Begin.File, span.End.File
+		r.begin, r.end = vpos(span.Begin), vpos(span.End)
 	} else {
 		cs := chunks(0, maxPos)
 		if len(cs) == 0 {
 			return false
 		}
-		r.begin, r.end = cs[0].Begin.File, cs[0].End.File
+		r.begin, r.end = vpos(cs[0].Begin), vpos(cs[0].End)
 		for _, c := range cs {
-			r.begin, r.end = min(r.begin, c.Begin.File), max(r.end, c.End.File)
+			r.begin, r.end = min(r.begin, vpos(c.Begin)), max(r.end, vpos(c.End))
 		}
 	}
 	if r.end <= r.begin {
-		r.end = r.begin + 1 // records within one block: count one byte
+		r.end = r.begin + 1
 	}
 	r.records = records
 	r.offsetAt = func(pos int64) (int64, bool) { return first(int(pos - 1)) }
 	return true
+}
+
+// compressionRatio estimates compressed/uncompressed bytes of the data
+// from one BGZF block (BSIZE and ISIZE, SAM spec 4.1) at file offset off;
+// 0.25 when the block cannot be read.
+func compressionRatio(path string, off int64) float64 {
+	const fallback = 0.25
+	f, err := os.Open(path)
+	if err != nil {
+		return fallback
+	}
+	defer f.Close()
+	head := make([]byte, 64)
+	n, _ := f.ReadAt(head, off)
+	size, ok := bgzfBlockSize(head[:n])
+	if !ok || size < 28 {
+		return fallback
+	}
+	var isize [4]byte
+	if _, err := f.ReadAt(isize[:], off+int64(size)-4); err != nil {
+		return fallback
+	}
+	u := binary.LittleEndian.Uint32(isize[:])
+	if u == 0 {
+		return fallback
+	}
+	return float64(size) / float64(u)
 }
 
 // planCSINames returns the names kept in a CSI auxiliary field laid out
@@ -520,6 +567,7 @@ func (p *planScripts) write() error {
 	tsv.WriteString("shard\tregions\tcompressed_bytes\test_records\test_cpu_seconds\test_memory_mb\n")
 	maxLimit, maxMem := 0, 0
 	var cases strings.Builder
+	regionFiles := map[string]string{}
 	for i, s := range p.shards {
 		var regs []string
 		for _, pc := range s.pieces {
@@ -530,8 +578,16 @@ func (p *planScripts) write() error {
 		fmt.Fprintf(&tsv, "%d\t%s\t%d\t%.0f\t%s\t%d\n", i+1, strings.Join(regs, ","), s.bytes, s.records,
 			strconv.FormatFloat(cpu, 'g', 3, 64), mem)
 		fmt.Fprintf(&cases, "  %d)", i+1)
-		for _, r := range regs {
-			fmt.Fprintf(&cases, " regions+=(--region %s)", shellQuote(r))
+		if len(regs) > maxRegionArgs {
+			// Many whole contigs (unplaced scaffolds): a regions file
+			// keeps the command line short.
+			name := fmt.Sprintf("%0*d.txt", width, i+1)
+			regionFiles[name] = strings.Join(regs, "\n") + "\n"
+			fmt.Fprintf(&cases, " regions+=(--regions-file \"$PLANDIR/regions/%s\")", name)
+		} else {
+			for _, r := range regs {
+				fmt.Fprintf(&cases, " regions+=(--region %s)", shellQuote(r))
+			}
 		}
 		cases.WriteString(" ;;\n")
 	}
@@ -543,6 +599,16 @@ func (p *planScripts) write() error {
 				return err
 			}
 			if err := os.MkdirAll(filepath.Join(p.dir, d), 0o755); err != nil {
+				return err
+			}
+		}
+	}
+	if len(regionFiles) > 0 {
+		if err := os.MkdirAll(filepath.Join(p.dir, "regions"), 0o755); err != nil {
+			return err
+		}
+		for name, text := range regionFiles {
+			if err := os.WriteFile(filepath.Join(p.dir, "regions", name), []byte(text), 0o644); err != nil {
 				return err
 			}
 		}

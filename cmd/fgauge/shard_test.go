@@ -815,3 +815,56 @@ func TestMergeReport(t *testing.T) {
 		t.Errorf("report.html missing or not HTML (%v)", err)
 	}
 }
+
+// TestPlanManyContigs: a shard of more than maxRegionArgs whole contigs
+// reads them from a regions file; scanning the plan's shards that way
+// merges to the single pass.
+func TestPlanManyContigs(t *testing.T) {
+	dir := t.TempDir()
+	d, err := simulate.ParseDesign("full_sib")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var chroms []simulate.Chromosome
+	for i := 1; i <= 50; i++ {
+		chroms = append(chroms, simulate.Chromosome{Name: fmt.Sprint(i), LengthBP: 2_000_000, LengthCM: 2})
+	}
+	res, err := simulate.Run(simulate.Config{Seed: 3, Chromosomes: chroms, Designs: []simulate.Design{d}, SiteSpacing: 40_000})
+	if err != nil {
+		t.Fatal(err)
+	}
+	input := filepath.Join(dir, "scaffolds.vcf.gz")
+	if err := simulate.WriteVCFBGZF(input, res); err != nil {
+		t.Fatal(err)
+	}
+	planDir := filepath.Join(dir, "plan")
+	if code, _, e := runCmdline(t, "plan", input, "-o", planDir, "--shards", "2"); code != exitOK {
+		t.Fatalf("plan: exit %d: %s", code, e)
+	}
+	script, _ := os.ReadFile(filepath.Join(planDir, "run_shard.sh"))
+	if !strings.Contains(string(script), "--regions-file") {
+		t.Fatalf("run_shard.sh uses no regions file:\n%s", script)
+	}
+	single := scanSingle(t, dir, input, nil)
+	var states []string
+	for i := 1; i <= 2; i++ {
+		rf := filepath.Join(planDir, "regions", fmt.Sprintf("%d.txt", i))
+		b, err := os.ReadFile(rf)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if n := strings.Count(string(b), "\n"); n <= maxRegionArgs {
+			t.Errorf("%s lists %d contigs", rf, n)
+		}
+		out := filepath.Join(dir, fmt.Sprintf("shard%d", i))
+		if code, _, e := runCmdline(t, "scan", input, "--regions-file", rf, "-o", out, "--state-out", out+".state", "--no-progress"); code != exitOK {
+			t.Fatalf("scan: exit %d: %s", code, e)
+		}
+		states = append(states, out+".state")
+	}
+	merged := filepath.Join(dir, "merged")
+	if code, _, e := runCmdline(t, append([]string{"merge", "-o", merged}, states...)...); code != exitOK {
+		t.Fatalf("merge: exit %d: %s", code, e)
+	}
+	assertSameOutputs(t, single, merged)
+}
