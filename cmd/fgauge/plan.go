@@ -23,15 +23,19 @@ import (
 
 const planHelp = `Splits an indexed input (.tbi or .csi next to it) into shards of roughly
 equal work, measured by the compressed bytes the index assigns to each
-stretch of each chromosome. Chromosomes are kept whole when they fit in a
-shard (neighbours are grouped); larger ones are split at positions. Writes:
+stretch of each chromosome (virtual offsets; offsets inside a BGZF block
+are scaled by the file's compression ratio). Chromosomes are kept whole
+when they fit in a shard (neighbours are grouped); larger ones are split
+at positions. Writes:
   PLANDIR/shards.tsv       shard, regions, compressed_bytes, est_records,
                            est_cpu_seconds, est_memory_mb
-  PLANDIR/run_shard.sh     scans one shard: run_shard.sh NUMBER
+  PLANDIR/run_shard.sh     scans one shard: run_shard.sh NUMBER (shards of
+                           more than 20 contigs list them in PLANDIR/regions/)
   PLANDIR/run_local.sh     all shards on this machine (--jobs at a time), then merge
-  PLANDIR/submit_slurm.sh  a Slurm job array (one task per shard) and a merge
-                           job that starts when every task has succeeded
-                           (sbatch --dependency=afterok)
+  PLANDIR/submit_slurm.sh  run with bash: submits a Slurm job array (one task
+                           per shard, shard_array.sbatch) and a merge job
+                           (merge.sbatch) that starts when every task has
+                           succeeded (sbatch --dependency=afterok)
 Options after "--" are passed to every 'fgauge scan' of the plan (for
 example -- --populations herds.tsv --roh-method rules).
 
