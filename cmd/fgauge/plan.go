@@ -52,7 +52,8 @@ in the source) times a safety factor of 4, at least 15 minutes.
 // and sample with the default options (all statistics and HMM detection):
 // 52 ns, from bench/shards (1,000 samples x 50,000 synthetic sites of
 // bench/gen on 4 chromosomes, 2.61 s of CPU for 50 million calls on a
-// 2-core machine). Its peak RSS there, 220 MB, is what the memory estimate
+// 2-core machine shared with other jobs; the same run on a quieter machine
+// measured 33 ns, so the constant errs on the long side). Its peak RSS there, 220 MB, is what the memory estimate
 // (200 MB plus 1.25 bytes per site and sample: the packed genotypes of the
 // chromosome being read and the tables of the one being detected) covers.
 const (
