@@ -9,6 +9,10 @@ import (
 	"strings"
 )
 
+// headerLineCost approximates what each kept header line costs in memory
+// besides its text (string and slice headers, map entries).
+const headerLineCost = 64
+
 // mandatory columns of the #CHROM line (VCF 4.x specification, section 1.5).
 var fixedColumns = []string{"#CHROM", "POS", "ID", "REF", "ALT", "QUAL", "FILTER", "INFO"}
 
@@ -67,6 +71,7 @@ func parseTextHeader(br *bufio.Reader, name string, lim Limits, warn func(kind, 
 	h := &headerReader{name: name, br: br, maxLine: lim.MaxLineBytes}
 	hdr := &Header{Info: map[string]FieldDef{}, FormatDefs: map[string]FieldDef{}}
 	seenContig := map[string]bool{}
+	var held int64 // header bytes held in memory, see headerLineCost
 	for {
 		line, err := h.readLine()
 		if err == io.EOF {
@@ -78,6 +83,12 @@ func parseTextHeader(br *bufio.Reader, name string, lim Limits, warn func(kind, 
 		}
 		if err != nil {
 			return nil, false, 0, err
+		}
+		// The header is kept in memory: bound its size, counting a
+		// line's bookkeeping too, so that endless short meta lines
+		// cannot exhaust memory.
+		if held += int64(len(line)) + headerLineCost; held > int64(lim.MaxLineBytes) {
+			return nil, false, 0, h.errf(ErrLimit, "header", "header of %d lines holds more than %d bytes (lines count %d bytes each besides their text); raise --max-line-bytes, which also bounds the header, if the file is genuine", h.line, lim.MaxLineBytes, headerLineCost)
 		}
 		if h.line == 1 && !bytes.HasPrefix(line, []byte("##fileformat=")) {
 			if !bytes.HasPrefix(line, []byte("#CHROM")) {

@@ -85,6 +85,13 @@ var hostile = map[string]func(w io.Writer) error{
 		}
 		return repeat(w, bytes.Repeat([]byte("\ts"), 1<<15))
 	},
+	// A header of meta lines without end (each stored by the parser).
+	"endless_meta_lines": func(w io.Writer) error {
+		if _, err := io.WriteString(w, "##fileformat=VCFv4.2\n"); err != nil {
+			return err
+		}
+		return repeat(w, bytes.Repeat([]byte("##a=b\n"), 1<<13))
+	},
 	// A gzip bomb: a short gzip stream that inflates to gigabytes of one line.
 	"gzip_bomb": func(w io.Writer) error {
 		zw, _ := gzip.NewWriterLevel(w, gzip.BestCompression)
@@ -124,7 +131,7 @@ func TestHostileInputMemory(t *testing.T) {
 	if raceEnabled {
 		t.Skip("memory is not representative under the race detector (and the byte loops run 30 times slower); TestLimitErrors covers the refusals")
 	}
-	for _, name := range []string{"endless_line", "endless_samples", "gzip_bomb", "bgzf_bomb"} {
+	for _, name := range []string{"endless_line", "endless_samples", "endless_meta_lines", "gzip_bomb", "bgzf_bomb"} {
 		t.Run(name, func(t *testing.T) {
 			cmd := exec.Command(os.Args[0], "-test.run=^TestHostileChild$", "-test.count=1")
 			cmd.Env = append(os.Environ(), "FGAUGE_HOSTILE_CHILD="+name, "GOMAXPROCS=2")
