@@ -104,7 +104,7 @@ func checkStates(env *runEnv, paths []string) error {
 			fmt.Fprintf(env.stdout, "bad\t%s\t%v\n", p, err)
 			continue
 		}
-		fmt.Fprintf(env.stdout, "ok\t%s\t%s\n", p, describeRegions(st))
+		fmt.Fprintf(env.stdout, "ok\t%s\t%s\tfgauge %s\n", p, describeRegions(st), st.Version)
 	}
 	if bad > 0 {
 		return usagef("merge --check: %d of %d states are not intact", bad, len(paths))

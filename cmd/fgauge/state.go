@@ -38,6 +38,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"runtime/debug"
 	"slices"
 	"sort"
 	"strings"
@@ -376,7 +377,7 @@ func (s *shardSink) AddBatch(b *vcfscan.Batch, freqs []float64) error {
 		}
 		d.Records = append(d.Records, b.Records[i])
 		d.GT = append(d.GT, b.GT[i*ns:(i+1)*ns]...)
-		if b.PL != nil {
+		if len(b.PL) > 0 {
 			d.PL = append(d.PL, b.PL[3*i*ns:3*(i+1)*ns]...)
 			d.HasPL = append(d.HasPL, i < len(b.HasPL) && b.HasPL[i])
 		}
@@ -388,7 +389,7 @@ func (s *shardSink) AddBatch(b *vcfscan.Batch, freqs []float64) error {
 	if freqs == nil {
 		wf, pf = nil, nil
 	}
-	if b.PL == nil {
+	if len(b.PL) == 0 {
 		s.whole.PL, s.whole.HasPL, s.pieces.PL, s.pieces.HasPL = nil, nil, nil, nil
 	}
 	if err := s.rc.AddBatch(&s.whole, wf); err != nil {
@@ -438,6 +439,36 @@ func describeRegions(st *shardState) string {
 	return strings.Join(parts, ",")
 }
 
+// buildVersion is the version of this fgauge as recorded in states: the
+// release version plus, when the binary was built from a version-control
+// checkout, its revision (and "-modified" for uncommitted changes), so
+// that shards of one run come from one build.
+func buildVersion() string {
+	v := version
+	bi, ok := debug.ReadBuildInfo()
+	if !ok {
+		return v
+	}
+	var rev, mod string
+	for _, kv := range bi.Settings {
+		switch kv.Key {
+		case "vcs.revision":
+			rev = kv.Value
+		case "vcs.modified":
+			if kv.Value == "true" {
+				mod = "-modified"
+			}
+		}
+	}
+	if len(rev) > 12 {
+		rev = rev[:12]
+	}
+	if rev != "" {
+		v += "+" + rev + mod
+	}
+	return v
+}
+
 // shardFlags are the scan options of sharded runs.
 type shardFlags struct {
 	stateOut  string
@@ -470,7 +501,7 @@ func (f *shardFlags) identity(o *scanOptions) (*shardState, error) {
 	if err != nil {
 		return nil, err
 	}
-	st := &shardState{Format: stateFormat, Version: version, InputPath: o.input, InputAbs: abs,
+	st := &shardState{Format: stateFormat, Version: buildVersion(), InputPath: o.input, InputAbs: abs,
 		InputSize: size, InputModUnix: mod, Options: opts, WholeFile: len(o.read.Regions) == 0,
 		Regions: shardRegions(o.read.Regions)}
 	return st, nil
