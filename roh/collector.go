@@ -154,7 +154,7 @@ func (c *Collector) AddBatch(b *vcfscan.Batch, freqs []float64) error {
 	if freqs != nil && len(freqs) != len(b.Records) {
 		return fmt.Errorf("roh: %d frequencies for %d records", len(freqs), len(b.Records))
 	}
-	if len(b.GT) < len(b.Records)*b.NSamples || (b.PL != nil && len(b.PL) < 3*len(b.Records)*b.NSamples) {
+	if len(b.GT) < len(b.Records)*b.NSamples || (len(b.PL) > 0 && len(b.PL) < 3*len(b.Records)*b.NSamples) {
 		return fmt.Errorf("roh: batch %d holds %d calls and %d likelihoods for %d records of %d samples",
 			b.Seq, len(b.GT), len(b.PL), len(b.Records), b.NSamples)
 	}
@@ -204,7 +204,7 @@ func (c *Collector) AddBatch(b *vcfscan.Batch, freqs []float64) error {
 		if t&31 == 31 {
 			ch.flushStage()
 		}
-		if b.PL != nil && i < len(b.HasPL) && b.HasPL[i] {
+		if len(b.PL) > 0 && i < len(b.HasPL) && b.HasPL[i] {
 			if ch.pl == nil {
 				ch.pl = make([][]uint8, ns)
 				ch.stagePL = make([]uint8, ns*plBlock*3)

@@ -806,15 +806,12 @@ func (d *bcfDecoder) decode(rec []byte, index int64, b *Batch) (kept bool, reaso
 		}
 	}
 	if d.opt.WantPL {
-		pbase := len(b.PL)
-		b.PL = growU16(b.PL, 3*nOut)
-		out := b.PL[pbase : pbase+3*nOut]
-		clear(out)
 		src, isGL := pl, false
 		if !pl.ok {
 			src, isGL = gl, true
 		}
 		b.HasPL = append(b.HasPL, src.ok)
+		out := plRoom(b, len(b.Records), nOut, src.ok)
 		if src.ok && src.n > 0 {
 			for j, s := range d.sel {
 				d.likelihoods(out[3*j:3*j+3], src, s, isGL)

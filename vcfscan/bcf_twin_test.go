@@ -69,7 +69,10 @@ func bcfScanFile(t testing.TB, path string, opt Options) bcfScanResult {
 			}
 			if opt.WantPL {
 				f.HasPL = b.HasPL[i]
-				f.PL = append([]uint16(nil), b.PL[3*i*b.NSamples:3*(i+1)*b.NSamples]...)
+				f.PL = make([]uint16, 3*b.NSamples) // zeros: PL is empty in batches without likelihoods
+				if len(b.PL) > 0 {
+					copy(f.PL, b.PL[3*i*b.NSamples:3*(i+1)*b.NSamples])
+				}
 			}
 			res.recs = append(res.recs, f)
 		}

@@ -92,9 +92,10 @@ type Record struct {
 // Batch is a run of consecutive kept records with their genotypes.
 // GT holds len(Records)*NSamples codes, record-major: the calls of record i
 // are GT[i*NSamples:(i+1)*NSamples], in the order of Reader.Samples().
-// When Options.WantPL is set and the input carries PL (or GL), PL holds
-// three phred-scaled likelihoods per call (0/0, 0/1, 1/1) in the same
-// layout times three, and HasPL[i] says whether record i had them.
+// When Options.WantPL is set, HasPL[i] says whether record i carried PL
+// (or GL); if any record of the batch did, PL holds three phred-scaled
+// likelihoods per call (0/0, 0/1, 1/1) in the same layout times three
+// (zeros for records without), else PL is empty (len 0, possibly not nil).
 type Batch struct {
 	Seq      int64 // 0,1,2,... in input order
 	Records  []Record

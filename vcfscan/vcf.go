@@ -142,7 +142,7 @@ func (p *vcfParser) errf(line int64, sentinel error, field, format string, args 
 func (p *vcfParser) parseChunk(b *Batch, data []byte) error {
 	st := p.st
 	var lineNo int64
-	fused := p.nFile > 0 && p.regions == nil && !p.opt.WantPL && p.opt.MinDP <= 0 && p.opt.MinGQ <= 0
+	fused := p.nFile > 0 && p.regions == nil && p.opt.MinDP <= 0 && p.opt.MinGQ <= 0
 	for len(data) > 0 {
 		if fused {
 			used, ok, err := p.fastLine(b, data, lineNo+1)
@@ -240,7 +240,7 @@ func (p *vcfParser) fastLine(b *Batch, data []byte, lineNo int64) (used int, ok 
 		return 0, false, nil
 	}
 	p.parseFormat(data[tabs[7]+1 : tabs[8]])
-	if p.gtIdx != 0 {
+	if p.gtIdx != 0 || (p.opt.WantPL && (p.plIdx >= 0 || p.glIdx >= 0)) {
 		return 0, false, nil
 	}
 	b.Read++
@@ -253,6 +253,10 @@ func (p *vcfParser) fastLine(b *Batch, data []byte, lineNo int64) (used int, ok 
 	})
 	if p.opt.InfoKey != "" {
 		b.Records[ri].InfoValue = infoValue(data[tabs[6]+1:tabs[7]], p.opt.InfoKey)
+	}
+	if p.opt.WantPL {
+		b.HasPL = append(b.HasPL, false)
+		plRoom(b, ri, p.nOut, false)
 	}
 	base := len(b.GT)
 	b.GT = growGeno(b.GT, p.nOut)
@@ -451,15 +455,10 @@ func (p *vcfParser) parseLine(b *Batch, line []byte, lineNo int64) error {
 	var pl []uint16
 	wantPL := p.opt.WantPL
 	if wantPL {
-		pbase := len(b.PL)
-		b.PL = growU16(b.PL, 3*p.nOut)
-		pl = b.PL[pbase : pbase+3*p.nOut]
 		has := p.plIdx >= 0 || p.glIdx >= 0
 		b.HasPL = append(b.HasPL, has)
-		if !has {
-			clear(pl)
-			wantPL = false
-		}
+		pl = plRoom(b, ri, p.nOut, has)
+		wantPL = has
 	}
 	if p.gtIdx == 0 && !wantPL && p.opt.MinDP <= 0 && p.opt.MinGQ <= 0 {
 		return p.fastSamples(b, gt, samp, lineNo)
@@ -966,6 +965,21 @@ func growGeno(s []Geno, n int) []Geno {
 		s = t
 	}
 	return s[:need]
+}
+
+// plRoom returns the zeroed likelihood slots of record ri of b (3*nOut
+// values), first filling zeros for earlier records of the batch that had
+// none. While no record of the batch carries likelihoods (has false) PL
+// stays empty and plRoom returns nil: most inputs have only GT, and
+// zeros for every call would double the batch.
+func plRoom(b *Batch, ri, nOut int, has bool) []uint16 {
+	if !has && len(b.PL) == 0 {
+		return nil
+	}
+	old, need := len(b.PL), 3*(ri+1)*nOut
+	b.PL = growU16(b.PL, need-old)
+	clear(b.PL[old:need])
+	return b.PL[3*ri*nOut : need]
 }
 
 func growU16(s []uint16, n int) []uint16 {
