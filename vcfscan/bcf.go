@@ -84,9 +84,16 @@ func readBCFHeader(r io.Reader, name string, lim Limits, warn func(kind, example
 		return nil, &ParseError{File: name, Offset: -1, Record: -1, Field: "BCF header",
 			Err: fmt.Errorf("%w: header length %d bytes is over the %d limit", ErrLimit, lText, bcfMaxHeaderLen)}
 	}
-	// Read through a LimitReader into a growing buffer so that a lying
-	// length on a short file does not allocate the claimed size.
+	if lim.MaxLineBytes > 0 && int64(lText) > int64(lim.MaxLineBytes) {
+		return nil, &ParseError{File: name, Offset: -1, Record: -1, Field: "BCF header",
+			Err: fmt.Errorf("%w: header length %d bytes is over the %d limit; raise --max-line-bytes, which also bounds the header, if the file is genuine", ErrLimit, lText, lim.MaxLineBytes)}
+	}
+	// Read through a LimitReader into a buffer of the claimed size, now
+	// bounded by --max-line-bytes: pages a lying length on a short file
+	// never fills are not touched, and a genuine header is not copied
+	// while the buffer grows.
 	var buf bytes.Buffer
+	buf.Grow(int(lText) + bytes.MinRead)
 	n, err := buf.ReadFrom(io.LimitReader(r, int64(lText)))
 	if err != nil {
 		return nil, &ParseError{File: name, Offset: -1, Record: -1, Field: "BCF header", Err: err}
@@ -267,7 +274,7 @@ func readBCFRecord(r io.Reader, buf []byte, maxBytes int) ([]byte, error) {
 	ls := uint64(binary.LittleEndian.Uint32(buf[0:4]))
 	li := uint64(binary.LittleEndian.Uint32(buf[4:8]))
 	if ls+li > uint64(maxBytes) {
-		return buf[:0], fmt.Errorf("%w: record of %d bytes is over the %d limit", ErrLimit, ls+li, maxBytes)
+		return buf[:0], fmt.Errorf("%w: record of %d bytes is over the %d limit; raise --max-line-bytes if the file is genuine", ErrLimit, ls+li, maxBytes)
 	}
 	total := 8 + int(ls+li)
 	// Grow by at most 1 MiB beyond the bytes actually read, so that a

@@ -92,6 +92,17 @@ var hostile = map[string]func(w io.Writer) error{
 		}
 		return repeat(w, bytes.Repeat([]byte("##a=b\n"), 1<<13))
 	},
+	// A BGZF-compressed BCF whose header claims 60 MB of text (under the
+	// limit) and delivers meta lines without end.
+	"bcf_header_bomb": func(w io.Writer) error {
+		bw := NewBGZFWriter(w, 9)
+		pre := []byte("BCF\x02\x02\x00\x00\x00\x00##fileformat=VCFv4.2\n")
+		binary.LittleEndian.PutUint32(pre[5:], 60_000_000)
+		if _, err := bw.Write(pre); err != nil {
+			return err
+		}
+		return repeat(bw, bytes.Repeat([]byte("##a=b\n"), 1<<13))
+	},
 	// A gzip bomb: a short gzip stream that inflates to gigabytes of one line.
 	"gzip_bomb": func(w io.Writer) error {
 		zw, _ := gzip.NewWriterLevel(w, gzip.BestCompression)
@@ -131,7 +142,7 @@ func TestHostileInputMemory(t *testing.T) {
 	if raceEnabled {
 		t.Skip("memory is not representative under the race detector (and the byte loops run 30 times slower); TestLimitErrors covers the refusals")
 	}
-	for _, name := range []string{"endless_line", "endless_samples", "endless_meta_lines", "gzip_bomb", "bgzf_bomb"} {
+	for _, name := range []string{"endless_line", "endless_samples", "endless_meta_lines", "bcf_header_bomb", "gzip_bomb", "bgzf_bomb"} {
 		t.Run(name, func(t *testing.T) {
 			cmd := exec.Command(os.Args[0], "-test.run=^TestHostileChild$", "-test.count=1")
 			cmd.Env = append(os.Environ(), "FGAUGE_HOSTILE_CHILD="+name, "GOMAXPROCS=2")
