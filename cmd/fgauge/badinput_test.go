@@ -487,3 +487,23 @@ func TestBadInputStaleIndex(t *testing.T) {
 		t.Errorf("left %v", left)
 	}
 }
+
+// TestBadInputSideFileLongLine: a sample list with a 200 kB line is an
+// input error (exit 2) that names the file.
+func TestBadInputSideFileLongLine(t *testing.T) {
+	dir := t.TempDir()
+	list := filepath.Join(dir, "keep.txt")
+	if err := os.WriteFile(list, []byte("goat_a\n"+strings.Repeat("x", 200_000)+"\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "out")
+	for _, opt := range []string{"--samples", "--exclude-samples"} {
+		code, stderr := badRun(t, "scan", filepath.Join(badDir, "crlf.vcf"), opt, list, "-o", out, "--no-progress")
+		if code != 2 || !strings.Contains(stderr, "keep.txt") {
+			t.Errorf("%s: code %d, stderr %s", opt, code, stderr)
+		}
+		if left := leftovers(t, out); left != nil {
+			t.Errorf("left %v", left)
+		}
+	}
+}

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bufio"
 	"errors"
 	"io/fs"
 
@@ -19,6 +20,7 @@ var inputSentinels = []error{
 	stats.ErrBadTable, roh.ErrMap, roh.ErrConfig,
 	pedigree.ErrMalformed, pedigree.ErrDuplicate, pedigree.ErrLoop, pedigree.ErrUnknownID,
 	fs.ErrNotExist, fs.ErrPermission,
+	bufio.ErrTooLong, // a side file (sample list, ...) with an overlong line
 }
 
 // isInputFault reports whether err comes from a bad or unreadable input
