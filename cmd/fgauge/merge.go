@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"context"
 	"encoding/binary"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -403,95 +402,33 @@ func mergeStates(ctx context.Context, env *runEnv, paths []string, outDir string
 	return nil
 }
 
-// mergeRunInfo builds run.json with the keys of a single pass (see
-// runInfo) plus a "shards" section.
+// mergeRunInfo builds run.json as one pass would (runSummary) from the
+// merged counts, plus a "shards" section.
 func mergeRunInfo(env *runEnv, ls []loadedState, m *merged, start time.Time) map[string]any {
 	f := m.first
-	skipped := map[string]any{}
-	for i := vcfscan.SkipReason(0); i < vcfscan.NumSkipReasons; i++ {
-		skipped[i.String()] = m.skipped[i]
-	}
-	warns := append(append([]vcfscan.Warning(nil), m.warnings...), scanWarnings(m.totals, m.kept, m.rres)...)
-	warnings := map[string]any{}
-	for _, w := range warns {
-		warnings[w.Kind] = w.Count
-	}
-	keptSet := map[string]bool{}
-	for _, s := range f.Samples {
-		keptSet[s] = true
-	}
-	excluded := []string{}
-	for _, s := range f.SamplesInFile {
-		if !keptSet[s] {
-			excluded = append(excluded, s)
+	t := m.totals
+	unlisted := []string{}
+	for i, p := range t.PopOf {
+		if p < 0 {
+			unlisted = append(unlisted, t.Samples[i])
 		}
 	}
+	facts := &runFacts{argv: env.argv, inputPath: f.InputPath, inputSize: f.InputSize, inputFormat: f.InputFormat,
+		read: m.read, kept: m.kept, skipped: m.skipped, masked: m.masked,
+		samplesInFile: f.SamplesInFile, samples: f.Samples, warnings: m.warnings,
+		unlisted: unlisted, wallSeconds: time.Since(start).Seconds()}
+	info := runSummary(env.stderr, facts, t, m.rres)
 	var files, regions []string
 	for _, l := range ls {
 		files = append(files, l.path)
 		regions = append(regions, describeRegions(l.st))
 	}
-	info := map[string]any{
-		"version":      version,
-		"command_line": env.argv,
-		"input":        map[string]any{"path": f.InputPath, "size_bytes": f.InputSize, "format": f.InputFormat},
-		"records": map[string]any{
-			"read": m.read, "kept": m.kept, "skipped": skipped, "masked_calls": m.masked,
-		},
-		"samples":      map[string]any{"in_file": len(f.SamplesInFile), "kept": len(f.Samples), "excluded": excluded},
-		"sites":        m.totals.Summary(),
-		"warnings":     warnings,
-		"wall_seconds": time.Since(start).Seconds(),
-		"shards": map[string]any{
-			"count": len(ls), "states": files, "regions": regions,
-			"records_read": m.readAll, "records_outside_regions": m.outside,
-			"shard_wall_seconds": m.wall,
-		},
-	}
-	if m.totals.HasPopulations() {
-		info["populations"] = m.totals.PopulationSummary()
-	}
-	if m.rres != nil {
-		info["roh"] = m.rres.Summary()
-	}
-	overlayShardInfo(info, f.RunJSON)
-	for _, w := range warns {
-		fmt.Fprintf(env.stderr, "fgauge: warning: %s (%d times; first: %s)\n", w.Kind, w.Count, w.Example)
+	info["shards"] = map[string]any{
+		"count": len(ls), "states": files, "regions": regions,
+		"records_read": m.readAll, "records_outside_regions": m.outside,
+		"shard_wall_seconds": m.wall,
 	}
 	return info
-}
-
-// overlayShardInfo copies into info the entries of a shard's run.json
-// that merge does not compute (top level and one level down): facts that
-// are the same in every shard, such as the samples missing from
-// --populations. Numbers merge must sum are all computed above, and the
-// identity tests compare the result with a single pass.
-func overlayShardInfo(info map[string]any, shardJSON []byte) {
-	var sh map[string]any
-	if json.Unmarshal(shardJSON, &sh) != nil {
-		return
-	}
-	for k, v := range sh {
-		switch k {
-		case "wall_seconds", "command_line", "warnings":
-			continue
-		}
-		mine, ok := info[k]
-		if !ok {
-			info[k] = v
-			continue
-		}
-		mm, ok1 := mine.(map[string]any)
-		sm, ok2 := v.(map[string]any)
-		if !ok1 || !ok2 {
-			continue
-		}
-		for kk, vv := range sm {
-			if _, ok := mm[kk]; !ok {
-				mm[kk] = vv
-			}
-		}
-	}
 }
 
 // bgzfEOFBlock is the empty block that ends a BGZF file (SAM spec 4.1.2).

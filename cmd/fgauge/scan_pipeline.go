@@ -560,57 +560,15 @@ func sanitizeJSON(v any) any {
 }
 
 func runInfo(env *runEnv, o *scanOptions, rd *vcfscan.Reader, c *vcfscan.Batch, kept int64, samples []string, totals *stats.Totals, rres *roh.Result, start time.Time) map[string]any {
-	skipped := map[string]any{}
-	for i := vcfscan.SkipReason(0); i < vcfscan.NumSkipReasons; i++ {
-		skipped[i.String()] = c.Skipped[i]
-	}
 	size := int64(-1)
 	if st, err := os.Stat(o.input); err == nil && o.input != "-" {
 		size = st.Size()
 	}
-	warns := append(rd.Warnings(), scanWarnings(totals, kept, rres)...)
-	warnings := map[string]any{}
-	for _, w := range warns {
-		warnings[w.Kind] = w.Count
-	}
-	hdr := rd.Header()
-	excluded := []string{}
-	keptSet := map[string]bool{}
-	for _, s := range samples {
-		keptSet[s] = true
-	}
-	for _, s := range hdr.Samples {
-		if !keptSet[s] {
-			excluded = append(excluded, s)
-		}
-	}
-	info := map[string]any{
-		"version":      version,
-		"command_line": env.argv,
-		"input":        map[string]any{"path": o.input, "size_bytes": size, "format": rd.Format().String()},
-		"records": map[string]any{
-			"read": c.Read, "kept": kept, "skipped": skipped, "masked_calls": c.Masked,
-		},
-		"samples":      map[string]any{"in_file": len(hdr.Samples), "kept": len(samples), "excluded": excluded},
-		"sites":        totals.Summary(),
-		"warnings":     warnings,
-		"wall_seconds": time.Since(start).Seconds(),
-	}
-	if totals.HasPopulations() {
-		ps := totals.PopulationSummary()
-		ps["samples_not_listed"] = append([]string{}, o.stats.unlisted...)
-		info["populations"] = ps
-		if n := len(o.stats.unlisted); n > 0 {
-			fmt.Fprintf(env.stderr, "fgauge: %d samples are not in --populations and are left out of population statistics (listed in run.json)\n", n)
-		}
-	}
-	if rres != nil {
-		info["roh"] = rres.Summary()
-	}
-	for _, w := range warns {
-		fmt.Fprintf(env.stderr, "fgauge: warning: %s (%d times; first: %s)\n", w.Kind, w.Count, w.Example)
-	}
-	return info
+	f := &runFacts{argv: env.argv, inputPath: o.input, inputSize: size, inputFormat: rd.Format().String(),
+		read: c.Read, kept: kept, skipped: c.Skipped, masked: c.Masked,
+		samplesInFile: rd.Header().Samples, samples: samples, warnings: rd.Warnings(),
+		unlisted: o.stats.unlisted, wallSeconds: time.Since(start).Seconds()}
+	return runSummary(env.stderr, f, totals, rres)
 }
 
 // loadSampleLists reads --samples and --exclude-samples.

@@ -109,7 +109,6 @@ type shardState struct {
 	PopSHA256    string
 
 	WallSeconds float64
-	RunJSON     []byte // the shard's own run.json
 }
 
 // writeStateFile writes st atomically (temporary file, then rename).
@@ -687,8 +686,5 @@ func (f *shardFlags) writeState(o *scanOptions, rd *vcfscan.Reader, counts *vcfs
 		}
 	}
 	st.WallSeconds = wall
-	if st.RunJSON, err = os.ReadFile(filepath.Join(o.out, "run.json")); err != nil {
-		return err
-	}
 	return writeStateFile(f.stateOut, st)
 }
