@@ -25,6 +25,9 @@ const (
 // chunkTarget is the size of the text chunks parsed in parallel.
 const chunkTarget = 2 << 20
 
+// sortAdvice ends the messages about records out of order.
+const sortAdvice = "sort the file by chromosome and position, compress it again with BGZF and rebuild its index"
+
 // Warning is a condition met while reading that does not stop it, counted
 // once per kind. Example locates the first occurrence.
 type Warning struct {
@@ -606,7 +609,7 @@ func (r *Reader) finishBatch(b *Batch) error {
 	if st.unsorted != nil && r.opt.RequireSorted {
 		u := st.unsorted
 		return &ParseError{File: r.name, Line: u.line + base, Offset: -1, Record: -1, Field: "POS",
-			Err: fmt.Errorf("%w: position %d on %s comes after position %d (line %d); sort the file by chromosome and position", ErrUnsorted,
+			Err: fmt.Errorf("%w: position %d on %s comes after position %d (line %d); "+sortAdvice, ErrUnsorted,
 				u.pos, r.hdr.Contigs[resolve(u.chrom)].Name, u.prev, u.prevLineRel+base)}
 	}
 	for _, blk := range st.blocks {
@@ -614,13 +617,13 @@ func (r *Reader) finishBatch(b *Batch) error {
 		if id == r.curChrom {
 			if blk.firstPos < r.lastPos && r.opt.RequireSorted {
 				return &ParseError{File: r.name, Line: blk.firstLine + base, Offset: -1, Record: -1, Field: "POS",
-					Err: fmt.Errorf("%w: position %d on %s comes after position %d (line %d); sort the file by chromosome and position", ErrUnsorted,
+					Err: fmt.Errorf("%w: position %d on %s comes after position %d (line %d); "+sortAdvice, ErrUnsorted,
 						blk.firstPos, r.hdr.Contigs[id].Name, r.lastPos, r.lastLine)}
 			}
 		} else {
 			if r.doneChroms[id] && r.opt.RequireSorted {
 				return &ParseError{File: r.name, Line: blk.firstLine + base, Offset: -1, Record: -1, Field: "CHROM",
-					Err: fmt.Errorf("%w: chromosome %s appears again after other chromosomes (last seen up to line %d is not adjacent); keep each chromosome's records together", ErrUnsorted,
+					Err: fmt.Errorf("%w: chromosome %s appears again after other chromosomes (last seen up to line %d is not adjacent); keep each chromosome's records together: "+sortAdvice, ErrUnsorted,
 						r.hdr.Contigs[id].Name, r.lastLine)}
 			}
 			if r.curChrom >= 0 {

@@ -85,8 +85,8 @@ var badCases = []badCase{
 	{file: "pos_overflow.vcf", code: 2, msg: []string{"pos_overflow.vcf:6: POS:", `found "99999999999999999999999"`}},
 	// POS 0 is legal: VCF 4.2 section 1.6.1 reserves 0 (and N+1) for telomeres.
 	{file: "pos_zero.vcf", code: 0},
-	{file: "unsorted_positions.vcf", code: 2, msg: []string{"unsorted_positions.vcf:8: POS: records out of order: position 1500 on 1 comes after position 3000 (line 7)", "sort the file by chromosome and position"}},
-	{file: "chrom_split.vcf", code: 2, msg: []string{"chrom_split.vcf:8: CHROM: records out of order: chromosome 1 appears again", "keep each chromosome's records together"}},
+	{file: "unsorted_positions.vcf", code: 2, msg: []string{"unsorted_positions.vcf:8: POS: records out of order: position 1500 on 1 comes after position 3000 (line 7)", "sort the file by chromosome and position, compress it again with BGZF and rebuild its index"}},
+	{file: "chrom_split.vcf", code: 2, msg: []string{"chrom_split.vcf:8: CHROM: records out of order: chromosome 1 appears again", "keep each chromosome's records together: sort the file by chromosome and position"}},
 	// Without ROH and regions, order does not matter to the statistics.
 	{file: "unsorted_positions.vcf", args: []string{"--no-roh"}, code: 0},
 	{file: "gt_allele_beyond_alt.vcf", code: 2, msg: []string{"gt_allele_beyond_alt.vcf:7: GT:", `sample "goat_b": genotype "0/2": allele 2 is used but ALT lists only 1 allele`}},
