@@ -46,8 +46,14 @@ func leftovers(t *testing.T, dir string) []string {
 }
 
 // badCase is one malformed (or legal but suspicious) input and what scan
-// must do with it. The decisions are ours; the expected messages name the
-// file and the place (line, BGZF offset or BCF record) and say what was
+// must do with it. What is malformed follows the specifications in
+// hts-specs: VCF 4.2 (header layout section 1.4-1.5, data lines 1.6),
+// BCF 2.2 (section 6) and BGZF (SAM/BAM format specification section 4.1,
+// including the 28-byte EOF block; section numbers from memory). Where the
+// specifications allow a thing (POS 0, polyploid calls, a missing EOF
+// block) or a tolerant reading does no harm (CRLF line endings) the
+// decision is ours and written beside the row. The expected messages name the file and
+// the place (line, BGZF virtual offset or BCF record) and say what was
 // expected and found.
 type badCase struct {
 	file string   // in testdata/bad (or a path relative to this folder)
