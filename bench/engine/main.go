@@ -1,5 +1,3 @@
-//go:build engine_ready
-
 // Command engine reads a VCF/BCF with the vcfscan engine alone and counts
 // genotype codes, so bench/run can separate the engine's cost from the
 // statistics' cost.
