@@ -144,7 +144,7 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 	for _, r := range o.regions {
 		reg, err := vcfscan.ParseRegion(r)
 		if err != nil {
-			return usagef("--region %q: %v", r, err)
+			return usagef("--region: %v", err)
 		}
 		o.read.Regions = append(o.read.Regions, reg)
 	}
