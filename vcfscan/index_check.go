@@ -35,7 +35,10 @@ func checkIndexCounts(raw []byte) error {
 		p = p[n:]
 		return nil
 	}
-	csi := len(raw) >= 4 && string(raw[:3]) == "CSI"
+	if len(raw) < 4 {
+		return fmt.Errorf("%w: index of %d bytes ends inside its magic; the index is damaged: rebuild it", ErrMalformed, len(raw))
+	}
+	csi := string(raw[:3]) == "CSI"
 	p = p[4:]
 	var nRef int64
 	var err error
