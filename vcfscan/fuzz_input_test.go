@@ -130,3 +130,48 @@ func FuzzBCFHeader(f *testing.F) {
 		}
 	})
 }
+
+// FuzzReadAll feeds whole files of any kind (plain or compressed VCF, BCF,
+// garbage) to NewReader and reads them to the end with small limits. It
+// must not panic or hang, and every error must wrap one of the package's
+// sentinels so that callers can tell bad input from a bug. Seeds: the
+// malformed-input corpus (testdata/bad) and small edge-case files.
+func FuzzReadAll(f *testing.F) {
+	seeds, _ := filepath.Glob("../testdata/bad/*")
+	seeds = append(seeds, "../testdata/edge/test-genotypes.vcf", "../testdata/bcf/annotated_small.bcf")
+	for _, p := range seeds {
+		if st, err := os.Stat(p); err != nil || st.IsDir() || st.Size() > 8<<10 {
+			continue
+		}
+		b, err := os.ReadFile(p)
+		if err != nil {
+			f.Fatal(err)
+		}
+		f.Add(b)
+	}
+	sentinels := []error{ErrMalformed, ErrTruncated, ErrChecksum, ErrLimit, ErrUnsorted, ErrSampleCount}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		opt := Options{Threads: 2, RequireSorted: true, WantPL: true,
+			Limits: Limits{MaxLineBytes: 1 << 14, MaxSamples: 64, MaxAlleles: 16}}
+		r, err := NewReader(bytes.NewReader(data), "fuzz", opt)
+		if err == nil {
+			for {
+				var b *Batch
+				if b, err = r.Next(); err != nil {
+					break
+				}
+				r.Release(b)
+			}
+			r.Close()
+			if err == io.EOF {
+				return
+			}
+		}
+		for _, s := range sentinels {
+			if errors.Is(err, s) {
+				return
+			}
+		}
+		t.Fatalf("error %v wraps no sentinel", err)
+	})
+}
