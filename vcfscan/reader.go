@@ -17,7 +17,7 @@ import (
 // Default limits (see Limits).
 const (
 	DefaultMaxLineBytes = 64 << 20
-	DefaultMaxSamples   = 10_000_000
+	DefaultMaxSamples   = 1_000_000 // each sample costs scan about 1.6 kB before any genotype is read
 	DefaultMaxAlleles   = 1000
 	DefaultMaxBlock     = bgzfDefaultMaxI
 )

@@ -151,8 +151,8 @@ type Region struct {
 
 // Limits bound what a hostile input can make the reader allocate.
 type Limits struct {
-	MaxLineBytes   int // default 256 MiB
-	MaxSamples     int // default 10,000,000
+	MaxLineBytes   int // default 64 MiB; also bounds a header
+	MaxSamples     int // default 1,000,000
 	MaxAlleles     int // default 1,000
 	MaxBlockExpand int // max ISIZE of a BGZF block (default 65,536, the format's maximum); plain gzip is inflated as a stream and needs no guard
 }

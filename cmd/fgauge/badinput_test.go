@@ -7,6 +7,7 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -357,6 +358,25 @@ func TestBadInputsHuge(t *testing.T) {
 		t.Fatal(err)
 	}
 	t.Logf("BGZF bomb %d bytes, gzip bomb %d bytes", bomb.Len(), gz.Len())
+
+	// A 9 MB header naming 1,000,001 samples: each sample costs scan
+	// about 1.6 kB (5 million cost 7.9 GB RSS), so the default
+	// --max-samples refuses it before anything is allocated per sample.
+	many := filepath.Join(dir, "many_samples.vcf")
+	var hb bytes.Buffer
+	hb.WriteString("##fileformat=VCFv4.2\n#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT")
+	for i := 0; i <= 1_000_000; i++ {
+		hb.WriteString("\ts")
+		hb.WriteString(strconv.Itoa(i))
+	}
+	hb.WriteString("\n")
+	if err := os.WriteFile(many, hb.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, stderr := badRun(t, "scan", many, "-o", filepath.Join(dir, "out_many"), "--no-progress")
+	if want := "many_samples.vcf:2: #CHROM: limit exceeded: 1000001 samples, more than the limit of 1000000; raise --max-samples"; code != 2 || !strings.Contains(stderr, want) {
+		t.Errorf("code %d, stderr %s; want 2 and %q", code, stderr, want)
+	}
 
 	for _, in := range []string{line, bgzfBomb, gzBomb} {
 		t.Run(filepath.Base(in), func(t *testing.T) {
