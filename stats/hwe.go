@@ -125,22 +125,35 @@ func HWEExact(nAA, nAB, nBB int64) HWEResult {
 			}
 		}
 	}
+	// negligible reports whether no later term of a walk can change any
+	// sum: the walk is past the mode (the distribution is log-concave, so
+	// terms only shrink from there), every sum already holds a term of 1
+	// (the mode's or the observed outcome's, relative to its reference),
+	// and both exponentials of this term are below 2^-54 (e^-38 < 2^-54),
+	// less than half an ulp of a sum >= 1, so adding them or any smaller
+	// term rounds back to the same sum. Stopping there gives bit-for-bit
+	// the sums of the walk to the tailCut floor.
+	negligible := func(l, prev float64) bool {
+		return l < prev && l < -38 && l-logObs < -38 && sTwo >= 1 && sLow >= 1 && sHigh >= 1
+	}
 	// Pass 2: walk down and up from mid, accumulating.
 	l := 0.0
 	for h := mid; h >= nRare%2; h -= 2 {
+		prev := l
 		if h != mid {
 			l -= logUp(h)
 		}
 		add(h, l)
-		if h <= obs && l < floor {
+		if h <= obs && l < floor || negligible(l, prev) {
 			break
 		}
 	}
 	l = 0
 	for h := mid + 2; h <= nRare; h += 2 {
+		prev := l
 		l += logUp(h - 2)
 		add(h, l)
-		if h >= obs && l < floor {
+		if h >= obs && l < floor || negligible(l, prev) {
 			break
 		}
 	}

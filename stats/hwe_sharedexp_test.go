@@ -9,8 +9,9 @@ import (
 // TestHWEExactSharedExp checks that HWEExact, which shares exponentials
 // between its sums, returns bit-for-bit the results of the plain
 // formulation with one exponential per sum (hweExactFourExp, the earlier
-// implementation kept here as the reference) over every count triple with
-// n <= 40 and random triples up to n = 5000.
+// implementation kept here as the reference, which walks every outcome to
+// the tailCut floor) over every count triple with n <= 40 and random
+// triples up to n = 20,500.
 func TestHWEExactSharedExp(t *testing.T) {
 	check := func(a, h, b int64) {
 		got, want := HWEExact(a, h, b), hweExactFourExp(a, h, b)
@@ -38,6 +39,17 @@ func TestHWEExactSharedExp(t *testing.T) {
 		a = int64(float64(n)*(1-q)*(1-q)) + rng.Int64N(5)
 		h = int64(float64(n)*2*q*(1-q)) + rng.Int64N(5)
 		if a+h <= n {
+			check(a, h, n-a-h)
+		}
+	}
+	// Large cohorts near Hardy-Weinberg proportions, where the walks stop
+	// early on negligible terms.
+	for i := 0; i < 3000; i++ {
+		n := 500 + rng.Int64N(20000)
+		q := rng.Float64()
+		a := int64(float64(n)*(1-q)*(1-q)) + rng.Int64N(41) - 20
+		h := int64(float64(n)*2*q*(1-q)) + rng.Int64N(41) - 20
+		if a >= 0 && h >= 0 && a+h <= n {
 			check(a, h, n-a-h)
 		}
 	}
