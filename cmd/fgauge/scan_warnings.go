@@ -13,8 +13,8 @@ import (
 // reading, in the same form as the reader's warnings, so that run.json
 // counts them and stderr prints each once: no site kept, samples without
 // any diploid call, samples below --min-call-rate, and an F_ROH
-// denominator taken from the span of the sites because contigs have no
-// length in the header.
+// denominator taken from the span of the sites (an autosome without a
+// header length, or no autosome at all).
 func scanWarnings(totals *stats.Totals, kept int64, rres *roh.Result) []vcfscan.Warning {
 	var ws []vcfscan.Warning
 	if kept == 0 {
@@ -60,7 +60,7 @@ func scanWarnings(totals *stats.Totals, kept int64, rres *roh.Result) []vcfscan.
 	if rres != nil {
 		if s := rres.Summary(); s["covered_source"] == "site_span" {
 			ws = append(ws, vcfscan.Warning{Kind: "f_roh_denominator_from_site_span", Count: 1,
-				Example: "contigs lack lengths in the header, so F_ROH divides by the span from first to last site; add ##contig lines with length= for the usual denominator"})
+				Example: "F_ROH divides by the span from first to last site, because an autosome with sites has no length in the header or no contig counts as an autosome; add ##contig lines with length=, and name the autosomes with --autosomes or --species when they are not numbered"})
 		}
 	}
 	return ws
