@@ -95,7 +95,7 @@ func runScan(ctx context.Context, env *runEnv, args []string) error {
 	fs.StringVar(&o.pedigree, "pedigree", "", "pedigree TSV (id sire dam); adds f_pedigree to samples.tsv")
 	fs.BoolVar(&o.noProgress, "no-progress", false, "never draw the progress bar")
 	fs.StringVar(&o.cpuProfile, "cpu-profile", "", "write a Go CPU profile of the run to this file (for developers)")
-	fs.IntVar(&o.read.Limits.MaxLineBytes, "max-line-bytes", vcfscan.DefaultMaxLineBytes, "refuse text lines longer than this")
+	fs.IntVar(&o.read.Limits.MaxLineBytes, "max-line-bytes", vcfscan.DefaultMaxLineBytes, "refuse text lines, headers and BCF records longer than this")
 	fs.IntVar(&o.read.Limits.MaxSamples, "max-samples", vcfscan.DefaultMaxSamples, "refuse inputs with more samples than this (each costs about 1.6 kB of memory)")
 	fs.IntVar(&o.read.Limits.MaxAlleles, "max-alleles", 1000, "refuse records with more alleles than this")
 	fs.IntVar(&o.read.Limits.MaxBlockExpand, "max-block-bytes", 1<<20, "refuse compressed blocks that expand beyond this many bytes")
