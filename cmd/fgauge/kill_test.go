@@ -177,3 +177,35 @@ func TestKillChild(t *testing.T) {
 	stop()
 	os.Exit(code)
 }
+
+// TestBadInputStdin feeds malformed input on standard input ("-") to a
+// child process: the message names <stdin> and the line, the exit code is
+// 2 and OUTDIR is left absent.
+func TestBadInputStdin(t *testing.T) {
+	for _, tc := range []struct{ file, msg string }{
+		{"pos_negative.vcf", `fgauge: <stdin>:6: POS: malformed input: expected a non-negative integer position, found "-5"`},
+		{"bgzf_flipped_crc.vcf.gz", "fgauge: <stdin> (virtual offset 6553600): BGZF block: checksum mismatch"},
+		{"bcf_truncated_record.bcf", "fgauge: <stdin>: record 2"},
+	} {
+		t.Run(tc.file, func(t *testing.T) {
+			out := filepath.Join(t.TempDir(), "out")
+			args := []string{"scan", "-", "-o", out, "--no-progress"}
+			cmd := exec.Command(os.Args[0], "-test.run=^TestKillChild$", "-test.count=1")
+			cmd.Env = append(os.Environ(), "FGAUGE_KILL_ARGS="+strings.Join(args, "\n"))
+			in, err := os.Open(filepath.Join(badDir, tc.file))
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer in.Close()
+			var stderr bytes.Buffer
+			cmd.Stdin, cmd.Stdout, cmd.Stderr = in, &stderr, &stderr
+			cmd.Run()
+			if code := cmd.ProcessState.ExitCode(); code != exitBadInput || !strings.Contains(stderr.String(), tc.msg) {
+				t.Errorf("exit %d, stderr:\n%s\nwant %d and %q", code, stderr.String(), exitBadInput, tc.msg)
+			}
+			if left := leftovers(t, out); left != nil {
+				t.Errorf("left %v", left)
+			}
+		})
+	}
+}
