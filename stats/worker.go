@@ -252,8 +252,20 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 	if len(w.tabs) == 1 {
 		tab := &w.tabs[0]
 		if tab.informative {
+			// addCall written out: the compiler does not inline it.
 			for s, g := range calls {
-				accs[s].addCall(g, tab)
+				a := &accs[s]
+				a.Counts[g]++
+				if g > vcfscan.HomAlt {
+					a.addUncalled(tab)
+					continue
+				}
+				a.HetInformative += int64(g & 1)
+				d := &tab.delta[g]
+				a.Sums[0].AddSum(d[0])
+				a.Sums[1].AddSum(d[1])
+				a.Sums[2].AddSum(d[2])
+				a.Sums[3].AddSum(d[3])
 			}
 		} else {
 			for s, g := range calls {
@@ -299,15 +311,20 @@ func countCalls(calls []vcfscan.Geno) [6]int64 {
 // genotypes cost no mispredicted branches.
 func (a *SampleAcc) addCall(g vcfscan.Geno, tab *siteTab) {
 	a.Counts[g]++
-	if g <= vcfscan.HomAlt {
-		a.HetInformative += int64(g & 1)
-		d := &tab.delta[g]
-		a.Sums[0].AddSum(d[0])
-		a.Sums[1].AddSum(d[1])
-		a.Sums[2].AddSum(d[2])
-		a.Sums[3].AddSum(d[3])
+	if g > vcfscan.HomAlt {
+		a.addUncalled(tab)
 		return
 	}
+	a.HetInformative += int64(g & 1)
+	d := &tab.delta[g]
+	a.Sums[0].AddSum(d[0])
+	a.Sums[1].AddSum(d[1])
+	a.Sums[2].AddSum(d[2])
+	a.Sums[3].AddSum(d[3])
+}
+
+// addUncalled is addCall's rare path, apart so that addCall is inlined.
+func (a *SampleAcc) addUncalled(tab *siteTab) {
 	a.Uncalled++
 	for k := range tab.neg0 {
 		a.Sums[k].AddSum(tab.neg0[k])
