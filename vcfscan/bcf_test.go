@@ -389,8 +389,12 @@ func FuzzBCFRecord(f *testing.F) {
 			}
 			return
 		}
-		if kept && (len(b.Records) != 1 || len(b.GT) != b.NSamples || len(b.PL) != 3*b.NSamples) {
-			t.Fatalf("kept record with %d rows, %d calls, %d PL", len(b.Records), len(b.GT), len(b.PL))
+		// PL is filled only for batches whose records carry PL or GL.
+		if kept && (len(b.Records) != 1 || len(b.GT) != b.NSamples || (len(b.PL) != 3*b.NSamples && len(b.PL) != 0) || len(b.PL) != len(br.PL)) {
+			t.Fatalf("kept record with %d rows, %d calls, %d PL (reversed: %d PL)", len(b.Records), len(b.GT), len(b.PL), len(br.PL))
+		}
+		if kept && len(b.PL) == 0 && len(b.HasPL) > 0 && b.HasPL[0] {
+			t.Fatalf("record marked as carrying PL but no PL stored")
 		}
 		if !kept && len(b.Records) != 0 {
 			t.Fatalf("skipped record left a row")
@@ -399,8 +403,11 @@ func FuzzBCFRecord(f *testing.F) {
 		// the likelihood triples, and masks as many calls.
 		n := b.NSamples
 		for j := 0; kept && j < n; j++ {
-			if b.GT[j] != br.GT[n-1-j] || [3]uint16(b.PL[3*j:3*j+3]) != [3]uint16(br.PL[3*(n-1-j):3*(n-j)]) {
-				t.Fatalf("sample %d: %v %v vs reversed %v %v", j, b.GT[j], b.PL[3*j:3*j+3], br.GT[n-1-j], br.PL[3*(n-1-j):3*(n-j)])
+			if b.GT[j] != br.GT[n-1-j] {
+				t.Fatalf("sample %d: %v vs reversed %v", j, b.GT[j], br.GT[n-1-j])
+			}
+			if len(b.PL) > 0 && [3]uint16(b.PL[3*j:3*j+3]) != [3]uint16(br.PL[3*(n-1-j):3*(n-j)]) {
+				t.Fatalf("sample %d: PL %v vs reversed %v", j, b.PL[3*j:3*j+3], br.PL[3*(n-1-j):3*(n-j)])
 			}
 		}
 		if b.Masked != br.Masked {
