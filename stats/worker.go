@@ -23,7 +23,7 @@ const (
 	nVarying = sumHomExpected
 )
 
-// addCall unrolls the genotype-varying sums; these fail to compile if
+// The per-call loops in record unroll the genotype-varying sums; these fail to compile if
 // their number changes.
 var (
 	_ [nVarying - 4]struct{}
@@ -252,7 +252,10 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 	if len(w.tabs) == 1 {
 		tab := &w.tabs[0]
 		if tab.informative {
-			// addCall written out: the compiler does not inline it.
+			// One call at an informative site (see siteTab), written out
+			// here because a method this size is not inlined. Diploid
+			// calls take the same branch-free path (delta[0] is zero) so
+			// random genotypes cost no mispredicted branches.
 			for s, g := range calls {
 				a := &accs[s]
 				a.Counts[g]++
@@ -274,11 +277,23 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 		}
 	} else {
 		for s, g := range calls {
-			if tab := &w.tabs[w.tabOf[s]]; tab.informative {
-				accs[s].addCall(g, tab)
-			} else {
-				accs[s].Counts[g]++
+			a := &accs[s]
+			a.Counts[g]++
+			tab := &w.tabs[w.tabOf[s]]
+			if !tab.informative {
+				continue
 			}
+			// as in the cohort loop above
+			if g > vcfscan.HomAlt {
+				a.addUncalled(tab)
+				continue
+			}
+			a.HetInformative += int64(g & 1)
+			d := &tab.delta[g]
+			a.Sums[0].AddSum(d[0])
+			a.Sums[1].AddSum(d[1])
+			a.Sums[2].AddSum(d[2])
+			a.Sums[3].AddSum(d[3])
 		}
 	}
 	return used
@@ -306,24 +321,8 @@ func countCalls(calls []vcfscan.Geno) [6]int64 {
 	return c0
 }
 
-// addCall adds one call at an informative site (see siteTab). Diploid
-// calls take the same branch-free path (delta[0] is zero) so random
-// genotypes cost no mispredicted branches.
-func (a *SampleAcc) addCall(g vcfscan.Geno, tab *siteTab) {
-	a.Counts[g]++
-	if g > vcfscan.HomAlt {
-		a.addUncalled(tab)
-		return
-	}
-	a.HetInformative += int64(g & 1)
-	d := &tab.delta[g]
-	a.Sums[0].AddSum(d[0])
-	a.Sums[1].AddSum(d[1])
-	a.Sums[2].AddSum(d[2])
-	a.Sums[3].AddSum(d[3])
-}
-
-// addUncalled is addCall's rare path, apart so that addCall is inlined.
+// addUncalled adds a call without a diploid genotype at an informative
+// site (the rare path of the per-call loops in record).
 func (a *SampleAcc) addUncalled(tab *siteTab) {
 	a.Uncalled++
 	for k := range tab.neg0 {
