@@ -1,5 +1,7 @@
 package roh
 
+import "encoding/binary"
+
 // chromData holds what detection needs of one chromosome: per-site
 // positions and allele frequencies, and per-sample genotypes packed 2 bits
 // per call (32 calls per uint64), sample-major so that a worker walks one
@@ -42,22 +44,38 @@ func newChromData(id int, name string, length int64, nSamples int) *chromData {
 	return &chromData{id: id, name: name, length: length, geno: make([][]uint64, nSamples)}
 }
 
-// unpack writes sample s's genotype codes (0..3) into dst.
+// unpack writes sample s's genotype codes (0..3) into dst. Whole words
+// go a byte (four codes) at a time through unpackByte.
 func (ch *chromData) unpack(s int, dst []uint8) {
 	words := ch.geno[s]
 	n := len(dst)
 	for w, v := range words {
 		base := w * 32
-		end := base + 32
-		if end > n {
-			end = n
+		if base+32 <= n {
+			d := dst[base : base+32 : base+32]
+			for k := 0; k < 32; k += 4 {
+				binary.LittleEndian.PutUint32(d[k:k+4:k+4], unpackByte[uint8(v)])
+				v >>= 8
+			}
+			continue
 		}
-		for t := base; t < end; t++ {
+		for t := base; t < n; t++ {
 			dst[t] = uint8(v & 3)
 			v >>= 2
 		}
 	}
 }
+
+// unpackByte[b] holds the four 2-bit codes of b as four bytes, lowest
+// code first (little-endian).
+var unpackByte = func() (t [256]uint32) {
+	for b := range t {
+		for k := 0; k < 4; k++ {
+			t[b] |= uint32(b>>(2*k)&3) << (8 * k)
+		}
+	}
+	return
+}()
 
 // flushStage appends the staged block of calls to each sample's words.
 // Sites already in geno are those of whole earlier blocks, so the staged
