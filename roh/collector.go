@@ -1,6 +1,7 @@
 package roh
 
 import (
+	"bytes"
 	"fmt"
 	"math"
 	"sync"
@@ -477,8 +478,12 @@ func hmmRuns(ch *chromData, s int, code, path []uint8, post []float64, maxGap in
 	t := 0
 	for t < n {
 		if path[t] != stA {
-			t++
-			continue
+			// skip to the next autozygous site (IndexByte is vectorised)
+			k := bytes.IndexByte(path[t:], stA)
+			if k < 0 {
+				break
+			}
+			t += k
 		}
 		u := t
 		for u+1 < n && path[u+1] == stA && ch.pos[u+1]-ch.pos[u] <= maxGap {
