@@ -255,10 +255,16 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 			// One call at an informative site (see siteTab), written out
 			// here because a method this size is not inlined. Diploid
 			// calls take the same branch-free path (delta[0] is zero) so
-			// random genotypes cost no mispredicted branches.
+			// random genotypes cost no mispredicted branches; where at
+			// least 15 calls in 16 are homozygous reference the branch
+			// that skips them (adding zero) is well predicted and cheaper.
+			skipRef := n0 >= int64(len(calls))-int64(len(calls))/16
 			for s, g := range calls {
 				a := &accs[s]
 				a.Counts[g]++
+				if skipRef && g == vcfscan.HomRef {
+					continue
+				}
 				if g > vcfscan.HomAlt {
 					a.addUncalled(tab)
 					continue
