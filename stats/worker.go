@@ -32,24 +32,27 @@ var (
 
 // siteTab is the per-site, per-frequency-group table of contributions,
 // precomputed so that per-sample work is a table look-up and a few
-// 128-bit adds. Every informative site adds its homozygous-reference
-// contribution v0 once to the group's base (GroupBase); a sample then adds
-// only the difference for a heterozygous or homozygous-alternate call
-// (delta, genotype-varying sums only), or subtracts v0 when it has no
-// diploid call. Most calls at most sites are homozygous reference, so the
-// per-call work is small; the totals are the same integers as adding each
-// call's own contribution.
+// 128-bit adds. Every informative site adds the contribution v0 of a base
+// genotype once to the group's base (GroupBase); a sample then adds only
+// the difference for another call (delta, genotype-varying sums only), or
+// subtracts v0 when it has no diploid call. The base genotype is
+// homozygous reference, except at sites where nearly every call is
+// homozygous alternate (one frequency group only), where it is the
+// alternate homozygote. Most calls at most sites are the base genotype, so
+// the per-call work is small; the totals Base + Sums are the same integers
+// as adding each call's own contribution, whichever base is used.
 type siteTab struct {
 	informative bool
-	v0          [nSums]Sum128
+	v0          [nSums]Sum128       // contribution of the base genotype
 	neg0        [nSums]Sum128       // -v0
-	delta       [3][nVarying]Sum128 // v[g] - v0 (delta[0] is zero)
+	delta       [3][nVarying]Sum128 // v[g] - v0 (zero for the base genotype)
 }
 
-// fill computes the table for alternate-allele frequency p; corr is the
-// sample-size factor 2n/(2n-1) applied to the expected heterozygosity of
-// f_hom (1 for external frequencies).
-func (t *siteTab) fill(p, corr float64) {
+// fill computes the table for alternate-allele frequency p and base
+// genotype base (HomRef or HomAlt); corr is the sample-size factor
+// 2n/(2n-1) applied to the expected heterozygosity of f_hom (1 for
+// external frequencies).
+func (t *siteTab) fill(p, corr float64, base vcfscan.Geno) {
 	t.informative = p > 0 && p < 1
 	if !t.informative {
 		return
@@ -63,16 +66,16 @@ func (t *siteTab) fill(p, corr float64) {
 		v[g][sumUniting] = fixed((x*x - (1+2*p)*x + 2*p*p) / d)
 		v[g][sumVRNum] = fixed((x - 2*p) * (x - 2*p))
 	}
-	v[0][sumHomExpected] = fixed(1 - d*corr)
-	v[0][sumVRDen] = fixed(d)
-	t.v0 = v[0]
+	v[base][sumHomExpected] = fixed(1 - d*corr)
+	v[base][sumVRDen] = fixed(d)
+	t.v0 = v[base]
 	for k := range t.v0 {
 		t.neg0[k] = t.v0[k].neg()
 	}
-	for g := 1; g < 3; g++ {
+	for g := 0; g < 3; g++ {
 		for k := 0; k < nVarying; k++ {
 			t.delta[g][k] = v[g][k]
-			t.delta[g][k].SubSum(v[0][k])
+			t.delta[g][k].SubSum(v[base][k])
 		}
 	}
 }
@@ -199,11 +202,20 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 		w.populations(rec, popSites)
 	}
 
-	// Frequencies for the per-sample estimators.
+	// Frequencies for the per-sample estimators. With one frequency
+	// group, calls of a genotype held by at least 15 calls in 16 are
+	// skipped with a well-predicted branch: homozygous reference (whose
+	// delta is zero) or homozygous alternate (made the base genotype).
 	used := cohortP
+	base, skipG := vcfscan.HomRef, vcfscan.Geno(255)
+	if few := int64(len(calls)) - int64(len(calls))/16; n0 >= few {
+		skipG = vcfscan.HomRef
+	} else if n2 >= few {
+		base, skipG = vcfscan.HomAlt, vcfscan.HomAlt
+	}
 	switch cfg.Freqs {
 	case FreqCohort:
-		w.tabs[0].fill(cohortP, nCorr(nCalled))
+		w.tabs[0].fill(cohortP, nCorr(nCalled), base)
 	case FreqPopulation:
 		for k := 0; k < w.nPop; k++ {
 			c := &w.popCnt[k]
@@ -212,16 +224,16 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 			if nk > 0 {
 				pk = float64(c[1]+2*c[2]) / float64(2*nk)
 			}
-			w.tabs[k].fill(pk, nCorr(nk))
+			w.tabs[k].fill(pk, nCorr(nk), vcfscan.HomRef)
 		}
-		w.tabs[w.nPop].fill(cohortP, nCorr(nCalled))
+		w.tabs[w.nPop].fill(cohortP, nCorr(nCalled), vcfscan.HomRef)
 	case FreqInfo:
 		used = rec.InfoValue
 		if !(used >= 0 && used <= 1) { // absent, NaN or not a frequency
 			used = nan
 			t.Freq.InfoMissing++
 		}
-		w.tabs[0].fill(used, 1)
+		w.tabs[0].fill(used, 1, base)
 	case FreqPanel:
 		p, idx, m := cfg.Panel.lookup(w.chromName, rec.Pos, upper(first(rec.Ref)), upper(first(rec.Alt)))
 		switch m {
@@ -235,7 +247,7 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 			used = nan
 			t.Freq.PanelMismatch++
 		}
-		w.tabs[0].fill(used, 1)
+		w.tabs[0].fill(used, 1, base)
 	}
 
 	// Per-sample accumulation.
@@ -254,15 +266,16 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 		if tab.informative {
 			// One call at an informative site (see siteTab), written out
 			// here because a method this size is not inlined. Diploid
-			// calls take the same branch-free path (delta[0] is zero) so
+			// calls take the same branch-free path (the base genotype's
+			// delta is zero) so
 			// random genotypes cost no mispredicted branches; where at
-			// least 15 calls in 16 are homozygous reference the branch
-			// that skips them (adding zero) is well predicted and cheaper.
-			skipRef := n0 >= int64(len(calls))-int64(len(calls))/16
+			// least 15 calls in 16 are of one homozygote (skipG, the base
+			// genotype) the branch that skips them (adding zero) is well
+			// predicted and cheaper.
 			for s, g := range calls {
 				a := &accs[s]
 				a.Counts[g]++
-				if skipRef && g == vcfscan.HomRef {
+				if g == skipG {
 					continue
 				}
 				if g > vcfscan.HomAlt {
