@@ -244,9 +244,17 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 	bufPool := sync.Pool{New: func() any { return new(bytes.Buffer) }}
 
 	contigs := newContigTable(hdr.Contigs)
+	// inFlight bounds the batches read but not yet written in order, so a
+	// slow batch cannot make the reorder buffer grow without limit.
+	inFlight := make(chan struct{}, 4*o.threads)
 	g.Go(func() error {
 		defer close(jobs)
 		for {
+			select {
+			case inFlight <- struct{}{}:
+			case <-gctx.Done():
+				return gctx.Err()
+			}
 			b, err := rd.Next()
 			if err == io.EOF {
 				return nil
@@ -323,6 +331,7 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 					bufPool.Put(c.popSites)
 				}
 				rd.Release(b)
+				<-inFlight
 				bar.update()
 			}
 		}
