@@ -154,7 +154,7 @@ func numbered(from, to int, skip ...int) []string {
 // current reference assemblies; the cM/Mb values are genome-wide,
 // sex-averaged approximations recalled from published linkage maps (from
 // memory, rounded: good enough for the transition rate, not for fine
-// mapping). Supply --genetic-map for accurate distances.
+// mapping). Supply --recombination-map for accurate distances.
 func Species(name string) (SpeciesPreset, bool) {
 	switch strings.ToLower(name) {
 	case "human":

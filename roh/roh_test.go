@@ -103,7 +103,7 @@ func TestHMMHandBuilt(t *testing.T) {
 		{"clean", nil, 0, 0},
 		{"one het inside", func(pos int64, g vcfscan.Geno) vcfscan.Geno {
 			if pos == 7_000_000 {
-				return vcfscan.Het
+				return vcfscan.Heterozygous
 			}
 			return g
 		}, 1, 0},
@@ -188,7 +188,7 @@ func TestRulesHandBuilt(t *testing.T) {
 		{"clean", nil, [][2]int64{{5_000_000, 9_990_000}}, []int{-1}},
 		{"one het tolerated", func(pos int64, g vcfscan.Geno) vcfscan.Geno {
 			if pos == 7_000_000 {
-				return vcfscan.Het
+				return vcfscan.Heterozygous
 			}
 			return g
 		}, [][2]int64{{5_000_000, 9_990_000}}, []int{1}},
@@ -201,7 +201,7 @@ func TestRulesHandBuilt(t *testing.T) {
 		// printed sequence).
 		{"two hets split", func(pos int64, g vcfscan.Geno) vcfscan.Geno {
 			if pos == 6_000_000 || pos == 9_000_000 {
-				return vcfscan.Het
+				return vcfscan.Heterozygous
 			}
 			return g
 		}, [][2]int64{{6_010_000, 10_020_000}}, []int{1}},
@@ -266,7 +266,7 @@ func randomCohort(seed uint64, nSamples int) ([]vcfscan.Contig, []site) {
 					gt[s] = vcfscan.Missing
 				}
 				if rng.IntN(1000) == 0 {
-					gt[s] = vcfscan.Het
+					gt[s] = vcfscan.Heterozygous
 				}
 			}
 			sites = append(sites, site{c, pos, p, gt})

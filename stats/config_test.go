@@ -100,7 +100,7 @@ func TestPanelFrequencies(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	calls := [][]vcfscan.Geno{{vcfscan.HomRef}, {vcfscan.HomAlt}, {vcfscan.Het}} // at 1000, 2000, 3000
+	calls := [][]vcfscan.Geno{{vcfscan.HomRef}, {vcfscan.HomAlt}, {vcfscan.Heterozygous}} // at 1000, 2000, 3000
 	cfg := &Config{Samples: []string{"goat_1"}, Freqs: FreqPanel, Panel: panel, MinCallRate: 0.9}
 	tot, cols := runCalls(t, cfg, calls, nil)
 	if cols["sites_informative"][0] != 2 || math.Abs(cols["f_uniting_gametes"][0]-1) > 1e-9 {

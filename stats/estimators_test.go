@@ -51,11 +51,11 @@ func TestEstimatorsHand(t *testing.T) {
 	hom := make([][]vcfscan.Geno, 0, n+2)
 	info := []float64{}
 	for i := 0; i < n; i++ {
-		hom = append(hom, []vcfscan.Geno{vcfscan.Geno(2 * (i % 2)), vcfscan.Het})
+		hom = append(hom, []vcfscan.Geno{vcfscan.Geno(2 * (i % 2)), vcfscan.Heterozygous})
 		info = append(info, 0.5)
 	}
 	// Two monomorphic sites (p = 0, and no frequency) must be ignored.
-	hom = append(hom, []vcfscan.Geno{vcfscan.HomRef, vcfscan.Het}, []vcfscan.Geno{vcfscan.HomAlt, vcfscan.HomRef})
+	hom = append(hom, []vcfscan.Geno{vcfscan.HomRef, vcfscan.Heterozygous}, []vcfscan.Geno{vcfscan.HomAlt, vcfscan.HomRef})
 	info = append(info, 0, math.NaN())
 	cfg := &Config{Samples: []string{"calf_hom", "calf_het"}, Freqs: FreqInfo, MinCallRate: 0.9}
 	_, cols := runCalls(t, cfg, hom, info)
@@ -87,7 +87,7 @@ func TestEstimatorsHand(t *testing.T) {
 	//   f_uniting = (1-3/2+1/8)/(3/8) = -1; VanRaden -1/3; f_hom = -1.
 	var ab [][]vcfscan.Geno
 	for i := 0; i < n; i++ {
-		ab = append(ab, []vcfscan.Geno{vcfscan.HomRef, vcfscan.Het})
+		ab = append(ab, []vcfscan.Geno{vcfscan.HomRef, vcfscan.Heterozygous})
 	}
 	cfg = &Config{Samples: []string{"calf_a", "calf_b"}, MinCallRate: 0.9}
 	_, cols = runCalls(t, cfg, ab, nil)
@@ -238,10 +238,10 @@ func TestSnpStatsRowSummary(t *testing.T) {
 func TestFlags(t *testing.T) {
 	// calf_low is called at 1 of 4 sites (low_call_rate); others full.
 	calls := [][]vcfscan.Geno{
-		{vcfscan.HomRef, vcfscan.Het, vcfscan.HomRef},
-		{vcfscan.Missing, vcfscan.Het, vcfscan.HomAlt},
-		{vcfscan.Missing, vcfscan.HomRef, vcfscan.Het},
-		{vcfscan.Missing, vcfscan.HomAlt, vcfscan.Het},
+		{vcfscan.HomRef, vcfscan.Heterozygous, vcfscan.HomRef},
+		{vcfscan.Missing, vcfscan.Heterozygous, vcfscan.HomAlt},
+		{vcfscan.Missing, vcfscan.HomRef, vcfscan.Heterozygous},
+		{vcfscan.Missing, vcfscan.HomAlt, vcfscan.Heterozygous},
 	}
 	tot, _ := runCalls(t, &Config{Samples: []string{"calf_low", "calf_b", "calf_c"}, MinCallRate: 0.9}, calls, nil)
 	_, rows := tot.SampleTable()
@@ -262,7 +262,7 @@ func TestPopulationFrequencies(t *testing.T) {
 	const n = 10
 	var calls [][]vcfscan.Geno
 	for i := 0; i < n; i++ {
-		calls = append(calls, []vcfscan.Geno{vcfscan.HomRef, vcfscan.HomRef, vcfscan.HomAlt, vcfscan.HomAlt, vcfscan.Het})
+		calls = append(calls, []vcfscan.Geno{vcfscan.HomRef, vcfscan.HomRef, vcfscan.HomAlt, vcfscan.HomAlt, vcfscan.Heterozygous})
 	}
 	cfg := &Config{Samples: []string{"a1", "a2", "b1", "b2", "stray"}, PopOf: []int{0, 0, 1, 1, -1},
 		PopNames: []string{"herd_a", "herd_b"}, Freqs: FreqPopulation, MinCallRate: 0.9}
@@ -287,8 +287,8 @@ func TestPopulationFrequencies(t *testing.T) {
 // diploid statistics and of the estimators.
 func TestHaploidCalls(t *testing.T) {
 	calls := [][]vcfscan.Geno{
-		{vcfscan.HomRef, vcfscan.Het, vcfscan.HaploidAlt},
-		{vcfscan.HomAlt, vcfscan.Het, vcfscan.HaploidRef},
+		{vcfscan.HomRef, vcfscan.Heterozygous, vcfscan.HaploidAlt},
+		{vcfscan.HomAlt, vcfscan.Heterozygous, vcfscan.HaploidRef},
 	}
 	cfg := &Config{Samples: []string{"bull", "cow_1", "cow_2"}, MinCallRate: 0.9}
 	w := NewWorker(cfg, func(int) string { return "X" })

@@ -14,9 +14,9 @@ import (
 func exampleBatch() *vcfscan.Batch {
 	b := &vcfscan.Batch{NSamples: 3}
 	gts := [][]vcfscan.Geno{
-		{vcfscan.HomRef, vcfscan.Het, vcfscan.HomAlt},
-		{vcfscan.HomRef, vcfscan.HomRef, vcfscan.Het},
-		{vcfscan.Het, vcfscan.Missing, vcfscan.HomAlt},
+		{vcfscan.HomRef, vcfscan.Heterozygous, vcfscan.HomAlt},
+		{vcfscan.HomRef, vcfscan.HomRef, vcfscan.Heterozygous},
+		{vcfscan.Heterozygous, vcfscan.Missing, vcfscan.HomAlt},
 	}
 	for i, g := range gts {
 		b.Records = append(b.Records, vcfscan.Record{Pos: int64(100 * (i + 1)), Ref: []byte("A"), Alt: []byte("G"), InfoValue: vcfscan.NaN})

@@ -170,7 +170,7 @@ func (t *Totals) HasPopulations() bool { return t.PopOf != nil }
 // estimators' allele frequencies came from, with the counts of sites
 // without one).
 func (t *Totals) Summary() map[string]any {
-	h := &t.HWE
+	h := &t.HWETally
 	fr := map[string]any{"source": t.Freqs.String()}
 	switch t.Freqs {
 	case FreqInfo:
@@ -248,7 +248,7 @@ func popcount(x uint64) int {
 // statistics: median / 0.4549364 (common practice), with the median read
 // from a histogram of 1000 bins per decade (bin centre; within 0.12%).
 func (t *Totals) lambda() float64 {
-	h := t.HWE.ChiHist
+	h := t.HWETally.ChiHist
 	var n int64
 	keys := make([]int32, 0, len(h))
 	for k, v := range h {
@@ -278,7 +278,7 @@ func (t *Totals) lambda() float64 {
 // values are bin centres of a 0.01-wide histogram of -log10 p, capped at
 // 330 (p = 0 and p < 1e-330).
 func (t *Totals) qq(npts int) [][2]float64 {
-	h := t.HWE.PHist
+	h := t.HWETally.PHist
 	var n int64
 	keys := make([]int32, 0, len(h))
 	for k, v := range h {

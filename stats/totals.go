@@ -133,7 +133,7 @@ type Totals struct {
 	Base      []GroupBase // per frequency group
 	Groups    []GroupAcc  // per population, then the pooled sample
 	Blocks    map[BlockKey]*BlockAcc
-	HWE       HWESummary
+	HWETally  HWESummary
 	Freq      FreqCounts
 }
 
@@ -144,7 +144,7 @@ func newTotals(cfg *Config) *Totals {
 		MinCallRate: cfg.MinCallRate,
 		PerSample:   make([]SampleAcc, len(cfg.Samples)),
 		Blocks:      map[BlockKey]*BlockAcc{},
-		HWE:         HWESummary{ChiHist: map[int32]int64{}, PHist: map[int32]int64{}},
+		HWETally:    HWESummary{ChiHist: map[int32]int64{}, PHist: map[int32]int64{}},
 	}
 	if t.HWEMethod == "" {
 		t.HWEMethod = "exact"
@@ -228,7 +228,7 @@ func (t *Totals) Merge(o *Totals) error {
 			tb.Pairs[j].merge(&ob.Pairs[j])
 		}
 	}
-	h, oh := &t.HWE, &o.HWE
+	h, oh := &t.HWETally, &o.HWETally
 	h.Tested += oh.Tested
 	for k := range h.Below {
 		h.Below[k] += oh.Below[k]

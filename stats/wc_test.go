@@ -13,11 +13,11 @@ import (
 
 func TestWeirCockerhamLimits(t *testing.T) {
 	for _, tc := range []struct {
-		name        string
-		n, alt, het []int64
-		theta, fIS  float64 // want (NaN: don't check)
-		tol         float64
-		ok          bool
+		name         string
+		n, alt, nHet []int64
+		theta, fIS   float64 // want (NaN: don't check)
+		tol          float64
+		ok           bool
 	}{
 		// Fixed for different alleles: p = 0 and 1, no heterozygotes:
 		// s^2 = 1/2, pbar(1-pbar) = 1/4, a = 1/2, b = c = 0, theta = 1
@@ -32,7 +32,7 @@ func TestWeirCockerhamLimits(t *testing.T) {
 		{"one_population", []int64{30, 0}, []int64{10, 0}, []int64{5, 0}, math.NaN(), math.NaN(), 0, false},
 		{"monomorphic", []int64{30, 20}, []int64{0, 0}, []int64{0, 0}, math.NaN(), math.NaN(), 0, false},
 	} {
-		a, b, c, ok := WeirCockerham(tc.n, tc.alt, tc.het)
+		a, b, c, ok := WeirCockerham(tc.n, tc.alt, tc.nHet)
 		if ok != tc.ok {
 			t.Errorf("%s: ok %v", tc.name, ok)
 			continue

@@ -179,7 +179,7 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 	} else {
 		cnt = countCalls(calls)
 	}
-	n0, n1, n2 := cnt[vcfscan.HomRef], cnt[vcfscan.Het], cnt[vcfscan.HomAlt]
+	n0, n1, n2 := cnt[vcfscan.HomRef], cnt[vcfscan.Heterozygous], cnt[vcfscan.HomAlt]
 	nCalled := n0 + n1 + n2
 	cohortP := nan
 	if nCalled > 0 {
@@ -189,11 +189,11 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 	// Site statistics and row.
 	ho, he, fsite, hwe := siteStats(n0, n1, n2, w.cache)
 	if hwe.Computed {
-		t.HWE.add(&hwe)
+		t.HWETally.add(&hwe)
 	}
 	if !math.IsNaN(fsite) {
-		t.HWE.FSite.Add(fsite)
-		t.HWE.FSiteN++
+		t.HWETally.FSite.Add(fsite)
+		t.HWETally.FSiteN++
 	}
 	w.siteRow(sites, rec, &cnt, len(calls), cohortP, ho, he, fsite, &hwe)
 
@@ -473,7 +473,7 @@ func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64
 	b = append(b, rec.Ref...)
 	b = append(b, '\t')
 	b = append(b, rec.Alt...)
-	for _, g := range [...]vcfscan.Geno{vcfscan.HomRef, vcfscan.Het, vcfscan.HomAlt, vcfscan.Missing} {
+	for _, g := range [...]vcfscan.Geno{vcfscan.HomRef, vcfscan.Heterozygous, vcfscan.HomAlt, vcfscan.Missing} {
 		b = append(b, '\t')
 		b = strconv.AppendInt(b, cnt[g], 10)
 	}

@@ -199,7 +199,7 @@ func TestBCFDecodeHandMade(t *testing.T) {
 	}{
 		{name: "diploid phased and unphased",
 			rec:  bcfRec{alleles: []string{"A", "G"}, fmt: [][]byte{gt(2, 4, 4, 5, 3, 5)}, nSample: 3},
-			kept: true, gt: []Geno{Het, HomAlt, Het}, filter: "."},
+			kept: true, gt: []Geno{Heterozygous, HomAlt, Heterozygous}, filter: "."},
 		{name: "missing alleles and haploid",
 			rec:  bcfRec{alleles: []string{"A", "G"}, fmt: [][]byte{gt(0, 0, 2, 0, 4, 0x81)}, nSample: 3},
 			kept: true, gt: []Geno{Missing, Missing, HaploidAlt}, filter: "."},
@@ -227,14 +227,14 @@ func TestBCFDecodeHandMade(t *testing.T) {
 		{name: "no GT", rec: bcfRec{alleles: []string{"A", "C"}, fmt: [][]byte{gq(1, 2, 3)}, nSample: 3}, reason: SkipNoGT},
 		{name: "GQ masking", opt: Options{MinGQ: 20},
 			rec:  bcfRec{alleles: []string{"a", "c"}, fmt: [][]byte{gt(2, 4, 2, 4, 0, 0), gq(19, 0x80, 5)}, nSample: 3},
-			kept: true, gt: []Geno{Missing, Het, Missing}, filter: "."},
+			kept: true, gt: []Geno{Missing, Heterozygous, Missing}, filter: "."},
 		{name: "PL and AF", opt: Options{WantPL: true, InfoKey: "AF"},
 			rec:  bcfRec{alleles: []string{"A", "G"}, info: [][]byte{af}, fmt: [][]byte{gt(2, 4, 2, 4, 2, 4), pl16}, nSample: 3},
-			kept: true, gt: []Geno{Het, Het, Het}, pl: []uint16{0, 10, 1000, 5, 65535, 0, 0, 0, 0}, info: 0.25, filter: "."},
+			kept: true, gt: []Geno{Heterozygous, Heterozygous, Heterozygous}, pl: []uint16{0, 10, 1000, 5, 65535, 0, 0, 0, 0}, info: 0.25, filter: "."},
 		// Found by FuzzBCFRecord: a count of 3 with the null type and no values.
 		{name: "PL of null type", opt: Options{WantPL: true},
 			rec:  bcfRec{alleles: []string{"A", "G"}, fmt: [][]byte{gt(2, 4, 2, 4, 2, 4), {0x11, 6, 3<<4 | bcfTypeNull}}, nSample: 3},
-			kept: true, gt: []Geno{Het, Het, Het}, pl: []uint16{0, 0, 0, 0, 0, 0, 0, 0, 0}, filter: "."},
+			kept: true, gt: []Geno{Heterozygous, Heterozygous, Heterozygous}, pl: []uint16{0, 0, 0, 0, 0, 0, 0, 0, 0}, filter: "."},
 		{name: "wrong sample count", rec: bcfRec{alleles: []string{"A", "G"}, fmt: [][]byte{gt(2, 2)}, nSample: 1}, err: ErrSampleCount},
 		{name: "unknown contig", rec: bcfRec{chrom: 7, alleles: []string{"A", "G"}}, err: ErrMalformed},
 		{name: "position before the contig", rec: bcfRec{pos0: -2, alleles: []string{"A", "G"}}, err: ErrMalformed},
@@ -473,10 +473,10 @@ func TestBCFDecodeEncodings(t *testing.T) {
 		fmt  []byte
 		want []Geno
 	}{
-		{"int16", gt16, []Geno{Het, HomAlt, Missing}},
-		{"int32", gt32, []Geno{Het, HomAlt, Missing}},
-		{"long count", gtLong, []Geno{HomRef, Het, HomAlt}},
-		{"mixed ploidy", gt3, []Geno{Missing, Het, HaploidRef}},
+		{"int16", gt16, []Geno{Heterozygous, HomAlt, Missing}},
+		{"int32", gt32, []Geno{Heterozygous, HomAlt, Missing}},
+		{"long count", gtLong, []Geno{HomRef, Heterozygous, HomAlt}},
+		{"mixed ploidy", gt3, []Geno{Missing, Heterozygous, HaploidRef}},
 	} {
 		d := newBCFDecoder(bcfTestHeader, nil, Options{})
 		st := &batchState{}
@@ -508,7 +508,7 @@ func TestBCFDecodeEncodings(t *testing.T) {
 	if kept, _, err := d.decode(rec.bytes(), 0, b); err != nil || !kept {
 		t.Fatalf("IDX contigs: %v %v", kept, err)
 	}
-	if r := b.Records[0]; r.ChromID != 1 || r.Pos != 100 || b.GT[0] != Het {
+	if r := b.Records[0]; r.ChromID != 1 || r.Pos != 100 || b.GT[0] != Heterozygous {
 		t.Errorf("IDX contigs: chrom %d pos %d GT %v, want 1 100 Het", r.ChromID, r.Pos, b.GT[0])
 	}
 }
@@ -564,7 +564,7 @@ func TestBCFCharDepth(t *testing.T) {
 	if err != nil || !kept {
 		t.Fatal(kept, err)
 	}
-	if want := []Geno{Missing, Het, Het}; fmt.Sprint(b.Calls(0)) != fmt.Sprint(want) || b.Masked != 1 {
+	if want := []Geno{Missing, Heterozygous, Heterozygous}; fmt.Sprint(b.Calls(0)) != fmt.Sprint(want) || b.Masked != 1 {
 		t.Errorf("calls %v masked %d, want %v and 1", b.Calls(0), b.Masked, want)
 	}
 }

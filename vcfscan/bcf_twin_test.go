@@ -236,7 +236,7 @@ func TestBCFCountsMatchReference(t *testing.T) {
 			var n [4]int
 			for _, g := range r.GT {
 				switch g {
-				case HomRef, HomAlt, Het:
+				case HomRef, HomAlt, Heterozygous:
 					n[g]++
 				default:
 					n[3]++
@@ -511,7 +511,7 @@ func TestBCFBatchCap(t *testing.T) {
 		if len(b.GT) > bcfBatchCalls+nSamples {
 			t.Errorf("batch of %d calls", len(b.GT))
 		}
-		if c := b.Calls(len(b.Records) - 1); c[0] != HomRef || c[1] != Het {
+		if c := b.Calls(len(b.Records) - 1); c[0] != HomRef || c[1] != Heterozygous {
 			t.Errorf("calls %v", c[:2])
 		}
 		r.Release(b)

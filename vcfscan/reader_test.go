@@ -38,7 +38,7 @@ func countIndex(g Geno) int {
 	switch g {
 	case HomRef:
 		return 0
-	case Het:
+	case Heterozygous:
 		return 1
 	case HomAlt:
 		return 2

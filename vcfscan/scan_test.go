@@ -171,17 +171,17 @@ func TestGenotypeDecoding(t *testing.T) {
 		want  []Geno
 		flags string
 	}{
-		{"unphased", "1\t10\t.\tA\tG\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1", []Geno{HomRef, Het, HomAlt}, ""},
-		{"phased", "1\t10\t.\tA\tG\t.\t.\t.\tGT\t1|0\t0|1\t1|1", []Geno{Het, Het, HomAlt}, ""},
+		{"unphased", "1\t10\t.\tA\tG\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1", []Geno{HomRef, Heterozygous, HomAlt}, ""},
+		{"phased", "1\t10\t.\tA\tG\t.\t.\t.\tGT\t1|0\t0|1\t1|1", []Geno{Heterozygous, Heterozygous, HomAlt}, ""},
 		{"missing and half missing", "1\t10\t.\tA\tG\t.\t.\t.\tGT\t./.\t0/.\t.|1", []Geno{Missing, Missing, Missing}, ""},
 		{"haploid", "1\t10\t.\tA\tG\t.\t.\t.\tGT\t0\t1\t.", []Geno{HaploidRef, HaploidAlt, Missing}, "haploid_calls"},
-		{"other keys after GT", "1\t10\t.\tA\tG\t.\t.\t.\tGT:DP\t0/1:3\t1/1:.\t./.:0", []Geno{Het, HomAlt, Missing}, ""},
-		{"GT not first", "1\t10\t.\tA\tG\t.\t.\t.\tDP:GT\t3:0/1\t4:1|1\t5:0/0", []Geno{Het, HomAlt, HomRef}, ""},
+		{"other keys after GT", "1\t10\t.\tA\tG\t.\t.\t.\tGT:DP\t0/1:3\t1/1:.\t./.:0", []Geno{Heterozygous, HomAlt, Missing}, ""},
+		{"GT not first", "1\t10\t.\tA\tG\t.\t.\t.\tDP:GT\t3:0/1\t4:1|1\t5:0/0", []Geno{Heterozygous, HomAlt, HomRef}, ""},
 		{"dropped trailing fields", "1\t10\t.\tA\tG\t.\t.\t.\tDP:GT\t3\t4:1|1\t.", []Geno{Missing, HomAlt, Missing}, ""},
-		{"triploid", "1\t10\t.\tA\tG\t.\t.\t.\tGT\t0/0/1\t0/1\t1/1", []Geno{Missing, Het, HomAlt}, "polyploid_calls_as_missing"},
-		{"VCF 4.4 leading phase", "1\t10\t.\tA\tG\t.\t.\t.\tGT\t|0|1\t/1/1\t0/0", []Geno{Het, HomAlt, HomRef}, ""},
-		{"lower case bases", "1\t10\t.\ta\tg\t.\t.\t.\tGT\t0/0\t0/1\t1/1", []Geno{HomRef, Het, HomAlt}, ""},
-		{"CRLF", "1\t10\t.\tA\tG\t.\t.\t.\tGT\t0/0\t0/1\t1/1\r", []Geno{HomRef, Het, HomAlt}, ""},
+		{"triploid", "1\t10\t.\tA\tG\t.\t.\t.\tGT\t0/0/1\t0/1\t1/1", []Geno{Missing, Heterozygous, HomAlt}, "polyploid_calls_as_missing"},
+		{"VCF 4.4 leading phase", "1\t10\t.\tA\tG\t.\t.\t.\tGT\t|0|1\t/1/1\t0/0", []Geno{Heterozygous, HomAlt, HomRef}, ""},
+		{"lower case bases", "1\t10\t.\ta\tg\t.\t.\t.\tGT\t0/0\t0/1\t1/1", []Geno{HomRef, Heterozygous, HomAlt}, ""},
+		{"CRLF", "1\t10\t.\tA\tG\t.\t.\t.\tGT\t0/0\t0/1\t1/1\r", []Geno{HomRef, Heterozygous, HomAlt}, ""},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -307,10 +307,10 @@ func TestSampleSelection(t *testing.T) {
 		calls   []Geno
 		err     string
 	}{
-		{"all", Options{}, []string{"a", "b", "c"}, []Geno{HomRef, Het, HomAlt}, ""},
+		{"all", Options{}, []string{"a", "b", "c"}, []Geno{HomRef, Heterozygous, HomAlt}, ""},
 		{"subset reordered", Options{Samples: []string{"c", "a"}}, []string{"c", "a"}, []Geno{HomAlt, HomRef}, ""},
 		{"exclude", Options{ExcludeSamples: []string{"b"}}, []string{"a", "c"}, []Geno{HomRef, HomAlt}, ""},
-		{"keep and exclude", Options{Samples: []string{"b", "c"}, ExcludeSamples: []string{"c"}}, []string{"b"}, []Geno{Het}, ""},
+		{"keep and exclude", Options{Samples: []string{"b", "c"}, ExcludeSamples: []string{"c"}}, []string{"b"}, []Geno{Heterozygous}, ""},
 		{"unknown", Options{Samples: []string{"zz"}}, nil, nil, `"zz" is not in the file`},
 		{"unknown excluded", Options{ExcludeSamples: []string{"zz"}}, nil, nil, `"zz" to exclude is not in the file`},
 	}
@@ -354,7 +354,7 @@ func TestMaskingAndLikelihoods(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	wantGT := []Geno{HomRef, Missing, Missing, HomRef, Het, HaploidAlt, HomRef, Het, HomAlt}
+	wantGT := []Geno{HomRef, Missing, Missing, HomRef, Heterozygous, HaploidAlt, HomRef, Heterozygous, HomAlt}
 	if !reflect.DeepEqual(res.gts, wantGT) {
 		t.Errorf("calls %v, want %v", res.gts, wantGT)
 	}

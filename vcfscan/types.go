@@ -9,12 +9,12 @@ type Geno uint8
 
 // Genotype codes stored in Batch.GT.
 const (
-	HomRef     Geno = 0 // 0/0
-	Het        Geno = 1 // 0/1, 1/0, 0|1, 1|0
-	HomAlt     Geno = 2 // 1/1
-	Missing    Geno = 3 // ./., any allele missing, or masked by --min-gq/--min-dp
-	HaploidRef Geno = 4 // 0
-	HaploidAlt Geno = 5 // 1
+	HomRef       Geno = 0 // 0/0
+	Heterozygous Geno = 1 // 0/1, 1/0, 0|1, 1|0
+	HomAlt       Geno = 2 // 1/1
+	Missing      Geno = 3 // ./., any allele missing, or masked by --min-gq/--min-dp
+	HaploidRef   Geno = 4 // 0
+	HaploidAlt   Geno = 5 // 1
 )
 
 // Contig is a sequence named in the header (##contig) or first met in a record.

@@ -90,8 +90,8 @@ const slowGT Geno = 255
 
 // gt3 maps the classes of the two alleles of a diploid call to its code.
 var gt3 = [4][4]Geno{
-	{HomRef, Het, Missing, slowGT},
-	{Het, HomAlt, Missing, slowGT},
+	{HomRef, Heterozygous, Missing, slowGT},
+	{Heterozygous, HomAlt, Missing, slowGT},
 	{Missing, Missing, Missing, slowGT},
 	{slowGT, slowGT, slowGT, slowGT},
 }

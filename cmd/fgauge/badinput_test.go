@@ -142,14 +142,14 @@ var badCases = []badCase{
 	{file: "crlf.vcf", args: []string{"--populations", "@populations_bad.tsv"}, code: 2, msg: []string{"populations_bad.tsv:3: want 2 columns (sample population), got 3"}},
 	{file: "crlf.vcf", args: []string{"--pedigree", "@pedigree_loop.tsv"}, code: 2, msg: []string{"pedigree_loop.tsv:4:", "animal is its own ancestor"}},
 	{file: "crlf.vcf", args: []string{"--regions-file", "@regions_bad.txt"}, code: 2, msg: []string{"regions_bad.txt:2: bad region"}},
-	{file: "crlf.vcf", args: []string{"--genetic-map", "@genetic_map_bad.txt"}, code: 2, msg: []string{"genetic_map_bad.txt:2:", `cM "abc" is not a number`}},
+	{file: "crlf.vcf", args: []string{"--recombination-map", "@genetic_map_bad.txt"}, code: 2, msg: []string{"genetic_map_bad.txt:2:", `cM "abc" is not a number`}},
 	{file: "crlf.vcf", args: []string{"--freqs", "@freqs_bad.tsv"}, code: 2, msg: []string{"freqs_bad.tsv:1:", `alt_freq "1.5" is not a number in [0,1]`}},
 	{file: "crlf.vcf", args: []string{"--samples", "@samples_list.txt"}, code: 2, msg: []string{"crlf.vcf: unknown sample: requested sample \"goat_z\" is not in the file (it has 3 samples); check the spelling"}},
 	{file: "no_such_file.vcf", code: 2, msg: []string{"no_such_file.vcf", "no such file"}},
 	{file: "crlf.vcf", args: []string{"--populations", "@no_such_file.tsv"}, code: 2, msg: []string{"no_such_file.tsv", "no such file"}},
 	{file: "crlf.vcf", args: []string{"--pedigree", "@no_such_file.tsv"}, code: 2, msg: []string{"no_such_file.tsv", "no such file"}},
 	{file: "crlf.vcf", args: []string{"--regions-file", "@no_such_file.txt"}, code: 2, msg: []string{"no_such_file.txt", "no such file"}},
-	{file: "crlf.vcf", args: []string{"--genetic-map", "@no_such_file.txt"}, code: 2, msg: []string{"no_such_file.txt", "no such file"}},
+	{file: "crlf.vcf", args: []string{"--recombination-map", "@no_such_file.txt"}, code: 2, msg: []string{"no_such_file.txt", "no such file"}},
 }
 
 // TestBadInputs runs scan on every corpus file and checks the exit code,

@@ -66,8 +66,8 @@ func addROHFlags(fs *flag.FlagSet) *rohFlags {
 	fs.Float64Var(&f.genoError, "genotype-error", d.GenotypeError,
 		"HMM: probability that a call is wrong; lets a run survive isolated heterozygous calls (0.001 is a typical array/sequence discordance)")
 	fs.Float64Var(&f.cmPerMB, "cm-per-mb", 0,
-		"genetic distance per Mb where no --genetic-map applies (0: the --species value, else 1.0)")
-	fs.StringVar(&f.geneticMap, "genetic-map", "",
+		"genetic distance per Mb where no --recombination-map applies (0: the --species value, else 1.0)")
+	fs.StringVar(&f.geneticMap, "recombination-map", "",
 		"`FILE` of whitespace-separated lines 'chrom pos cM' (plain or gzip); linear interpolation, ends extrapolated by the nearest slope")
 	fs.BoolVar(&f.fit, "fit", false,
 		"HMM: estimate each sample's autozygous fraction and transition rate by EM, per chromosome")
@@ -133,7 +133,7 @@ func (f *rohFlags) config() (*roh.Config, error) {
 	if f.geneticMap != "" {
 		m, err := readMapFile(f.geneticMap)
 		if err != nil {
-			return nil, usagef("--genetic-map: %v", err)
+			return nil, usagef("--recombination-map: %v", err)
 		}
 		c.Map = m
 	}

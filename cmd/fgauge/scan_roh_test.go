@@ -26,8 +26,8 @@ func TestROHFlags(t *testing.T) {
 		{args: []string{"--roh-classes", "1,x"}, wantErr: true},
 		{args: []string{"--roh-method", "magic"}, wantErr: true},
 		{args: []string{"--species", "unicorn"}, wantErr: true},
-		{args: []string{"--genetic-map", filepath.Join(dir, "absent.txt")}, wantErr: true},
-		{args: []string{"--genetic-map", mapFile, "--species", "pig", "--autosomes", "chr1, chr2"}},
+		{args: []string{"--recombination-map", filepath.Join(dir, "absent.txt")}, wantErr: true},
+		{args: []string{"--recombination-map", mapFile, "--species", "pig", "--autosomes", "chr1, chr2"}},
 		{args: []string{"--roh-method", "rules", "--rules-max-het", "0", "--rules-min-sites", "0"}, wantErr: true},
 	}
 	for _, tc := range tests {
@@ -52,7 +52,7 @@ func TestROHFlags(t *testing.T) {
 	// values reach the configuration
 	fs := flag.NewFlagSet("scan", flag.ContinueOnError)
 	f := addROHFlags(fs)
-	fs.Parse([]string{"--genetic-map", mapFile, "--species", "pig", "--autosomes", "chr1, chr2", "--roh-classes", "4,1"})
+	fs.Parse([]string{"--recombination-map", mapFile, "--species", "pig", "--autosomes", "chr1, chr2", "--roh-classes", "4,1"})
 	cfg, err := f.config()
 	if err != nil {
 		t.Fatal(err)

@@ -51,7 +51,7 @@ func runSimulate(ctx context.Context, env *runEnv, args []string) error {
 	fs.Var(&designs, "design", "built-in `DESIGN` to add (see below); repeatable or comma-separated")
 	reps := fs.Int("replicates", 1, "independent copies of the whole pedigree, ids suffixed _r1, _r2, ...")
 	chroms := fs.String("chromosomes", "1:100e6:100,2:80e6:80,3:60e6:60", "chromosomes as `name:length_bp:length_cm,...`")
-	mapFile := fs.String("genetic-map", "", "genetic map `FILE` (chrom pos cM) replacing the linear maps")
+	mapFile := fs.String("recombination-map", "", "genetic map `FILE` (chrom pos cM) replacing the linear maps")
 	spacing := fs.Float64("site-spacing", 30000, "mean distance between sites in `bp` (array-like ~20000-50000, sequence-like ~1000)")
 	spectrum := fs.String("spectrum", "u_shaped", "ancestral allele frequencies: u_shaped (Beta(1/2,1/2), array-like) or neutral (1/x, sequence-like)")
 	minMAF := fs.Float64("min-maf", 0, "drop sites with ancestral-pool minor allele frequency below this")

@@ -258,7 +258,7 @@ var scanFlagsIgnored = map[string]bool{
 // scanFlagsFiles are scan options naming files whose content matters.
 var scanFlagsFiles = map[string]bool{
 	"samples": true, "exclude-samples": true, "populations": true, "freqs": true,
-	"genetic-map": true, "pedigree": true,
+	"recombination-map": true, "pedigree": true,
 }
 
 // optionFingerprint lists every result-changing option of fs as

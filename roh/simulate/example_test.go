@@ -51,7 +51,7 @@ func ExampleResult_ForEachSite() {
 	hets, sites := 0, 0
 	res.ForEachSite(func(s *simulate.Site) error {
 		sites++
-		if s.GT[focal] == vcfscan.Het {
+		if s.GT[focal] == vcfscan.Heterozygous {
 			hets++
 		}
 		return nil

@@ -242,12 +242,12 @@ func TestAutozygousSegmentsAreHomozygous(t *testing.T) {
 			}
 			if in {
 				inside++
-				if g == vcfscan.Het {
+				if g == vcfscan.Heterozygous {
 					hets++
 				}
 			} else {
 				outside++
-				if g == vcfscan.Het {
+				if g == vcfscan.Heterozygous {
 					hetOutside++
 				}
 			}

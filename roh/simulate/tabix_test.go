@@ -73,7 +73,7 @@ print(len(allr), bad, hets)
 	hets := 0
 	res.ForEachSite(func(s *Site) error {
 		for _, g := range s.GT {
-			if g == vcfscan.Het {
+			if g == vcfscan.Heterozygous {
 				hets++
 			}
 		}

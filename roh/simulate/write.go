@@ -36,7 +36,7 @@ func (r *Result) header() []byte {
 
 func ftoa(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 
-var gtText = [...]string{vcfscan.HomRef: "0/0", vcfscan.Het: "0/1", vcfscan.HomAlt: "1/1", vcfscan.Missing: "./."}
+var gtText = [...]string{vcfscan.HomRef: "0/0", vcfscan.Heterozygous: "0/1", vcfscan.HomAlt: "1/1", vcfscan.Missing: "./."}
 
 // appendRecord appends one VCF data line for s.
 func (r *Result) appendRecord(b []byte, s *Site) []byte {

@@ -32,8 +32,8 @@ func fOf(t testing.TB, p *Pedigree, f []float64, id string) float64 {
 // values from memory and re-derived by path counting: F = sum (1/2)^(n+1)).
 func TestInbreedingClassicMatings(t *testing.T) {
 	tests := []struct {
-		name, ped, focal string
-		want             float64
+		name, table, focal string
+		want               float64
 	}{
 		{"full_sib_offspring", "s\t0\t0\nd\t0\t0\nb\ts\td\ns2\ts\td\nx\tb\ts2\n", "x", 0.25},
 		{"half_sib_offspring", "s\t0\t0\nd1\t0\t0\nd2\t0\t0\nb\ts\td1\ng\ts\td2\nx\tb\tg\n", "x", 0.125},
@@ -50,7 +50,7 @@ func TestInbreedingClassicMatings(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			p := mustRead(t, tc.ped)
+			p := mustRead(t, tc.table)
 			f := p.Inbreeding()
 			if got := fOf(t, p, f, tc.focal); math.Abs(got-tc.want) > 1e-12 {
 				t.Errorf("F(%s) = %v, want %v", tc.focal, got, tc.want)

@@ -245,7 +245,7 @@ func corpus(bcfPath string) ([]file, error) {
 	text("pedigree_loop.tsv", "pedigree where goat_a is its own grandparent (--pedigree)",
 		"id\tsire\tdam\ngoat_a\tgoat_b\t0\ngoat_b\tgoat_c\t0\ngoat_c\tgoat_a\t0\n")
 	text("regions_bad.txt", "regions file with start after end on line 2 (--regions-file)", "1\t100\t200\n1\t500\t300\n")
-	text("genetic_map_bad.txt", "genetic map with a non-numeric cM on line 2 (--genetic-map)", "1 1000 0.0\n1 5000 abc\n")
+	text("genetic_map_bad.txt", "genetic map with a non-numeric cM on line 2 (--recombination-map)", "1 1000 0.0\n1 5000 abc\n")
 	text("freqs_bad.tsv", "allele-frequency file with alt_freq 1.5 on line 1 (--freqs)", "1\t1000\tA\tG\t1.5\n")
 	text("samples_list.txt", "sample list naming goat_z, absent from the VCF (--samples)", "goat_a\ngoat_z\n")
 	return fs, nil
