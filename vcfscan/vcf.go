@@ -461,86 +461,17 @@ func (p *vcfParser) parseLine(b *Batch, line []byte, lineNo int64) error {
 		wantPL = has
 	}
 	if p.gtIdx == 0 && !wantPL && p.opt.MinDP <= 0 && p.opt.MinGQ <= 0 {
-		return p.fastSamples(b, gt, samp, lineNo)
+		return p.fastSamples(gt, samp, lineNo)
 	}
 	return p.slowSamples(b, gt, pl, wantPL, samp, lineNo)
 }
 
 // fastSamples decodes sample columns whose first FORMAT key is GT and
-// nothing else is needed: "a/b" fields are decoded by table lookup.
-func (p *vcfParser) fastSamples(b *Batch, gt []Geno, samp []byte, lineNo int64) error {
-	n := len(samp)
-	i := 0
-	dest := p.dest
-	nFile := p.nFile
-	for j := 0; j < nFile; j++ {
-		// Two calls at a time: "a|b\tc|d\t" (or with '/') as one word.
-		if dest == nil {
-			for j+2 <= nFile && i+8 <= n {
-				w := binary.LittleEndian.Uint64(samp[i:])
-				if m := w & pairSepMask; m != pairPhased && m != pairUnphased {
-					break
-				}
-				c0 := gtPair[(w&0xff)|(w>>8)&0xff00]
-				c1 := gtPair[(w>>32)&0xff|(w>>40)&0xff00]
-				if c0 == slowGT || c1 == slowGT {
-					break
-				}
-				gt[j], gt[j+1] = c0, c1
-				i += 8
-				j += 2
-			}
-			if j >= nFile {
-				break
-			}
-		}
-		// Word at a time: "a/b\t" or "a|b\t" with a, b in {0, 1, .}.
-		if i+4 <= n {
-			w := binary.LittleEndian.Uint32(samp[i:])
-			if byte(w>>24) == '\t' && isPhaseSep[byte(w>>8)] {
-				if code := gt3[alleleClass[byte(w)]][alleleClass[byte(w>>16)]]; code != slowGT {
-					if dest == nil {
-						gt[j] = code
-					} else if o := dest[j]; o >= 0 {
-						gt[o] = code
-					}
-					i += 4
-					continue
-				}
-			}
-		}
-		if i > n {
-			return p.errf(lineNo, ErrSampleCount, "samples", "expected %d sample columns as in the #CHROM line, found %d", nFile, j)
-		}
-		end := n
-		if k := bytes.IndexByte(samp[i:], '\t'); k >= 0 {
-			end = i + k
-		}
-		g := samp[i:end]
-		if c := bytes.IndexByte(g, ':'); c >= 0 {
-			g = g[:c]
-		}
-		code := slowGT
-		if len(g) == 3 && isPhaseSep[g[1]] {
-			code = gt3[alleleClass[g[0]]][alleleClass[g[2]]]
-		}
-		if code == slowGT {
-			var err error
-			if code, err = p.parseGT(g, lineNo, j); err != nil {
-				return err
-			}
-		}
-		if dest == nil {
-			gt[j] = code
-		} else if o := dest[j]; o >= 0 {
-			gt[o] = code
-		}
-		i = end + 1
-	}
-	if i <= n {
-		return p.errf(lineNo, ErrSampleCount, "samples", "expected %d sample columns as in the #CHROM line, found %d", nFile, nFile+bytes.Count(samp[i:], []byte{'\t'})+1)
-	}
-	return nil
+// nothing else is needed, with the same word-at-a-time decoder as the
+// one-pass path (samp holds the sample columns of one line).
+func (p *vcfParser) fastSamples(gt []Geno, samp []byte, lineNo int64) error {
+	_, err := p.fusedSamples(gt, samp, lineNo)
+	return err
 }
 
 var isPhaseSep = [256]bool{'/': true, '|': true}
