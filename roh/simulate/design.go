@@ -41,8 +41,17 @@ func ParseDesign(s string) (Design, error) {
 		return d, fmt.Errorf("%w: unknown design %q", ErrConfig, f[0])
 	}
 	nums := []*int{&d.Generations, &d.HerdSize, &d.Sires}
+	// selfing and full_sib take generations; closed_herd takes generations,
+	// herd size and sires; the single matings take no number.
+	switch d.Kind {
+	case "selfing", "full_sib":
+		nums = nums[:1]
+	case "closed_herd":
+	default:
+		nums = nums[:0]
+	}
 	if len(f)-1 > len(nums) {
-		return d, fmt.Errorf("%w: design %q has too many numbers", ErrConfig, s)
+		return d, fmt.Errorf("%w: design %q has too many numbers (%s takes %d)", ErrConfig, s, d.Kind, len(nums))
 	}
 	for i, v := range f[1:] {
 		n, err := strconv.Atoi(v)
