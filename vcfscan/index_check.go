@@ -82,6 +82,9 @@ func checkIndexCounts(raw []byte) error {
 		perBin := int64(8) // bin, n_chunk
 		if csi {
 			perBin = 16 // bin, loffset, n_chunk
+			if raw[3] == 2 {
+				perBin = 24 // version 2 adds a 64-bit record count per bin
+			}
 		}
 		if err := need(nBin*perBin, "bins"); err != nil {
 			return err
