@@ -576,7 +576,7 @@ func (d *bcfDecoder) decode(rec []byte, index int64, b *Batch) (kept bool, reaso
 	pos := int64(pos0) + 1
 	chromID := d.chromMap[chrom]
 	if d.st != nil {
-		d.track(chromID, pos, index)
+		d.st.track(chromID, pos, index)
 	}
 
 	c := bcfCursor{b: shared, p: 24}
@@ -888,22 +888,6 @@ type bcfField struct {
 func (d *bcfDecoder) fail(index int64, field string, sentinel error, format string, args ...any) error {
 	return &ParseError{File: d.name, Offset: d.recordOffset(), Record: index, Field: field,
 		Err: fmt.Errorf("%w: %s", sentinel, fmt.Sprintf(format, args...))}
-}
-
-// track mirrors vcfParser.track: it extends the chromosome blocks of the
-// batch and notes the first position that goes backwards within a block.
-func (d *bcfDecoder) track(id int, pos, index int64) {
-	st := d.st
-	if nb := len(st.blocks); nb > 0 && st.blocks[nb-1].id == id {
-		blk := &st.blocks[nb-1]
-		if pos < blk.lastPos && st.unsorted == nil {
-			st.unsortedV = unsortedAt{line: index, chrom: id, prev: blk.lastPos, pos: pos, prevLineRel: blk.lastLine}
-			st.unsorted = &st.unsortedV
-		}
-		blk.lastPos, blk.lastLine = pos, index
-		return
-	}
-	st.blocks = append(st.blocks, chromBlock{id: id, firstPos: pos, lastPos: pos, firstLine: index, lastLine: index})
 }
 
 // likelihoods fills dst (0/0, 0/1, 1/1) from the PL or GL values of file

@@ -245,7 +245,7 @@ func (p *vcfParser) fastLine(b *Batch, data []byte, lineNo int64) (used int, ok 
 	}
 	b.Read++
 	id := p.chromID(chrom)
-	p.track(id, pos, lineNo)
+	p.st.track(id, pos, lineNo)
 	ri := len(b.Records)
 	b.Records = append(b.Records, Record{
 		ChromID: id, Pos: pos, Ref: ref, Alt: alt, ID: data[tabs[1]+1 : tabs[2]], Filter: filter,
@@ -404,7 +404,7 @@ func (p *vcfParser) parseLine(b *Batch, line []byte, lineNo int64) error {
 	}
 
 	id := p.chromID(chrom)
-	p.track(id, pos, lineNo)
+	p.st.track(id, pos, lineNo)
 
 	reason := SkipReason(-1)
 	switch {
@@ -872,20 +872,20 @@ func (p *vcfParser) chromID(name []byte) int {
 	return -len(st.newChroms)
 }
 
-// track extends the chromosome blocks of the chunk and notes the first
-// position that goes backwards within a block.
-func (p *vcfParser) track(id int, pos, lineNo int64) {
-	st := p.st
+// track extends the chromosome blocks of the batch and notes the first
+// position that goes backwards within a block; at is the line number (VCF)
+// or record index (BCF) of the record.
+func (st *batchState) track(id int, pos, at int64) {
 	if nb := len(st.blocks); nb > 0 && st.blocks[nb-1].id == id {
 		blk := &st.blocks[nb-1]
 		if pos < blk.lastPos && st.unsorted == nil {
-			st.unsortedV = unsortedAt{line: lineNo, chrom: id, prev: blk.lastPos, pos: pos, prevLineRel: blk.lastLine}
+			st.unsortedV = unsortedAt{line: at, chrom: id, prev: blk.lastPos, pos: pos, prevLineRel: blk.lastLine}
 			st.unsorted = &st.unsortedV
 		}
-		blk.lastPos, blk.lastLine = pos, lineNo
+		blk.lastPos, blk.lastLine = pos, at
 		return
 	}
-	st.blocks = append(st.blocks, chromBlock{id: id, firstPos: pos, lastPos: pos, firstLine: lineNo, lastLine: lineNo})
+	st.blocks = append(st.blocks, chromBlock{id: id, firstPos: pos, lastPos: pos, firstLine: at, lastLine: at})
 }
 
 func growGeno(s []Geno, n int) []Geno {
