@@ -1,4 +1,4 @@
-package main
+package shard
 
 // Shard states: what `fgauge scan --state-out FILE` writes so that
 // `fgauge merge` can produce the outputs of one pass over the whole input.
