@@ -1,6 +1,7 @@
 package main
 
 import (
+	"fgauge/cmd/fgauge/internal/badinput"
 	"flag"
 	"fmt"
 	"io"
@@ -23,7 +24,7 @@ func parseInterleaved(fs *flag.FlagSet, args []string) ([]string, error) {
 			if err == flag.ErrHelp {
 				return nil, errHelp
 			}
-			return nil, &usageError{err.Error()}
+			return nil, badinput.Wrap(err)
 		}
 		args = fs.Args()
 		if len(args) == 0 {

@@ -12,6 +12,8 @@ import (
 	"os/signal"
 	"sort"
 	"syscall"
+
+	"fgauge/cmd/fgauge/internal/badinput"
 )
 
 // version is stamped into run.json and shard states.
@@ -127,9 +129,8 @@ Exit codes:
 // errHelp is returned when --help was asked for and printed.
 var errHelp = errors.New("help shown")
 
-// usageError is a mistake in the command line.
-type usageError struct{ msg string }
+// usageError is a mistake in the command line or a bad input file
+// (exit code 2); packages under internal/ report the same type.
+type usageError = badinput.Error
 
-func (e *usageError) Error() string { return e.msg }
-
-func usagef(format string, a ...any) error { return &usageError{fmt.Sprintf(format, a...)} }
+func usagef(format string, a ...any) error { return badinput.Errorf(format, a...) }

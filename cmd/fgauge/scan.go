@@ -1,10 +1,291 @@
 package main
 
 import (
+	"bufio"
+	"context"
 	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"runtime"
+	"runtime/pprof"
+	"strings"
+	"time"
 
+	"github.com/schollz/progressbar/v3"
+	"golang.org/x/term"
+
+	"fgauge/cmd/fgauge/htmlreport"
+	"fgauge/cmd/fgauge/internal/badinput"
+	"fgauge/cmd/fgauge/internal/scanrun"
+	"fgauge/cmd/fgauge/internal/shard"
 	"fgauge/vcfscan"
 )
+
+const scanHelp = `Outputs (see 'fgauge columns' for every column):
+  OUTDIR/sites.tsv.gz              one row per kept site (BGZF, indexable)
+  OUTDIR/sites_by_population.tsv.gz  per site and population (with --populations)
+  OUTDIR/samples.tsv               one row per sample: counts, genomic F, F_ROH
+  OUTDIR/runs.tsv                  one row per run of homozygosity
+  OUTDIR/populations.tsv, populations_pairwise.tsv  (with --populations)
+  OUTDIR/run.json                  what was read, kept, skipped and why
+Files are written to a temporary folder inside OUTDIR and moved into place
+only when the whole run succeeds.
+
+Site policy: biallelic SNPs (REF and ALT one of A, C, G, T) with FILTER PASS
+or "." are kept; every other record is skipped and counted by reason in
+run.json. Calls below --min-gq or --min-dp are set to missing. Haploid calls
+are counted apart (n_haploid) and left out of diploid statistics.
+
+The flags column of samples.tsv ("." when none):
+  no_calls             the sample has no diploid call at any kept site
+  low_call_rate        call_rate below --min-call-rate
+  het_rate_outlier     het_rate more than 3 SD from the cohort mean (possible
+                       contamination, sample mix-up or another population)
+  estimators_disagree  f_hom > 0.1 while f_uniting_gametes < 0, or the
+                       reverse: check frequencies and data quality first
+
+Cautions: genomic F estimates depend on marker density, the allele-frequency
+reference and genotyping quality; they are not a diagnosis. Decisions about
+mating or culling animals follow the breeding programme's rules and local
+regulations; any reading of human consanguinity or its clinical consequences
+belongs to licensed genetic counselling or medical practice.
+`
+
+// scanOptions are the engine, output and pipeline options of fgauge scan.
+type scanOptions struct {
+	input       string
+	out         string
+	force       bool
+	threads     int
+	regions     listFlag
+	regionsFile string
+	report      bool
+	pedigree    string
+	noProgress  bool
+	cpuProfile  string
+	read        vcfscan.Options
+	samplesFile string
+	excludeFile string
+	stats       *statsFlags
+	roh         *rohFlags
+	shard       *shardFlags
+}
+
+func runScan(ctx context.Context, env *runEnv, args []string) error {
+	o := &scanOptions{}
+	fs := newFlagSet(env.stderr, "scan", "scan INPUT.vcf[.gz]|INPUT.bcf|- -o OUTDIR [options]", scanHelp+"\n"+statsHelp+"\n"+rohHelp)
+	fs.StringVar(&o.out, "o", "", "output folder (created if absent)")
+	fs.StringVar(&o.out, "out", "", "same as -o")
+	fs.BoolVar(&o.force, "force", false, "overwrite results already in OUTDIR")
+	fs.IntVar(&o.threads, "threads", runtime.NumCPU(), "worker threads for decompression, parsing and statistics")
+	fs.Var(&o.regions, "region", "restrict to CHROM or CHROM:START-END (1-based, inclusive; repeatable; needs a .tbi or .csi index)")
+	fs.StringVar(&o.regionsFile, "regions-file", "", "file of regions, one 'chrom start end' per line (1-based inclusive; .bed files 0-based half-open)")
+	fs.BoolVar(&o.read.IncludeFiltered, "include-filtered", false, "keep records whatever their FILTER (default keeps PASS and '.')")
+	fs.IntVar(&o.read.MinGQ, "min-gq", 0, "set calls with GQ below this to missing (0: off)")
+	fs.IntVar(&o.read.MinDP, "min-dp", 0, "set calls with DP below this to missing (0: off)")
+	fs.StringVar(&o.samplesFile, "samples", "", "file with the sample names to keep, one per line")
+	fs.StringVar(&o.excludeFile, "exclude-samples", "", "file with sample names to leave out, one per line")
+	fs.BoolVar(&o.report, "report", false, "also write OUTDIR/report.html")
+	fs.StringVar(&o.pedigree, "pedigree", "", "pedigree TSV (id sire dam); adds f_pedigree to samples.tsv")
+	fs.BoolVar(&o.noProgress, "no-progress", false, "never draw the progress bar")
+	fs.StringVar(&o.cpuProfile, "cpu-profile", "", "write a Go CPU profile of the run to this file (for developers)")
+	lim := scanrun.DefaultLimits()
+	fs.IntVar(&o.read.Limits.MaxLineBytes, "max-line-bytes", lim.MaxLineBytes, "refuse text lines, headers and BCF records longer than this")
+	fs.IntVar(&o.read.Limits.MaxSamples, "max-samples", lim.MaxSamples, "refuse inputs with more samples than this (each costs about 1.6 kB of memory)")
+	fs.IntVar(&o.read.Limits.MaxAlleles, "max-alleles", lim.MaxAlleles, "refuse records with more alleles than this")
+	fs.IntVar(&o.read.Limits.MaxBlockExpand, "max-block-bytes", lim.MaxBlockExpand, "refuse compressed blocks that expand beyond this many bytes")
+	o.stats = addStatsFlags(fs)
+	o.roh = addROHFlags(fs)
+	o.shard = addShardFlags(fs)
+	pos, err := parseInterleaved(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) != 1 {
+		return usagef("scan: expected one input file (or - for standard input), got %d", len(pos))
+	}
+	o.input = pos[0]
+	if o.threads < 1 {
+		return usagef("scan: --threads must be at least 1")
+	}
+	if o.cpuProfile != "" {
+		f, err := os.Create(o.cpuProfile)
+		if err != nil {
+			return err
+		}
+		defer f.Close()
+		if err := pprof.StartCPUProfile(f); err != nil {
+			return err
+		}
+		defer pprof.StopCPUProfile()
+	}
+	return scan(ctx, env, o)
+}
+
+// scan turns the options into a scanrun.Config, runs it, and writes the
+// report when asked.
+func scan(ctx context.Context, env *runEnv, o *scanOptions) error {
+	start := time.Now()
+	if err := o.loadSampleLists(); err != nil {
+		return err
+	}
+	for _, r := range o.regions {
+		reg, err := vcfscan.ParseRegion(r)
+		if err != nil {
+			return usagef("--region: %v", err)
+		}
+		o.read.Regions = append(o.read.Regions, reg)
+	}
+	if o.regionsFile != "" {
+		regs, err := vcfscan.ReadRegionsFile(o.regionsFile)
+		if err != nil {
+			return err
+		}
+		o.read.Regions = append(o.read.Regions, regs...)
+	}
+	rohCfg, err := o.roh.config()
+	if err != nil {
+		return err
+	}
+	stats, err := o.stats.settings()
+	if err != nil {
+		return err
+	}
+	cfg := scanrun.Config{
+		Input: o.input, Out: o.out, Force: o.force, Threads: o.threads,
+		Read: o.read, Stats: stats, ROH: rohCfg,
+		StateOut: o.shard.stateOut, SkipIfValidState: o.shard.skipValid,
+		Version: version, CommandLine: env.argv, Stderr: env.stderr,
+		Progress: newProgress(env.stderr, o.noProgress),
+	}
+	if cfg.StateOut != "" && o.report {
+		return usagef("--report needs the tables of a whole run: run 'fgauge report' on the output of 'fgauge merge'")
+	}
+	if cfg.StateOut != "" && o.input != "-" {
+		if cfg.Options, err = shard.OptionFingerprint(o.shard.fs); err != nil {
+			return err
+		}
+	}
+	if o.pedigree != "" {
+		if cfg.Pedigree, err = readPedigreeFile(o.pedigree); err != nil {
+			return err
+		}
+	}
+	res, err := scanrun.Run(ctx, cfg)
+	if err != nil || res.Skipped {
+		return err
+	}
+	if o.report {
+		if err := htmlreport.Write(o.out, htmlreport.Options{}); err != nil {
+			return fmt.Errorf("scan finished, but the report failed: %w", err)
+		}
+	}
+	res.Report(env.stderr, o.out, time.Since(start))
+	return nil
+}
+
+// siteChunk is one processed batch on its way to the ordered writer.
+// loadSampleLists reads --samples and --exclude-samples.
+func (o *scanOptions) loadSampleLists() error {
+	var err error
+	if o.samplesFile != "" {
+		if o.read.Samples, err = readSampleList(o.samplesFile); err != nil {
+			return err
+		}
+	}
+	if o.excludeFile != "" {
+		if o.read.ExcludeSamples, err = readSampleList(o.excludeFile); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// readSampleList reads one name per line (first whitespace-separated field),
+// skipping blank lines and lines starting with '#'.
+func readSampleList(path string) ([]string, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, badinput.Wrap(err)
+	}
+	defer f.Close()
+	var names []string
+	sc := bufio.NewScanner(f)
+	for sc.Scan() {
+		fields := strings.Fields(sc.Text())
+		if len(fields) == 0 || strings.HasPrefix(fields[0], "#") {
+			continue
+		}
+		names = append(names, fields[0])
+	}
+	if err := sc.Err(); err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	return names, nil
+}
+
+// progress draws a bar of compressed bytes read when stderr is a terminal.
+type progress struct {
+	w    io.Writer
+	bar  *progressbar.ProgressBar
+	read func() (done, total int64)
+	last time.Time
+}
+
+// newProgress returns nil (no bar) when off or when w is not a terminal.
+func newProgress(w io.Writer, off bool) scanrun.Progress {
+	f, ok := w.(*os.File)
+	if off || !ok || !term.IsTerminal(int(f.Fd())) {
+		return nil
+	}
+	return &progress{w: w}
+}
+
+func (p *progress) Start(read func() (done, total int64)) {
+	p.read = read
+	_, total := read()
+	if total <= 0 {
+		total = -1
+	}
+	p.bar = progressbar.NewOptions64(total,
+		progressbar.OptionSetWriter(p.w),
+		progressbar.OptionShowBytes(true),
+		progressbar.OptionSetDescription("scanning"),
+		progressbar.OptionThrottle(200*time.Millisecond),
+		progressbar.OptionClearOnFinish(),
+	)
+}
+
+func (p *progress) Update() {
+	if p.bar == nil || time.Since(p.last) < 100*time.Millisecond {
+		return
+	}
+	p.last = time.Now()
+	done, _ := p.read()
+	p.bar.Set64(done)
+}
+
+func (p *progress) Finish() {
+	if p.bar != nil {
+		p.bar.Finish()
+	}
+}
+
+// shardFlags are the scan options of sharded runs.
+type shardFlags struct {
+	stateOut  string
+	skipValid bool
+	fs        *flag.FlagSet // for the fingerprint of the result-changing options
+}
+
+func addShardFlags(fs *flag.FlagSet) *shardFlags {
+	f := &shardFlags{fs: fs}
+	fs.StringVar(&f.stateOut, "state-out", "", "write this shard's mergeable state to `FILE` (for 'fgauge merge'); OUTDIR then gets the shard's site tables and run.json only")
+	fs.BoolVar(&f.skipValid, "skip-if-valid-state", false, "with --state-out: do nothing when FILE already holds an intact state of this same shard (for re-running batch scripts)")
+	return f
+}
 
 // isInputError reports whether err is a problem with the input files
 // rather than a bug.

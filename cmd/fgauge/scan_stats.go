@@ -2,11 +2,11 @@ package main
 
 import (
 	"flag"
-	"fmt"
 	"os"
 
+	"fgauge/cmd/fgauge/internal/badinput"
+	"fgauge/cmd/fgauge/internal/scanrun"
 	"fgauge/stats"
-	"fgauge/vcfscan"
 )
 
 // statsFlags are the scan options of per-site, population and per-sample
@@ -23,8 +23,6 @@ type statsFlags struct {
 	panel *stats.Panel
 	// panelSkipped counts panel lines with alleles longer than one base.
 	panelSkipped int
-	// unlisted are the selected samples absent from --populations.
-	unlisted []string
 }
 
 // statsHelp is appended to the scan help.
@@ -54,10 +52,9 @@ func addStatsFlags(fs *flag.FlagSet) *statsFlags {
 	return f
 }
 
-// prepare checks the options, reads the population and frequency files,
-// and sets what the reader must extract (the INFO key of
-// --freqs-from-info). Call it before opening the input.
-func (f *statsFlags) prepare(read *vcfscan.Options) error {
+// prepare checks the options and reads the population and frequency
+// files.
+func (f *statsFlags) prepare() error {
 	if f.hweMethod != "exact" && f.hweMethod != "chisq" {
 		return usagef("--hwe-method %q: want exact or chisq", f.hweMethod)
 	}
@@ -77,7 +74,7 @@ func (f *statsFlags) prepare(read *vcfscan.Options) error {
 		}
 		defer r.Close()
 		if f.pops, err = stats.ReadPopulations(r, f.populations); err != nil {
-			return &usageError{err.Error()}
+			return badinput.Wrap(err)
 		}
 	}
 	if f.freqs != "" && f.panel == nil {
@@ -87,44 +84,18 @@ func (f *statsFlags) prepare(read *vcfscan.Options) error {
 		}
 		defer r.Close()
 		if f.panel, f.panelSkipped, err = stats.ReadPanel(r, f.freqs); err != nil {
-			return &usageError{err.Error()}
+			return badinput.Wrap(err)
 		}
-	}
-	if f.freqsInfo != "" && read != nil {
-		read.InfoKey = f.freqsInfo
 	}
 	return nil
 }
 
-// config builds the statistics configuration for the selected samples
-// (in the reader's order). It calls prepare(nil) if that was not done.
-func (f *statsFlags) config(samples []string) (*stats.Config, error) {
-	if err := f.prepare(nil); err != nil {
-		return nil, err
+// settings checks the options, reads the population and frequency files
+// (prepare) and returns them for scanrun.
+func (f *statsFlags) settings() (scanrun.StatsSettings, error) {
+	if err := f.prepare(); err != nil {
+		return scanrun.StatsSettings{}, err
 	}
-	c := &stats.Config{
-		Samples:          samples,
-		HWEMethod:        f.hweMethod,
-		Freqs:            stats.FreqCohort,
-		JackknifeBlockBP: int64(f.blockMB*1e6 + 0.5),
-		MinCallRate:      f.minCallRate,
-	}
-	if f.pops != nil {
-		c.PopOf, f.unlisted = f.pops.Assign(samples)
-		c.PopNames = f.pops.Names
-		if len(f.unlisted) == len(samples) {
-			return nil, usagef("--populations %s: none of the %d samples is listed", f.populations, len(samples))
-		}
-		c.Freqs = stats.FreqPopulation
-	}
-	switch {
-	case f.panel != nil:
-		c.Freqs, c.Panel = stats.FreqPanel, f.panel
-	case f.freqsInfo != "":
-		c.Freqs = stats.FreqInfo
-	}
-	if err := c.Validate(); err != nil {
-		return nil, fmt.Errorf("scan: %w", err)
-	}
-	return c, nil
+	return scanrun.StatsSettings{HWEMethod: f.hweMethod, Populations: f.pops, PopulationsFile: f.populations,
+		Panel: f.panel, InfoKey: f.freqsInfo, MinCallRate: f.minCallRate, JackknifeBlockMB: f.blockMB}, nil
 }

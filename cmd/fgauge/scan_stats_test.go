@@ -8,10 +8,11 @@ import (
 	"path/filepath"
 	"testing"
 
-	"fgauge/stats"
-	"fgauge/vcfscan"
+	"fgauge/cmd/fgauge/internal/scanrun"
 )
 
+// TestStatsFlags checks the options-to-settings step; the settings-to-
+// statistics step is tested in scanrun.
 func TestStatsFlags(t *testing.T) {
 	dir := t.TempDir()
 	pops := filepath.Join(dir, "herds.txt")
@@ -22,21 +23,21 @@ func TestStatsFlags(t *testing.T) {
 		name  string
 		args  []string
 		usage bool // want a usage error
-		check func(*testing.T, *stats.Config, *vcfscan.Options, *statsFlags)
+		check func(*testing.T, scanrun.StatsSettings)
 	}{
-		{"defaults", nil, false, func(t *testing.T, c *stats.Config, o *vcfscan.Options, _ *statsFlags) {
-			if c.HWEMethod != "exact" || c.Freqs != stats.FreqCohort || c.MinCallRate != 0.9 || c.JackknifeBlockBP != 5_000_000 || c.PopOf != nil {
-				t.Errorf("%+v", c)
+		{"defaults", nil, false, func(t *testing.T, s scanrun.StatsSettings) {
+			if s.HWEMethod != "exact" || s.MinCallRate != 0.9 || s.JackknifeBlockMB != 5 || s.Populations != nil || s.Panel != nil || s.InfoKey != "" {
+				t.Errorf("%+v", s)
 			}
 		}},
-		{"populations", []string{"--populations", pops, "--jackknife-block-mb", "0.5"}, false, func(t *testing.T, c *stats.Config, o *vcfscan.Options, f *statsFlags) {
-			if c.Freqs != stats.FreqPopulation || len(c.PopNames) != 2 || c.PopOf[2] != -1 || c.JackknifeBlockBP != 500_000 || len(f.unlisted) != 1 {
-				t.Errorf("%+v unlisted %v", c, f.unlisted)
+		{"populations", []string{"--populations", pops, "--jackknife-block-mb", "0.5"}, false, func(t *testing.T, s scanrun.StatsSettings) {
+			if s.Populations == nil || len(s.Populations.Names) != 2 || s.JackknifeBlockMB != 0.5 || s.PopulationsFile != pops {
+				t.Errorf("%+v", s)
 			}
 		}},
-		{"info", []string{"--freqs-from-info", "AF", "--hwe-method", "chisq"}, false, func(t *testing.T, c *stats.Config, o *vcfscan.Options, _ *statsFlags) {
-			if c.Freqs != stats.FreqInfo || o.InfoKey != "AF" || c.HWEMethod != "chisq" {
-				t.Errorf("%+v %+v", c, o)
+		{"info", []string{"--freqs-from-info", "AF", "--hwe-method", "chisq"}, false, func(t *testing.T, s scanrun.StatsSettings) {
+			if s.InfoKey != "AF" || s.HWEMethod != "chisq" {
+				t.Errorf("%+v", s)
 			}
 		}},
 		{"bad_method", []string{"--hwe-method", "fisher"}, true, nil},
@@ -51,12 +52,7 @@ func TestStatsFlags(t *testing.T) {
 			if err := fs.Parse(tc.args); err != nil {
 				t.Fatal(err)
 			}
-			var o vcfscan.Options
-			err := f.prepare(&o)
-			var c *stats.Config
-			if err == nil {
-				c, err = f.config([]string{"cow_1", "cow_2", "cow_3"})
-			}
+			s, err := f.settings()
 			var ue *usageError
 			if tc.usage {
 				if !errors.As(err, &ue) {
@@ -67,7 +63,7 @@ func TestStatsFlags(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			tc.check(t, c, &o, f)
+			tc.check(t, s)
 		})
 	}
 }

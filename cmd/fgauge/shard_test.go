@@ -8,7 +8,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -18,9 +17,9 @@ import (
 	"strings"
 	"testing"
 
-	"fgauge/roh"
+	"fgauge/cmd/fgauge/internal/plan"
+	"fgauge/cmd/fgauge/internal/shard"
 	"fgauge/roh/simulate"
-	"fgauge/stats"
 )
 
 // shardSplit is one way of cutting an input into shards: the --region
@@ -351,6 +350,14 @@ func shardFixture(t *testing.T, dir string, extra ...string) (input string, stat
 	return input, states
 }
 
+// mergeErr merges states into a fresh folder through the shard package
+// and returns the error.
+func mergeErr(t *testing.T, states []string) error {
+	t.Helper()
+	_, err := shard.Merge(context.Background(), shard.MergeConfig{States: states, Out: filepath.Join(t.TempDir(), "m"), Threads: 1, Stderr: io.Discard})
+	return err
+}
+
 func TestMergeRejects(t *testing.T) {
 	dir := t.TempDir()
 	input, states := shardFixture(t, dir)
@@ -387,39 +394,39 @@ func TestMergeRejects(t *testing.T) {
 	otherIn := otherOut + ".state"
 	// States edited to claim another version or sample set (the options
 	// fingerprint would differ first in practice).
-	editState := func(name string, edit func(*shardState)) string {
-		st, err := readStateFile(states[1])
+	editState := func(name string, edit func(*shard.State)) string {
+		st, err := shard.ReadFile(states[1])
 		if err != nil {
 			t.Fatal(err)
 		}
 		edit(st)
-		st.SitesFile, _ = filepath.Abs(siteTablePath(states[1], st.SitesFile))
+		st.SitesFile, _ = filepath.Abs(shard.SiteTablePath(states[1], st.SitesFile))
 		p := filepath.Join(dir, name+".state")
-		if err := writeStateFile(p, st); err != nil {
+		if err := shard.WriteFile(p, st); err != nil {
 			t.Fatal(err)
 		}
 		return p
 	}
-	otherVersion := editState("version", func(s *shardState) { s.Version = "0.0.1" })
-	otherSamples := editState("samples", func(s *shardState) { s.Samples = s.Samples[1:] })
+	otherVersion := editState("version", func(s *shard.State) { s.Version = "0.0.1" })
+	otherSamples := editState("samples", func(s *shard.State) { s.Samples = s.Samples[1:] })
 	for _, tc := range []struct {
 		name   string
 		states []string
 		want   error
 		words  string
 	}{
-		{"options", []string{states[0], otherOpts}, errStateMismatch, "min-call-rate"},
-		{"version", []string{states[0], otherVersion}, errStateMismatch, "versions differ"},
-		{"samples", []string{states[0], otherSamples}, errStateMismatch, "sample sets differ"},
-		{"overlap", []string{states[0], states[1], overlap}, errStateMismatch, "overlap"},
-		{"whole and part", []string{states[0], whole}, errStateMismatch, "whole input"},
-		{"other input", []string{states[0], otherIn}, errStateMismatch, "inputs differ"},
-		{"corrupt", []string{states[0], corrupt}, errStateCorrupt, "checksum"},
-		{"truncated", []string{truncated, states[0]}, errStateCorrupt, "truncated"},
-		{"not a state", []string{states[0], notState}, errStateCorrupt, "header"},
+		{"options", []string{states[0], otherOpts}, shard.ErrMismatch, "min-call-rate"},
+		{"version", []string{states[0], otherVersion}, shard.ErrMismatch, "versions differ"},
+		{"samples", []string{states[0], otherSamples}, shard.ErrMismatch, "sample sets differ"},
+		{"overlap", []string{states[0], states[1], overlap}, shard.ErrMismatch, "overlap"},
+		{"whole and part", []string{states[0], whole}, shard.ErrMismatch, "whole input"},
+		{"other input", []string{states[0], otherIn}, shard.ErrMismatch, "inputs differ"},
+		{"corrupt", []string{states[0], corrupt}, shard.ErrCorrupt, "checksum"},
+		{"truncated", []string{truncated, states[0]}, shard.ErrCorrupt, "truncated"},
+		{"not a state", []string{states[0], notState}, shard.ErrCorrupt, "header"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			_, err := loadStates(tc.states)
+			err := mergeErr(t, tc.states)
 			if !errors.Is(err, tc.want) {
 				t.Fatalf("err = %v, want %v", err, tc.want)
 			}
@@ -443,7 +450,7 @@ func TestMergeRejects(t *testing.T) {
 	edited := filepath.Join(dir, "s2", "sites.tsv.gz")
 	b, _ := os.ReadFile(edited)
 	os.WriteFile(edited, append(b[:len(b):len(b)], 0), 0o644)
-	if _, err := loadStates(states); !errors.Is(err, errStateCorrupt) {
+	if err := mergeErr(t, states); !errors.Is(err, shard.ErrCorrupt) {
 		t.Errorf("edited site table: err = %v", err)
 	}
 	code, out, _ := runCmdline(t, "merge", "--check", states[0], states[1], corrupt)
@@ -482,7 +489,7 @@ func TestSkipIfValidState(t *testing.T) {
 	if e := rerun(); strings.Contains(e, "skipped") || !strings.Contains(e, "again") {
 		t.Errorf("truncated state was skipped: %s", e)
 	}
-	if _, err := readStateFile(states[0]); err != nil {
+	if _, err := shard.ReadFile(states[0]); err != nil {
 		t.Errorf("state not rewritten: %v", err)
 	}
 }
@@ -561,114 +568,6 @@ func TestShardBoundaryRecord(t *testing.T) {
 	}
 }
 
-// benchStates writes n shard states of nSamples samples each: one real
-// state from a scan of an invented cohort (random genotypes, 2,000 sites),
-// copied n times as n different whole chromosomes.
-func benchStates(b *testing.B, dir string, n, nSamples int) []string {
-	b.Helper()
-	var sb strings.Builder
-	sb.WriteString("##fileformat=VCFv4.2\n##contig=<ID=1,length=10000000>\n##FORMAT=<ID=GT,Number=1,Type=String,Description=\"Genotype\">\n")
-	sb.WriteString("#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT")
-	for s := 0; s < nSamples; s++ {
-		fmt.Fprintf(&sb, "\tanimal_%04d", s)
-	}
-	sb.WriteByte('\n')
-	gts := []string{"0/0", "0/1", "1/1", "./."}
-	x := uint64(12345)
-	for site := 0; site < 2000; site++ {
-		fmt.Fprintf(&sb, "1\t%d\t.\tA\tG\t.\tPASS\t.\tGT", 1000+site*4000)
-		for s := 0; s < nSamples; s++ {
-			x ^= x << 13
-			x ^= x >> 7
-			x ^= x << 17
-			g := x % 16
-			switch {
-			case g < 7:
-				g = 0
-			case g < 12:
-				g = 1
-			case g < 15:
-				g = 2
-			default:
-				g = 3
-			}
-			sb.WriteString("\t" + gts[g])
-		}
-		sb.WriteByte('\n')
-	}
-	input := filepath.Join(dir, "cohort.vcf")
-	if err := os.WriteFile(input, []byte(sb.String()), 0o644); err != nil {
-		b.Fatal(err)
-	}
-	var out, errb bytes.Buffer
-	env := &runEnv{stdout: &out, stderr: &errb, argv: []string{"fgauge"}}
-	statePath := filepath.Join(dir, "base.state")
-	if code := run(context.Background(), env, []string{"scan", input, "-o", filepath.Join(dir, "base"), "--state-out", statePath, "--no-progress"}); code != exitOK {
-		b.Fatalf("scan: %s", errb.String())
-	}
-	base, err := readStateFile(statePath)
-	if err != nil {
-		b.Fatal(err)
-	}
-	sites, _ := filepath.Abs(siteTablePath(statePath, base.SitesFile))
-	names := make([]string, n)
-	for i := range names {
-		names[i] = fmt.Sprint(i + 1)
-	}
-	blocks := base.Totals.Blocks
-	chrom := base.ROH.Chroms[0]
-	var paths []string
-	for i := 0; i < n; i++ {
-		st := *base
-		st.WholeFile = false
-		st.Regions = []stateRegion{{Chrom: names[i], Start: 1, End: math.MaxInt64}}
-		st.ContigOrder = names
-		st.SitesFile = sites
-		t := *base.Totals
-		t.Blocks = map[stats.BlockKey]*stats.BlockAcc{}
-		for k, v := range blocks {
-			t.Blocks[stats.BlockKey{Chrom: names[i], Index: k.Index}] = v
-		}
-		st.Totals = &t
-		r := *base.ROH
-		c := chrom
-		c.Name = names[i]
-		r.Chroms = []roh.ChromResult{c}
-		st.ROH = &r
-		p := filepath.Join(dir, fmt.Sprintf("shard_%03d.state", i))
-		if err := writeStateFile(p, &st); err != nil {
-			b.Fatal(err)
-		}
-		paths = append(paths, p)
-	}
-	return paths
-}
-
-// BenchmarkMerge100States merges 100 shard states of 1,000 samples
-// (statistics of 2,000 sites and the runs of one chromosome each; site
-// tables joined). Target: seconds.
-func BenchmarkMerge100States(b *testing.B) {
-	dir := b.TempDir()
-	paths := benchStates(b, dir, 100, 1000)
-	var size int64
-	for _, p := range paths {
-		st, _ := os.Stat(p)
-		size += st.Size()
-	}
-	env := &runEnv{stdout: io.Discard, stderr: io.Discard, argv: []string{"fgauge", "merge"}}
-	b.ResetTimer()
-	for i := 0; i < b.N; i++ {
-		if err := mergeStates(context.Background(), env, paths, filepath.Join(dir, "merged"), true, 2); err != nil {
-			b.Fatal(err)
-		}
-	}
-	b.ReportMetric(float64(size)/float64(len(paths)), "state_bytes")
-}
-
-// TestCompareOutputDirs compares two output folders named by the
-// environment (FGAUGE_COMPARE_SINGLE, FGAUGE_COMPARE_MERGED) as the
-// identity tests do; testdata/slurm/cluster_test.sh uses it. Skipped
-// otherwise.
 func TestCompareOutputDirs(t *testing.T) {
 	a, b := os.Getenv("FGAUGE_COMPARE_SINGLE"), os.Getenv("FGAUGE_COMPARE_MERGED")
 	if a == "" || b == "" {
@@ -677,50 +576,6 @@ func TestCompareOutputDirs(t *testing.T) {
 	assertSameOutputs(t, a, b)
 }
 
-// FuzzReadStateFile feeds damaged state files to the reader: it must
-// return an error wrapping errStateCorrupt (or a usage error for an
-// unreadable file) and never panic; anything it accepts must be complete.
-func FuzzReadStateFile(f *testing.F) {
-	dir := f.TempDir()
-	st := filepath.Join(dir, "seed.state")
-	var out, errb bytes.Buffer
-	env := &runEnv{stdout: &out, stderr: &errb, argv: []string{"fgauge"}}
-	if code := run(context.Background(), env, []string{"scan", "../../testdata/cohort189.vcf.gz", "--region", "1:12001-",
-		"-o", filepath.Join(dir, "seed"), "--state-out", st, "--no-progress", "--threads", "1"}); code != exitOK {
-		f.Fatalf("scan: %s", errb.String())
-	}
-	seed, err := os.ReadFile(st)
-	if err != nil {
-		f.Fatal(err)
-	}
-	f.Add(seed)
-	f.Add(seed[:stateHead])
-	f.Add(seed[:len(seed)-1])
-	f.Add([]byte(stateMagic))
-	f.Add([]byte{})
-	f.Fuzz(func(t *testing.T, data []byte) {
-		p := filepath.Join(t.TempDir(), "x.state")
-		if err := os.WriteFile(p, data, 0o644); err != nil {
-			t.Fatal(err)
-		}
-		s, err := readStateFile(p)
-		if err != nil {
-			if !errors.Is(err, errStateCorrupt) {
-				t.Fatalf("error does not wrap errStateCorrupt: %v", err)
-			}
-			if !strings.Contains(err.Error(), p) {
-				t.Fatalf("error does not name the file: %v", err)
-			}
-			return
-		}
-		if s.Totals == nil || s.Version == "" {
-			t.Fatalf("accepted an incomplete state")
-		}
-	})
-}
-
-// TestShardOrderWithoutContigLines merges shards of a file whose contigs
-// (2, 1, 10 in file order) have no ##contig lines: the genome order comes
 // from the tabix index, so the joined site table follows the file.
 func TestShardOrderWithoutContigLines(t *testing.T) {
 	dir := t.TempDir()
@@ -753,40 +608,6 @@ func TestPlanCSI(t *testing.T) {
 	assertSameOutputs(t, scanSingle(t, dir, input, nil), scanShards(t, dir, input, nil, sp))
 }
 
-func TestPlanScanArgs(t *testing.T) {
-	dir := t.TempDir()
-	pops := writeTestInput(t, dir, "herds.tsv", "a\tnorth_farm\n")
-	abs, _ := filepath.Abs(pops)
-	rel, _ := filepath.Rel(mustGetwd(t), pops)
-	for _, tc := range []struct {
-		in   []string
-		want []string
-		bad  bool
-	}{
-		{in: []string{"--populations", rel, "--roh-method", "rules"}, want: []string{"--populations", abs, "--roh-method", "rules"}},
-		{in: []string{"--populations=" + rel}, want: []string{"--populations=" + abs}},
-		{in: []string{"--region", "1"}, bad: true},
-		{in: []string{"-o", "x"}, bad: true},
-		{in: []string{"--report"}, bad: true},
-		{in: []string{"--populations", filepath.Join(dir, "missing.tsv")}, bad: true},
-		{in: []string{"--populations"}, bad: true},
-	} {
-		got, err := planScanArgs(tc.in)
-		if (err != nil) != tc.bad || (!tc.bad && !reflect.DeepEqual(got, tc.want)) {
-			t.Errorf("%v: got %v, %v", tc.in, got, err)
-		}
-	}
-}
-
-func mustGetwd(t *testing.T) string {
-	t.Helper()
-	wd, err := os.Getwd()
-	if err != nil {
-		t.Fatal(err)
-	}
-	return wd
-}
-
 func TestStateOutUsage(t *testing.T) {
 	dir := t.TempDir()
 	for _, args := range [][]string{
@@ -816,7 +637,7 @@ func TestMergeReport(t *testing.T) {
 	}
 }
 
-// TestPlanManyContigs: a shard of more than maxRegionArgs whole contigs
+// TestPlanManyContigs: a shard of more than plan.MaxRegionArgs whole contigs
 // reads them from a regions file; scanning the plan's shards that way
 // merges to the single pass.
 func TestPlanManyContigs(t *testing.T) {
@@ -853,7 +674,7 @@ func TestPlanManyContigs(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if n := strings.Count(string(b), "\n"); n <= maxRegionArgs {
+		if n := strings.Count(string(b), "\n"); n <= plan.MaxRegionArgs {
 			t.Errorf("%s lists %d contigs", rf, n)
 		}
 		out := filepath.Join(dir, fmt.Sprintf("shard%d", i))

@@ -1,3 +1,7 @@
+// Package demo is the built-in demonstration: an invented cooperative of
+// four goat herds (herd book, simulated genomes), scanned through the
+// scanrun API and summarised in plain language. Everything in it is
+// invented: no real animals, farms or people.
 package demo
 
 import (
@@ -12,41 +16,36 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"time"
 
 	"fgauge/cmd/fgauge/htmlreport"
+	"fgauge/cmd/fgauge/internal/scanrun"
+	"fgauge/roh"
 	"fgauge/roh/simulate"
+	"fgauge/stats"
 	"fgauge/stats/pedigree"
+	"fgauge/vcfscan"
 )
-
-const demoHelp = `The demo invents a small cooperative of four heritage-breed goat herds
-(Hillside, Brookend, Fernlea, Stonegate; ids like HILL-017). One buck,
-FERN-001, was used by artificial insemination in every herd; a few close-kin
-matings happened (a full-sib mating at Brookend, a half-sib mating at
-Hillside, a sire-daughter mating at Stonegate, a first-cousin mating at
-Fernlea); the rest of the herd is mostly unrelated. Genomes are simulated
-with a fixed seed at SNP-array density, written to DIR, and scanned with
-every statistic, ROH and the pedigree comparison on. Everything is
-invented: no real animals, farms or people.
-
-Files in DIR: cohort.vcf.gz (+ .tbi), pedigree.tsv, herds.tsv (sample, herd),
-truth_samples.tsv and truth_segments.tsv (what the simulation knows), and
-scan/ with the scan's tables and report.html.
-`
 
 // demoSeed fixes the demo's data.
 const demoSeed = 20260417
 
-// runDemo simulates the demo cohort, scans it and prints a summary.
-func runDemo(ctx context.Context, env *runEnv, args []string) error {
-	fs := newFlagSet(env.stderr, "demo", "demo [-o DIR]", demoHelp)
-	dir := fs.String("o", "fgauge_demo", "output `DIR`ectory (created if needed)")
-	pos, err := parseInterleaved(fs, args)
-	if err != nil {
-		return err
-	}
-	if len(pos) != 0 {
-		return usagef("demo: unexpected argument %q", pos[0])
-	}
+// Config says where the demo writes and what it reports in run.json.
+type Config struct {
+	Dir         string // output folder, created if needed
+	Threads     int    // scan workers (at least 1)
+	Version     string // fgauge version, for run.json
+	CommandLine []string
+	Stdout      io.Writer // the plain-language summary
+	Stderr      io.Writer // the scan's warnings and closing line
+}
+
+// Run simulates the demo cohort into cfg.Dir, scans it with every
+// statistic, runs of homozygosity and the pedigree comparison on, writes
+// the report with one page per animal, and prints a summary to
+// cfg.Stdout.
+func Run(ctx context.Context, cfg Config) error {
+	dir := &cfg.Dir
 	if err := os.MkdirAll(*dir, 0o755); err != nil {
 		return err
 	}
@@ -102,16 +101,15 @@ func runDemo(ctx context.Context, env *runEnv, args []string) error {
 	}
 	for _, f := range files {
 		p := filepath.Join(*dir, f.name)
-		if err := writeFileOrStdout(nil, p, f.fn); err != nil {
+		if err := writeFile(p, f.fn); err != nil {
 			return fmt.Errorf("demo: writing %s: %w", p, err)
 		}
 	}
-	fmt.Fprintf(env.stdout, "Demo cohort: %d goats in 4 herds, %d SNPs on 5 chromosomes, written to %s\n",
+	fmt.Fprintf(cfg.Stdout, "Demo cohort: %d goats in 4 herds, %d SNPs on 5 chromosomes, written to %s\n",
 		len(res.Samples), countSites(res), *dir)
 
 	scanDir := filepath.Join(*dir, "scan")
-	scanErr := runScan(ctx, &runEnv{stdout: io.Discard, stderr: env.stderr, stdin: env.stdin, argv: env.argv},
-		[]string{vcfPath, "-o", scanDir, "--populations", popPath, "--pedigree", pedPath, "--force", "--no-progress"})
+	scanErr := scan(ctx, &cfg, vcfPath, scanDir, popPath, pedPath)
 	if err := ctx.Err(); err != nil {
 		return err
 	}
@@ -130,12 +128,12 @@ func runDemo(ctx context.Context, env *runEnv, args []string) error {
 	if scanErr == nil {
 		genomic, genomicCol, err = readGenomicF(filepath.Join(scanDir, "samples.tsv"))
 		if err != nil {
-			fmt.Fprintf(env.stdout, "\n(The scan ran but its samples table could not be read: %v)\n", err)
+			fmt.Fprintf(cfg.Stdout, "\n(The scan ran but its samples table could not be read: %v)\n", err)
 		}
 	} else {
-		fmt.Fprintf(env.stdout, "\nThe scan step did not run (%v); the summary below uses pedigree F only.\n", scanErr)
+		fmt.Fprintf(cfg.Stdout, "\nThe scan step did not run (%v); the summary below uses pedigree F only.\n", scanErr)
 	}
-	writeDemoSummary(env.stdout, ped, fpedOf, truthOf, genomic, genomicCol, scanDir, scanErr == nil)
+	writeDemoSummary(cfg.Stdout, ped, fpedOf, truthOf, genomic, genomicCol, scanDir, scanErr == nil)
 	if scanErr != nil {
 		return fmt.Errorf("demo: the scan or report step failed: %w", scanErr)
 	}
@@ -478,4 +476,60 @@ func writeDemoSummary(w io.Writer, ped *pedigree.Pedigree, fped, truth, genomic 
 	fmt.Fprintln(w, "    season with 'fgauge pedigree pedigree.tsv --pairs PAIRS.tsv -o f.tsv'.")
 	fmt.Fprintln(w, "\nCaution: genomic or pedigree F is not a decision by itself; mating and culling decisions follow")
 	fmt.Fprintln(w, "the breeding programme's rules, veterinary advice and local regulations.")
+}
+
+// scan runs the scan of the demo cohort with the scan command's defaults
+// plus --populations and --pedigree.
+func scan(ctx context.Context, cfg *Config, vcfPath, scanDir, popPath, pedPath string) error {
+	start := time.Now()
+	f, err := os.Open(pedPath)
+	if err != nil {
+		return err
+	}
+	ped, err := pedigree.Read(f, pedPath)
+	f.Close()
+	if err != nil {
+		return err
+	}
+	pf, err := os.Open(popPath)
+	if err != nil {
+		return err
+	}
+	pops, err := stats.ReadPopulations(pf, popPath)
+	pf.Close()
+	if err != nil {
+		return err
+	}
+	rohCfg := roh.DefaultConfig()
+	if err := rohCfg.Validate(); err != nil {
+		return err
+	}
+	threads := max(cfg.Threads, 1)
+	res, err := scanrun.Run(ctx, scanrun.Config{
+		Input: vcfPath, Out: scanDir, Force: true, Threads: threads,
+		Read:     vcfscan.Options{Limits: scanrun.DefaultLimits()},
+		Stats:    scanrun.StatsSettings{HWEMethod: "exact", Populations: pops, PopulationsFile: popPath, MinCallRate: 0.9, JackknifeBlockMB: 5},
+		ROH:      rohCfg,
+		Pedigree: ped,
+		Version:  cfg.Version, CommandLine: cfg.CommandLine, Stderr: cfg.Stderr,
+	})
+	if err != nil {
+		return err
+	}
+	res.Report(cfg.Stderr, scanDir, time.Since(start))
+	return nil
+}
+
+// writeFile creates path and fills it with fn.
+func writeFile(path string, fn func(io.Writer) error) (err error) {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	defer func() {
+		if cerr := f.Close(); err == nil {
+			err = cerr
+		}
+	}()
+	return fn(f)
 }

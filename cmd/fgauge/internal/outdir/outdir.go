@@ -1,3 +1,8 @@
+// Package outdir is the output folder of a scan or merge: files are
+// written into a hidden staging folder inside OUTDIR and moved into place
+// by Commit only when the whole run succeeded, so a failed or interrupted
+// run leaves no half-written result. It also owns the names of the files
+// a run may write.
 package outdir
 
 import (
@@ -5,32 +10,34 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
+
+	"fgauge/cmd/fgauge/internal/badinput"
 )
 
-// outputNames are the files a scan or merge may write into OUTDIR; an
+// Names are the files a scan or merge may write into OUTDIR; an
 // OUTDIR holding any of them is not overwritten without --force.
-var outputNames = []string{
+var Names = []string{
 	"sites.tsv.gz", "sites_by_population.tsv.gz", "samples.tsv", "runs.tsv",
 	"populations.tsv", "populations_pairwise.tsv", "run.json", "report.html", "samples",
 }
 
-// stagedDir collects the outputs of one run in a hidden temporary folder
+// Dir collects the outputs of one run in a hidden temporary folder
 // inside OUTDIR and moves them into place only when the whole run has
 // succeeded, so a failed or interrupted run leaves no half-written result.
-type stagedDir struct {
+type Dir struct {
 	final   string // OUTDIR
 	tmp     string // OUTDIR/.fgauge-tmp-*
 	created bool   // OUTDIR did not exist before the run
 	files   []string
 }
 
-// newStagedDir prepares OUTDIR. It refuses an OUTDIR that already holds
+// New prepares OUTDIR. It refuses an OUTDIR that already holds
 // results unless force is set.
-func newStagedDir(dir string, force bool) (*stagedDir, error) {
+func New(dir string, force bool) (*Dir, error) {
 	if dir == "" {
-		return nil, usagef("an output folder is required (-o OUTDIR)")
+		return nil, badinput.Errorf("an output folder is required (-o OUTDIR)")
 	}
-	s := &stagedDir{final: dir}
+	s := &Dir{final: dir}
 	st, err := os.Stat(dir)
 	switch {
 	case os.IsNotExist(err):
@@ -41,12 +48,12 @@ func newStagedDir(dir string, force bool) (*stagedDir, error) {
 	case err != nil:
 		return nil, fmt.Errorf("output folder: %w", err)
 	case !st.IsDir():
-		return nil, usagef("%s exists and is not a folder", dir)
+		return nil, badinput.Errorf("%s exists and is not a folder", dir)
 	default:
 		if !force {
-			for _, n := range outputNames {
+			for _, n := range Names {
 				if _, err := os.Stat(filepath.Join(dir, n)); err == nil {
-					return nil, usagef("%s already holds results (%s); choose another folder or add --force to overwrite", dir, n)
+					return nil, badinput.Errorf("%s already holds results (%s); choose another folder or add --force to overwrite", dir, n)
 				}
 			}
 		}
@@ -60,18 +67,18 @@ func newStagedDir(dir string, force bool) (*stagedDir, error) {
 }
 
 // Create opens a staged output file by its final base name.
-func (s *stagedDir) Create(name string) (*os.File, error) {
+func (s *Dir) Create(name string) (*os.File, error) {
 	s.files = append(s.files, name)
 	return os.Create(filepath.Join(s.tmp, name))
 }
 
 // Path is where a staged file is written before Commit.
-func (s *stagedDir) Path(name string) string { return filepath.Join(s.tmp, name) }
+func (s *Dir) Path(name string) string { return filepath.Join(s.tmp, name) }
 
 // Commit moves every staged file into OUTDIR and removes the temporary
 // folder. Files are moved in a fixed order, run.json last, so a reader that
 // waits for run.json sees a complete set.
-func (s *stagedDir) Commit() error {
+func (s *Dir) Commit() error {
 	entries, err := os.ReadDir(s.tmp)
 	if err != nil {
 		return err
@@ -92,7 +99,7 @@ func (s *stagedDir) Commit() error {
 	for _, n := range names {
 		made[n] = true
 	}
-	for _, n := range outputNames {
+	for _, n := range Names {
 		if !made[n] {
 			if err := os.RemoveAll(filepath.Join(s.final, n)); err != nil {
 				return fmt.Errorf("removing the earlier run's %s: %w", n, err)
@@ -115,7 +122,7 @@ func (s *stagedDir) Commit() error {
 
 // Abort removes the temporary folder, and OUTDIR itself when this run
 // created it and it is empty.
-func (s *stagedDir) Abort() {
+func (s *Dir) Abort() {
 	if s == nil {
 		return
 	}

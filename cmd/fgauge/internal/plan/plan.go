@@ -1,10 +1,12 @@
+// Package plan splits an indexed input into shards of about equal work,
+// estimates each shard's CPU time and memory, and writes the scripts that
+// scan the shards on one machine or as a Slurm job array and merge them.
 package plan
 
 import (
 	"bufio"
 	"bytes"
 	"compress/gzip"
-	"context"
 	"encoding/binary"
 	"fmt"
 	"io"
@@ -18,35 +20,10 @@ import (
 	"github.com/biogo/hts/csi"
 	"github.com/biogo/hts/tabix"
 
+	"fgauge/cmd/fgauge/internal/badinput"
+	"fgauge/cmd/fgauge/internal/shard"
 	"fgauge/vcfscan"
 )
-
-const planHelp = `Splits an indexed input (.tbi or .csi next to it) into shards of roughly
-equal work, measured by the compressed bytes the index assigns to each
-stretch of each chromosome (virtual offsets; offsets inside a BGZF block
-are scaled by the file's compression ratio). Chromosomes are kept whole
-when they fit in a shard (neighbours are grouped); larger ones are split
-at positions. Writes:
-  PLANDIR/shards.tsv       shard, regions, compressed_bytes, est_records,
-                           est_cpu_seconds, est_memory_mb
-  PLANDIR/run_shard.sh     scans one shard: run_shard.sh NUMBER (shards of
-                           more than 20 contigs list them in PLANDIR/regions/)
-  PLANDIR/run_local.sh     all shards on this machine (--jobs at a time), then merge
-  PLANDIR/submit_slurm.sh  run with bash: submits a Slurm job array (one task
-                           per shard, shard_array.sbatch) and a merge job
-                           (merge.sbatch) that starts when every task has
-                           succeeded (sbatch --dependency=afterok)
-Options after "--" are passed to every 'fgauge scan' of the plan (for
-example -- --populations herds.tsv --roh-method rules).
-
-Re-running a script skips the shards whose state is already intact
-('fgauge scan --skip-if-valid-state'; submit_slurm.sh also leaves them out
-of the array, checking with 'fgauge merge --check').
-
-Slurm resources per task are estimated from the records and samples of
-the shard with a measured cost per site and sample (see costPerSiteSample
-in the source) times a safety factor of 4, at least 15 minutes.
-`
 
 // costPerSiteSample is the measured CPU time of 'fgauge scan' per site
 // and sample with the default options (all statistics and HMM detection):
@@ -81,9 +58,9 @@ func (p planPiece) region() string {
 	return fmt.Sprintf("%s:%d-%d", p.chrom, p.start, p.end)
 }
 
-// maxRegionArgs is the most --region options a shard's command gets;
+// MaxRegionArgs is the most --region options a shard's command gets;
 // shards of more contigs read them from PLANDIR/regions/NUMBER.txt.
-const maxRegionArgs = 20
+const MaxRegionArgs = 20
 
 // planShard is a list of consecutive pieces.
 type planShard struct {
@@ -92,88 +69,82 @@ type planShard struct {
 	records float64
 }
 
-// indexRef is one reference of an index with its offsets.
-type indexRef struct {
-	name       string
+// IndexRef is one reference of an index with its offsets.
+type IndexRef struct {
+	Name       string
 	begin, end int64 // compressed file offsets of its records
 	records    float64
 	length     int64 // from the header, 0 when unknown
 	offsetAt   func(pos int64) (int64, bool)
 }
 
-func runPlan(ctx context.Context, env *runEnv, args []string) error {
-	var scanArgs []string
-	for i, a := range args {
-		if a == "--" {
-			scanArgs, args = append([]string(nil), args[i+1:]...), args[:i]
-			break
-		}
-	}
-	fs := newFlagSet(env.stderr, "plan", "plan INPUT.vcf.gz|INPUT.bcf -o PLANDIR [--shards N | --shard-mb M] [-- SCAN OPTIONS]", planHelp)
-	var out, mergedOut, fgaugePath, partition string
-	var shards, threads, jobs int
-	var shardMB float64
-	var force bool
-	fs.StringVar(&out, "o", "", "plan folder (created if absent)")
-	fs.StringVar(&out, "out", "", "same as -o")
-	fs.IntVar(&shards, "shards", 0, "aim for about this many shards of equal work")
-	fs.Float64Var(&shardMB, "shard-mb", 0, "aim for shards of about this many MB of compressed input (default 64 when --shards is not given)")
-	fs.IntVar(&threads, "threads", 2, "threads (and Slurm CPUs) per shard")
-	fs.IntVar(&jobs, "jobs", 0, "shards run at once by run_local.sh (0: cores / --threads, at least 1)")
-	fs.StringVar(&mergedOut, "merged", "", "folder for the merged outputs (default PLANDIR/merged)")
-	fs.StringVar(&fgaugePath, "fgauge", "", "fgauge binary the scripts call (default: this one)")
-	fs.StringVar(&partition, "partition", "", "Slurm partition for the jobs (default: the cluster's default)")
-	fs.BoolVar(&force, "force", false, "overwrite an existing plan in PLANDIR")
-	pos, err := parseInterleaved(fs, args)
-	if err != nil {
-		return err
-	}
-	if len(pos) != 1 {
-		return usagef("plan: expected one input file, got %d", len(pos))
-	}
+// Config is one plan request. Input, Out and Fgauge may be relative;
+// the scripts get absolute paths.
+type Config struct {
+	Input     string   // indexed VCF/BCF (.tbi or .csi next to it)
+	Out       string   // plan folder, created if absent
+	Shards    int      // aim for about this many shards (0: use ShardMB)
+	ShardMB   float64  // aim for shards of about this many MB of compressed input (0 with Shards 0: 64)
+	Threads   int      // threads (and Slurm CPUs) per shard
+	Jobs      int      // shards run at once by run_local.sh (0: cores / Threads)
+	Merged    string   // folder for the merged outputs ("": Out/merged)
+	Fgauge    string   // fgauge binary the scripts call
+	Partition string   // Slurm partition ("": the cluster's default)
+	Force     bool     // replace an existing plan in Out
+	ScanArgs  []string // options passed to every shard's scan
+}
+
+// Result describes a written plan.
+type Result struct {
+	Shards      int
+	TargetBytes int64 // compressed input per shard aimed at
+	Samples     int
+}
+
+// Make splits cfg.Input into shards by its index and writes the plan
+// files into cfg.Out.
+func Make(cfg Config) (*Result, error) {
+	out, mergedOut, fgaugePath := cfg.Out, cfg.Merged, cfg.Fgauge
+	shards, shardMB, threads, jobs := cfg.Shards, cfg.ShardMB, cfg.Threads, cfg.Jobs
 	if out == "" {
-		return usagef("plan: a plan folder is required (-o PLANDIR)")
+		return nil, usagef("plan: a plan folder is required (-o PLANDIR)")
 	}
 	if shards < 0 || shardMB < 0 || threads < 1 || jobs < 0 {
-		return usagef("plan: --shards, --shard-mb, --threads and --jobs must not be negative (--threads at least 1)")
+		return nil, usagef("plan: --shards, --shard-mb, --threads and --jobs must not be negative (--threads at least 1)")
 	}
 	if shards > 0 && shardMB > 0 {
-		return usagef("plan: give --shards or --shard-mb, not both")
+		return nil, usagef("plan: give --shards or --shard-mb, not both")
 	}
 	if shards == 0 && shardMB == 0 {
 		shardMB = 64
 	}
-	if scanArgs, err = planScanArgs(scanArgs); err != nil {
-		return err
-	}
-	input, err := filepath.Abs(pos[0])
+	scanArgs, err := planScanArgs(cfg.ScanArgs)
 	if err != nil {
-		return err
+		return nil, err
 	}
-	if fgaugePath == "" {
-		if fgaugePath, err = os.Executable(); err != nil {
-			return fmt.Errorf("plan: cannot find this program's path (give --fgauge): %w", err)
-		}
+	input, err := filepath.Abs(cfg.Input)
+	if err != nil {
+		return nil, err
 	}
 	if fgaugePath, err = filepath.Abs(fgaugePath); err != nil {
-		return err
+		return nil, err
 	}
 	outAbs, err := filepath.Abs(out)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	if mergedOut == "" {
 		mergedOut = filepath.Join(outAbs, "merged")
 	} else if mergedOut, err = filepath.Abs(mergedOut); err != nil {
-		return err
+		return nil, err
 	}
-	if _, err := os.Stat(filepath.Join(outAbs, "shards.tsv")); err == nil && !force {
-		return usagef("%s already holds a plan; add --force to replace it", out)
+	if _, err := os.Stat(filepath.Join(outAbs, "shards.tsv")); err == nil && !cfg.Force {
+		return nil, usagef("%s already holds a plan; add --force to replace it", out)
 	}
 
 	rd, err := vcfscan.Open(input, vcfscan.Options{Threads: 1})
 	if err != nil {
-		return err
+		return nil, err
 	}
 	hdr := rd.Header()
 	nSamples := len(rd.Samples())
@@ -181,20 +152,20 @@ func runPlan(ctx context.Context, env *runEnv, args []string) error {
 	for _, c := range hdr.Contigs {
 		lengths[c.Name] = c.Length
 	}
-	refs, err := readIndexRefs(input, hdr)
+	refs, err := ReadIndexRefs(input, hdr)
 	rd.Close()
 	if err != nil {
-		return err
+		return nil, err
 	}
 	for i := range refs {
-		refs[i].length = lengths[refs[i].name]
+		refs[i].length = lengths[refs[i].Name]
 	}
 	var total int64
 	for _, r := range refs {
 		total += r.end - r.begin
 	}
 	if total <= 0 {
-		return usagef("plan: %s: the index lists no records", pos[0])
+		return nil, usagef("plan: %s: the index lists no records", cfg.Input)
 	}
 	target := int64(shardMB * 1e6)
 	if shards > 0 {
@@ -203,21 +174,19 @@ func runPlan(ctx context.Context, env *runEnv, args []string) error {
 	plan := makeShards(refs, target)
 
 	if err := os.MkdirAll(filepath.Join(outAbs, "logs"), 0o755); err != nil {
-		return err
+		return nil, err
 	}
 	for _, d := range []string{"shards", "states"} {
 		if err := os.MkdirAll(filepath.Join(outAbs, d), 0o755); err != nil {
-			return err
+			return nil, err
 		}
 	}
 	p := &planScripts{dir: outAbs, fgauge: fgaugePath, input: input, scanArgs: scanArgs, merged: mergedOut,
-		threads: threads, jobs: jobs, partition: partition, samples: nSamples, shards: plan}
+		threads: threads, jobs: jobs, partition: cfg.Partition, samples: nSamples, shards: plan}
 	if err := p.write(); err != nil {
-		return err
+		return nil, err
 	}
-	fmt.Fprintf(env.stderr, "fgauge: %d shards of about %.1f MB compressed input (%d samples); plan in %s\n",
-		len(plan), float64(target)/1e6, nSamples, out)
-	return nil
+	return &Result{Shards: len(plan), TargetBytes: target, Samples: nSamples}, nil
 }
 
 // planScanArgs checks the scan options given after "--" and makes the
@@ -234,7 +203,7 @@ func planScanArgs(args []string) ([]string, error) {
 		case name == "o" || name == "out" || name == "region" || name == "regions-file" ||
 			name == "state-out" || name == "skip-if-valid-state" || name == "report":
 			return nil, usagef("plan: --%s cannot be given to the shards' scans (the plan sets it, or it needs a whole run)", name)
-		case !scanFlagsFiles[name]:
+		case !shard.ScanFlagsFiles[name]:
 			continue
 		}
 		if !hasVal {
@@ -260,9 +229,9 @@ func planScanArgs(args []string) ([]string, error) {
 	return out, nil
 }
 
-// readIndexRefs reads the tabix or CSI index of path and returns its
+// ReadIndexRefs reads the tabix or CSI index of path and returns its
 // references in index order (the order of the file) with their offsets.
-func readIndexRefs(path string, hdr *vcfscan.Header) ([]indexRef, error) {
+func ReadIndexRefs(path string, hdr *vcfscan.Header) ([]IndexRef, error) {
 	var idxPath string
 	for _, c := range []string{path + ".tbi", path + ".csi"} {
 		if _, err := os.Stat(c); err == nil {
@@ -280,7 +249,7 @@ func readIndexRefs(path string, hdr *vcfscan.Header) ([]indexRef, error) {
 	bad := func(why string, err error) error {
 		return usagef("plan: %s: %s: %v", idxPath, why, err)
 	}
-	var refs []indexRef
+	var refs []IndexRef
 	// One compression ratio for the file, from the first data block met.
 	cratio := -1.0
 	ratio := func(span bgzf.Chunk, haveStats bool, cs []bgzf.Chunk) float64 {
@@ -300,7 +269,7 @@ func readIndexRefs(path string, hdr *vcfscan.Header) ([]indexRef, error) {
 			return nil, bad("cannot read tabix index", err)
 		}
 		for id, name := range idx.Names() {
-			r := indexRef{name: name}
+			r := IndexRef{Name: name}
 			st, ok := idx.ReferenceStats(id)
 			chunks := func(beg, end int) []bgzf.Chunk {
 				cs, _ := idx.Chunks(name, beg, end)
@@ -329,7 +298,7 @@ func readIndexRefs(path string, hdr *vcfscan.Header) ([]indexRef, error) {
 		}
 		maxPos := int(math.Min(float64(int64(1)<<(minShift+3*depth)), 1<<40))
 		for id := 0; id < idx.NumRefs() && id < len(names); id++ {
-			r := indexRef{name: names[id]}
+			r := IndexRef{Name: names[id]}
 			st, ok := idx.ReferenceStats(id)
 			chunks := func(beg, end int) []bgzf.Chunk { return idx.Chunks(id, beg, end) }
 			if !fillRef(&r, st.Chunk, ok, float64(st.Mapped+st.Unmapped), chunks, maxPos, ratio(st.Chunk, ok, chunks(0, maxPos))) {
@@ -349,7 +318,7 @@ func readIndexRefs(path string, hdr *vcfscan.Header) ([]indexRef, error) {
 // the block's file offset plus the offset inside the uncompressed block
 // scaled by the compression ratio ratio (so that records sharing a block
 // still differ). It reports false for references without records.
-func fillRef(r *indexRef, span bgzf.Chunk, haveStats bool, records float64, chunks func(beg, end int) []bgzf.Chunk, maxPos int, ratio float64) bool {
+func fillRef(r *IndexRef, span bgzf.Chunk, haveStats bool, records float64, chunks func(beg, end int) []bgzf.Chunk, maxPos int, ratio float64) bool {
 	vpos := func(o bgzf.Offset) int64 { return o.File + int64(float64(o.Block)*ratio) }
 	first := func(beg int) (int64, bool) {
 		cs := chunks(beg, maxPos)
@@ -394,7 +363,7 @@ func compressionRatio(path string, off int64) float64 {
 	defer f.Close()
 	head := make([]byte, 64)
 	n, _ := f.ReadAt(head, off)
-	size, ok := bgzfBlockSize(head[:n])
+	size, ok := shard.BGZFBlockSize(head[:n])
 	if !ok || size < 28 {
 		return fallback
 	}
@@ -445,7 +414,7 @@ func readMaybeGzip(path string) ([]byte, error) {
 
 // makeShards groups whole references into shards of about target bytes
 // and splits references larger than 1.5 targets into pieces of their own.
-func makeShards(refs []indexRef, target int64) []planShard {
+func makeShards(refs []IndexRef, target int64) []planShard {
 	var out []planShard
 	var cur planShard
 	flush := func() {
@@ -466,7 +435,7 @@ func makeShards(refs []indexRef, target int64) []planShard {
 		if len(cur.pieces) > 0 && cur.bytes+cost > target+target/10 {
 			flush()
 		}
-		cur.pieces = append(cur.pieces, planPiece{chrom: r.name, start: 1, bytes: cost, records: r.records})
+		cur.pieces = append(cur.pieces, planPiece{chrom: r.Name, start: 1, bytes: cost, records: r.records})
 		cur.bytes += cost
 		cur.records += r.records
 	}
@@ -476,8 +445,8 @@ func makeShards(refs []indexRef, target int64) []planShard {
 
 // splitRef cuts a reference into k pieces of about equal compressed bytes,
 // placing cuts on a grid of at least 512 windows by the index's offsets.
-func splitRef(r indexRef, k int) []planPiece {
-	whole := []planPiece{{chrom: r.name, start: 1, bytes: r.end - r.begin, records: r.records}}
+func splitRef(r IndexRef, k int) []planPiece {
+	whole := []planPiece{{chrom: r.Name, start: 1, bytes: r.end - r.begin, records: r.records}}
 	if k < 2 {
 		return whole
 	}
@@ -519,7 +488,7 @@ func splitRef(r indexRef, k int) []planPiece {
 	start := int64(1)
 	prevOff := r.begin
 	for i := 0; i <= len(cuts); i++ {
-		p := planPiece{chrom: r.name, start: start}
+		p := planPiece{chrom: r.Name, start: start}
 		endOff := r.end
 		if i < len(cuts) {
 			p.end = cuts[i] - 1
@@ -583,7 +552,7 @@ func (p *planScripts) write() error {
 		fmt.Fprintf(&tsv, "%d\t%s\t%d\t%.0f\t%s\t%d\n", i+1, strings.Join(regs, ","), s.bytes, s.records,
 			strconv.FormatFloat(cpu, 'g', 3, 64), mem)
 		fmt.Fprintf(&cases, "  %d)", i+1)
-		if len(regs) > maxRegionArgs {
+		if len(regs) > MaxRegionArgs {
 			// Many whole contigs (unplaced scaffolds): a regions file
 			// keeps the command line short.
 			name := fmt.Sprintf("%0*d.txt", width, i+1)
@@ -742,3 +711,5 @@ echo "${mergeid%%%%;*}" > "$PLANDIR/merge_job_id"
 	}
 	return nil
 }
+
+func usagef(format string, a ...any) error { return badinput.Errorf(format, a...) }

@@ -9,13 +9,13 @@ import (
 	"fgauge/vcfscan"
 )
 
-// scanWarnings returns the legal-but-suspicious conditions found after
+// Warnings returns the legal-but-suspicious conditions found after
 // reading, in the same form as the reader's warnings, so that run.json
 // counts them and stderr prints each once: no site kept, samples without
 // any diploid call, samples below --min-call-rate, and an F_ROH
 // denominator taken from the span of the sites (an autosome without a
 // header length, or no autosome at all).
-func scanWarnings(totals *stats.Totals, kept int64, rres *roh.Result) []vcfscan.Warning {
+func Warnings(totals *stats.Totals, kept int64, rres *roh.Result) []vcfscan.Warning {
 	var ws []vcfscan.Warning
 	if kept == 0 {
 		return append(ws, vcfscan.Warning{Kind: "no_sites_kept", Count: 1,

@@ -2,15 +2,13 @@ package scanrun
 
 import (
 	"strconv"
+
+	"fgauge/stats/pedigree"
 )
 
-// pedigreeColumn reads a pedigree file and returns f_pedigree for each
-// sample, "NA" for samples the pedigree does not list.
-func pedigreeColumn(path string, samples []string) ([]string, error) {
-	ped, err := readPedigreeFile(path)
-	if err != nil {
-		return nil, err
-	}
+// pedigreeColumn returns f_pedigree for each sample, "NA" for samples the
+// pedigree does not list.
+func pedigreeColumn(ped *pedigree.Pedigree, samples []string) []string {
 	f := ped.Inbreeding()
 	byID := make(map[string]float64, ped.Len())
 	for i := range f {
@@ -24,5 +22,5 @@ func pedigreeColumn(path string, samples []string) ([]string, error) {
 			col[i] = "NA"
 		}
 	}
-	return col, nil
+	return col
 }

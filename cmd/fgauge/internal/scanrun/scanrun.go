@@ -1,132 +1,84 @@
+// Package scanrun is the scan: VCF/BCF in, the output folder's tables,
+// run.json and (for a shard) the mergeable state out. Run takes a Config,
+// not command-line flags, so that the command, the demo, the tests and
+// the benchmarks all call the same function.
+//
+// It wires vcfscan, stats and roh together and writes through outdir; it
+// computes no statistics itself.
 package scanrun
 
 import (
-	"bufio"
 	"bytes"
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"os"
-	"runtime"
-	"runtime/pprof"
-	"strings"
 	"sync"
 	"time"
 
-	"github.com/schollz/progressbar/v3"
 	"golang.org/x/sync/errgroup"
-	"golang.org/x/term"
 
-	"fgauge/cmd/fgauge/htmlreport"
+	"fgauge/cmd/fgauge/internal/badinput"
+	"fgauge/cmd/fgauge/internal/outdir"
+	"fgauge/cmd/fgauge/internal/runsummary"
 	"fgauge/roh"
 	"fgauge/stats"
+	"fgauge/stats/pedigree"
 	"fgauge/vcfscan"
 )
 
-const scanHelp = `Outputs (see 'fgauge columns' for every column):
-  OUTDIR/sites.tsv.gz              one row per kept site (BGZF, indexable)
-  OUTDIR/sites_by_population.tsv.gz  per site and population (with --populations)
-  OUTDIR/samples.tsv               one row per sample: counts, genomic F, F_ROH
-  OUTDIR/runs.tsv                  one row per run of homozygosity
-  OUTDIR/populations.tsv, populations_pairwise.tsv  (with --populations)
-  OUTDIR/run.json                  what was read, kept, skipped and why
-Files are written to a temporary folder inside OUTDIR and moved into place
-only when the whole run succeeds.
+// Config is everything one scan needs. The command builds it from its
+// options; the demo and tests fill it directly. Side files (populations,
+// frequency panel, genetic map, pedigree, sample lists, regions) are read
+// by the caller and given here parsed.
+type Config struct {
+	Input   string // VCF/BCF path, or "-" for standard input
+	Out     string // output folder
+	Force   bool   // overwrite results already in Out
+	Threads int    // workers for decompression, parsing and statistics (at least 1)
 
-Site policy: biallelic SNPs (REF and ALT one of A, C, G, T) with FILTER PASS
-or "." are kept; every other record is skipped and counted by reason in
-run.json. Calls below --min-gq or --min-dp are set to missing. Haploid calls
-are counted apart (n_haploid) and left out of diploid statistics.
+	// Read holds the site and call policy, limits, sample selection and
+	// regions. Threads, RequireSorted, WantPL, InfoKey and RegionsByStart
+	// are set by Run.
+	Read     vcfscan.Options
+	Stats    StatsSettings
+	ROH      *roh.Config        // nil: no runs of homozygosity
+	Pedigree *pedigree.Pedigree // nil: no f_pedigree column
 
-The flags column of samples.tsv ("." when none):
-  no_calls             the sample has no diploid call at any kept site
-  low_call_rate        call_rate below --min-call-rate
-  het_rate_outlier     het_rate more than 3 SD from the cohort mean (possible
-                       contamination, sample mix-up or another population)
-  estimators_disagree  f_hom > 0.1 while f_uniting_gametes < 0, or the
-                       reverse: check frequencies and data quality first
+	// StateOut, when set, makes this scan a shard: OUTDIR gets the site
+	// tables and run.json only, and the mergeable state goes to StateOut.
+	StateOut string
+	// SkipIfValidState skips the scan when StateOut already holds an
+	// intact state of this same shard.
+	SkipIfValidState bool
+	// Options is the fingerprint of the result-changing options
+	// (shard.OptionFingerprint), part of a shard's identity.
+	Options []string
 
-Cautions: genomic F estimates depend on marker density, the allele-frequency
-reference and genotyping quality; they are not a diagnosis. Decisions about
-mating or culling animals follow the breeding programme's rules and local
-regulations; any reading of human consanguinity or its clinical consequences
-belongs to licensed genetic counselling or medical practice.
-`
-
-// scanOptions are the engine, output and pipeline options of fgauge scan.
-type scanOptions struct {
-	input       string
-	out         string
-	force       bool
-	threads     int
-	regions     listFlag
-	regionsFile string
-	report      bool
-	pedigree    string
-	noProgress  bool
-	cpuProfile  string
-	read        vcfscan.Options
-	samplesFile string
-	excludeFile string
-	stats       *statsFlags
-	roh         *rohFlags
-	shard       *shardFlags
+	Version     string   // fgauge version, for run.json and states
+	CommandLine []string // for run.json
+	Stderr      io.Writer
+	Progress    Progress // nil: none
 }
 
-func runScan(ctx context.Context, env *runEnv, args []string) error {
-	o := &scanOptions{}
-	fs := newFlagSet(env.stderr, "scan", "scan INPUT.vcf[.gz]|INPUT.bcf|- -o OUTDIR [options]", scanHelp+"\n"+statsHelp+"\n"+rohHelp)
-	fs.StringVar(&o.out, "o", "", "output folder (created if absent)")
-	fs.StringVar(&o.out, "out", "", "same as -o")
-	fs.BoolVar(&o.force, "force", false, "overwrite results already in OUTDIR")
-	fs.IntVar(&o.threads, "threads", runtime.NumCPU(), "worker threads for decompression, parsing and statistics")
-	fs.Var(&o.regions, "region", "restrict to CHROM or CHROM:START-END (1-based, inclusive; repeatable; needs a .tbi or .csi index)")
-	fs.StringVar(&o.regionsFile, "regions-file", "", "file of regions, one 'chrom start end' per line (1-based inclusive; .bed files 0-based half-open)")
-	fs.BoolVar(&o.read.IncludeFiltered, "include-filtered", false, "keep records whatever their FILTER (default keeps PASS and '.')")
-	fs.IntVar(&o.read.MinGQ, "min-gq", 0, "set calls with GQ below this to missing (0: off)")
-	fs.IntVar(&o.read.MinDP, "min-dp", 0, "set calls with DP below this to missing (0: off)")
-	fs.StringVar(&o.samplesFile, "samples", "", "file with the sample names to keep, one per line")
-	fs.StringVar(&o.excludeFile, "exclude-samples", "", "file with sample names to leave out, one per line")
-	fs.BoolVar(&o.report, "report", false, "also write OUTDIR/report.html")
-	fs.StringVar(&o.pedigree, "pedigree", "", "pedigree TSV (id sire dam); adds f_pedigree to samples.tsv")
-	fs.BoolVar(&o.noProgress, "no-progress", false, "never draw the progress bar")
-	fs.StringVar(&o.cpuProfile, "cpu-profile", "", "write a Go CPU profile of the run to this file (for developers)")
-	fs.IntVar(&o.read.Limits.MaxLineBytes, "max-line-bytes", vcfscan.DefaultMaxLineBytes, "refuse text lines, headers and BCF records longer than this")
-	fs.IntVar(&o.read.Limits.MaxSamples, "max-samples", vcfscan.DefaultMaxSamples, "refuse inputs with more samples than this (each costs about 1.6 kB of memory)")
-	fs.IntVar(&o.read.Limits.MaxAlleles, "max-alleles", 1000, "refuse records with more alleles than this")
-	fs.IntVar(&o.read.Limits.MaxBlockExpand, "max-block-bytes", 1<<20, "refuse compressed blocks that expand beyond this many bytes")
-	o.stats = addStatsFlags(fs)
-	o.roh = addROHFlags(fs)
-	o.shard = addShardFlags(fs)
-	pos, err := parseInterleaved(fs, args)
-	if err != nil {
-		return err
-	}
-	if len(pos) != 1 {
-		return usagef("scan: expected one input file (or - for standard input), got %d", len(pos))
-	}
-	o.input = pos[0]
-	if o.threads < 1 {
-		return usagef("scan: --threads must be at least 1")
-	}
-	if o.cpuProfile != "" {
-		f, err := os.Create(o.cpuProfile)
-		if err != nil {
-			return err
-		}
-		defer f.Close()
-		if err := pprof.StartCPUProfile(f); err != nil {
-			return err
-		}
-		defer pprof.StopCPUProfile()
-	}
-	return scan(ctx, env, o)
+// Progress is told how far reading has got. Run calls Start once, Update
+// after every batch written, and Finish at the end (also on error).
+type Progress interface {
+	// Start gives the function that reports compressed bytes read and
+	// the input's size (<= 0 when unknown).
+	Start(read func() (done, total int64))
+	Update()
+	Finish()
 }
 
-// siteChunk is one processed batch on its way to the ordered writer.
+// Result counts what a scan read and kept.
+type Result struct {
+	Read, Kept int64 // records read, sites kept
+	Samples    int   // samples selected
+	Skipped    bool  // SkipIfValidState found the state intact; nothing was done
+}
+
 type siteChunk struct {
 	batch    *vcfscan.Batch
 	sites    *bytes.Buffer
@@ -134,47 +86,49 @@ type siteChunk struct {
 	freqs    []float64
 }
 
-func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
+// Run scans cfg.Input into cfg.Out: a reader goroutine hands batches to
+// cfg.Threads statistics workers, an ordered stage writes the site tables
+// and feeds the runs-of-homozygosity collector in input order, and the
+// per-sample tables and run.json are written at the end. Outputs appear
+// in cfg.Out only when the whole run succeeded.
+func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	start := time.Now()
-	o.read.Threads = o.threads
-	if err := o.loadSampleLists(); err != nil {
-		return err
+	if cfg.Threads < 1 {
+		return nil, badinput.Errorf("scan: --threads must be at least 1")
 	}
-	for _, r := range o.regions {
-		reg, err := vcfscan.ParseRegion(r)
-		if err != nil {
-			return usagef("--region: %v", err)
-		}
-		o.read.Regions = append(o.read.Regions, reg)
+	if cfg.Stderr == nil {
+		cfg.Stderr = io.Discard
 	}
-	if o.regionsFile != "" {
-		regs, err := vcfscan.ReadRegionsFile(o.regionsFile)
-		if err != nil {
-			return err
-		}
-		o.read.Regions = append(o.read.Regions, regs...)
-	}
-	rohCfg, err := o.roh.config()
-	if err != nil {
-		return err
-	}
+	read := cfg.Read
+	read.Threads = cfg.Threads
+	read.Regions = append([]vcfscan.Region(nil), cfg.Read.Regions...)
+	rohCfg := cfg.ROH
 	if rohCfg != nil {
-		o.read.RequireSorted = true
-		o.read.WantPL = rohCfg.Method == "hmm"
+		c := *rohCfg
+		rohCfg = &c
+		read.RequireSorted = true
+		read.WantPL = rohCfg.Method == "hmm"
 	}
-	if len(o.read.Regions) > 0 {
-		o.read.RequireSorted = true
+	if len(read.Regions) > 0 {
+		read.RequireSorted = true
 	}
-	if err := o.stats.prepare(&o.read); err != nil {
-		return err
+	if err := cfg.Stats.check(); err != nil {
+		return nil, err
 	}
-	if skip, err := o.shard.skipIfValid(env, o); skip || err != nil {
-		return err
+	if cfg.Stats.InfoKey != "" {
+		read.InfoKey = cfg.Stats.InfoKey
+	}
+	sh := &shardRun{stateOut: cfg.StateOut, skipValid: cfg.SkipIfValidState, options: cfg.Options, version: cfg.Version}
+	if skip, err := sh.skipIfValid(cfg.Stderr, &cfg, &read); skip || err != nil {
+		if skip {
+			return &Result{Skipped: true}, nil
+		}
+		return nil, err
 	}
 
-	out, err := newStagedDir(o.out, o.force)
+	out, err := outdir.New(cfg.Out, cfg.Force)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	defer func() {
 		if err != nil {
@@ -182,70 +136,72 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 		}
 	}()
 
-	rd, err := vcfscan.Open(o.input, o.read)
+	rd, err := vcfscan.Open(cfg.Input, read)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	defer rd.Close()
 	hdr := rd.Header()
 	samples := rd.Samples()
-	scfg, err := o.stats.config(samples)
+	scfg, unlisted, err := cfg.Stats.config(samples)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	var rc *roh.Collector
 	if rohCfg != nil {
-		rohCfg.Threads = o.threads
+		rohCfg.Threads = cfg.Threads
 		if rc, err = roh.NewCollector(rohCfg, samples, hdr.Contigs); err != nil {
-			return err
+			return nil, err
 		}
 	}
 	var ped []string
-	if o.pedigree != "" {
-		if ped, err = pedigreeColumn(o.pedigree, samples); err != nil {
-			return err
-		}
+	if cfg.Pedigree != nil {
+		ped = pedigreeColumn(cfg.Pedigree, samples)
 	}
 
 	sitesFile, err := out.Create("sites.tsv.gz")
 	if err != nil {
-		return err
+		return nil, err
 	}
 	defer sitesFile.Close()
 	sitesZ := vcfscan.NewBGZFWriter(sitesFile, 1)
 	if _, err := io.WriteString(sitesZ, stats.SitesHeader()+"\n"); err != nil {
-		return err
+		return nil, err
 	}
 	var popZ *vcfscan.BGZFWriter
 	if scfg.PopOf != nil {
 		f, err := out.Create("sites_by_population.tsv.gz")
 		if err != nil {
-			return err
+			return nil, err
 		}
 		defer f.Close()
 		popZ = vcfscan.NewBGZFWriter(f, 1)
 		if _, err := io.WriteString(popZ, stats.PopSitesHeader()+"\n"); err != nil {
-			return err
+			return nil, err
 		}
 	}
-	if err := o.shard.separateHeader(sitesZ, popZ); err != nil {
-		return err
+	if err := sh.separateHeader(sitesZ, popZ); err != nil {
+		return nil, err
 	}
-	sink, err := o.shard.sink(rc, rohCfg, samples, hdr.Contigs, o.read.Regions)
+	sink, err := sh.sink(rc, rohCfg, samples, hdr.Contigs, read.Regions)
 	if err != nil {
-		return err
+		return nil, err
 	}
 
-	bar := newProgress(env.stderr, o.noProgress, rd)
+	bar := cfg.Progress
+	if bar == nil {
+		bar = noProgress{}
+	}
+	bar.Start(rd.Progress)
 	g, gctx := errgroup.WithContext(ctx)
-	jobs := make(chan *vcfscan.Batch, 2*o.threads)
-	done := make(chan *siteChunk, 2*o.threads)
+	jobs := make(chan *vcfscan.Batch, 2*cfg.Threads)
+	done := make(chan *siteChunk, 2*cfg.Threads)
 	bufPool := sync.Pool{New: func() any { return new(bytes.Buffer) }}
 
 	contigs := newContigTable(hdr.Contigs)
 	// inFlight bounds the batches read but not yet written in order, so a
 	// slow batch cannot make the reorder buffer grow without limit.
-	inFlight := make(chan struct{}, 4*o.threads)
+	inFlight := make(chan struct{}, 4*cfg.Threads)
 	g.Go(func() error {
 		defer close(jobs)
 		for {
@@ -271,7 +227,7 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 			}
 		}
 	})
-	workers := make([]*stats.Worker, o.threads)
+	workers := make([]*stats.Worker, cfg.Threads)
 	var wg sync.WaitGroup
 	for i := range workers {
 		w := stats.NewWorker(scfg, contigs.name)
@@ -331,7 +287,7 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 				}
 				rd.Release(b)
 				<-inFlight
-				bar.update()
+				bar.Update()
 			}
 		}
 		if len(pending) > 0 {
@@ -340,62 +296,55 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 		return nil
 	})
 	if err := waitOrCancel(ctx, g.Wait); err != nil {
-		bar.finish()
+		bar.Finish()
 		if ctx.Err() != nil {
-			return ctx.Err()
+			return nil, ctx.Err()
 		}
-		return err
+		return nil, err
 	}
-	bar.finish()
+	bar.Finish()
 	if err := sitesZ.Close(); err != nil {
-		return err
+		return nil, err
 	}
 	if popZ != nil {
 		if err := popZ.Close(); err != nil {
-			return err
+			return nil, err
 		}
 	}
 
 	totals := workers[0].Totals()
 	for _, w := range workers[1:] {
 		if err := totals.Merge(w.Totals()); err != nil {
-			return err
+			return nil, err
 		}
 	}
 	var rres *roh.Result
 	if rc != nil {
 		if rres, err = rc.Finish(); err != nil {
-			return err
+			return nil, err
 		}
 	}
-	if !o.shard.on() {
-		if err := writeTables(out, totals, rres, ped); err != nil {
-			return err
+	if !sh.on() {
+		if err := outdir.WriteTables(out, totals, rres, ped); err != nil {
+			return nil, err
 		}
 	}
 	if ctx.Err() != nil {
-		return ctx.Err()
+		return nil, ctx.Err()
 	}
-	info := runInfo(env, o, rd, &counts, kept, samples, totals, rres, start)
-	if err := writeJSON(out, "run.json", info); err != nil {
-		return err
+	info := runInfo(&cfg, rd, &counts, kept, samples, unlisted, totals, rres, start)
+	if err := outdir.WriteJSON(out, "run.json", info); err != nil {
+		return nil, err
 	}
 	if err := out.Commit(); err != nil {
-		return err
+		return nil, err
 	}
-	if o.shard.on() {
-		if err := o.shard.writeState(o, rd, &counts, kept, samples, totals, rohCfg, rres, ped, time.Since(start).Seconds()); err != nil {
-			return err
+	if sh.on() {
+		if err := sh.writeState(&cfg, &read, rd, &counts, kept, samples, totals, rohCfg, rres, ped, time.Since(start).Seconds()); err != nil {
+			return nil, err
 		}
 	}
-	if o.report {
-		if err := htmlreport.Write(o.out, htmlreport.Options{}); err != nil {
-			return fmt.Errorf("scan finished, but the report failed: %w", err)
-		}
-	}
-	fmt.Fprintf(env.stderr, "fgauge: %d records read, %d sites kept, %d samples, %s; results in %s\n",
-		counts.Read, kept, len(samples), time.Since(start).Round(time.Millisecond), o.out)
-	return nil
+	return &Result{Read: counts.Read, Kept: kept, Samples: len(samples)}, nil
 }
 
 // contigTable shares the growing contig list between the goroutine that
@@ -476,186 +425,37 @@ func writeChunk(c *siteChunk, sitesZ, popZ io.Writer, rc batchSink) error {
 	return nil
 }
 
-// writeTables writes samples.tsv, runs.tsv and the population tables.
-func writeTables(out *stagedDir, totals *stats.Totals, rres *roh.Result, ped []string) error {
-	header, rows := totals.SampleTable()
-	if rres != nil {
-		h2, r2 := rres.SampleTable()
-		header = append(header, h2...)
-		for i := range rows {
-			rows[i] = append(rows[i], r2[i]...)
-		}
-	}
-	if ped != nil {
-		header = append(header, "f_pedigree")
-		for i := range rows {
-			rows[i] = append(rows[i], ped[i])
-		}
-	}
-	if err := writeStaged(out, "samples.tsv", func(w io.Writer) error { return writeTSV(w, header, rows) }); err != nil {
-		return err
-	}
-	if rres != nil {
-		if err := writeStaged(out, "runs.tsv", rres.WriteRuns); err != nil {
-			return err
-		}
-	}
-	if totals.HasPopulations() {
-		if err := writeStaged(out, "populations.tsv", totals.WritePopulations); err != nil {
-			return err
-		}
-		if err := writeStaged(out, "populations_pairwise.tsv", totals.WritePairwise); err != nil {
-			return err
-		}
-	}
-	return nil
-}
-
-func writeTSV(w io.Writer, header []string, rows [][]string) error {
-	bw := bufio.NewWriter(w)
-	bw.WriteString(strings.Join(header, "\t"))
-	bw.WriteByte('\n')
-	for _, r := range rows {
-		bw.WriteString(strings.Join(r, "\t"))
-		bw.WriteByte('\n')
-	}
-	return bw.Flush()
-}
-
-// writeStaged creates a staged file and fills it with fill.
-func writeStaged(out *stagedDir, name string, fill func(io.Writer) error) error {
-	f, err := out.Create(name)
-	if err != nil {
-		return err
-	}
-	bw := bufio.NewWriterSize(f, 1<<16)
-	if err := fill(bw); err != nil {
-		f.Close()
-		return fmt.Errorf("writing %s: %w", name, err)
-	}
-	if err := bw.Flush(); err != nil {
-		f.Close()
-		return err
-	}
-	return f.Close()
-}
-
-func writeJSON(out *stagedDir, name string, v any) error {
-	return writeStaged(out, name, func(w io.Writer) error {
-		enc := json.NewEncoder(w)
-		enc.SetIndent("", "  ")
-		return enc.Encode(sanitizeJSON(v))
-	})
-}
-
-// sanitizeJSON replaces NaN and infinities, which JSON cannot carry, by null.
-func sanitizeJSON(v any) any {
-	switch x := v.(type) {
-	case float64:
-		if math.IsNaN(x) || math.IsInf(x, 0) {
-			return nil
-		}
-	case map[string]any:
-		for k, e := range x {
-			x[k] = sanitizeJSON(e)
-		}
-	case []any:
-		for i, e := range x {
-			x[i] = sanitizeJSON(e)
-		}
-	}
-	return v
-}
-
-func runInfo(env *runEnv, o *scanOptions, rd *vcfscan.Reader, c *vcfscan.Batch, kept int64, samples []string, totals *stats.Totals, rres *roh.Result, start time.Time) map[string]any {
+func runInfo(cfg *Config, rd *vcfscan.Reader, c *vcfscan.Batch, kept int64, samples, unlisted []string, totals *stats.Totals, rres *roh.Result, start time.Time) map[string]any {
 	size := int64(-1)
-	if st, err := os.Stat(o.input); err == nil && o.input != "-" {
+	if st, err := os.Stat(cfg.Input); err == nil && cfg.Input != "-" {
 		size = st.Size()
 	}
-	f := &runFacts{argv: env.argv, inputPath: o.input, inputSize: size, inputFormat: rd.Format().String(),
-		read: c.Read, kept: kept, skipped: c.Skipped, masked: c.Masked,
-		samplesInFile: rd.Header().Samples, samples: samples, warnings: rd.Warnings(),
-		unlisted: o.stats.unlisted, wallSeconds: time.Since(start).Seconds()}
-	return runSummary(env.stderr, f, totals, rres)
+	f := &runsummary.Facts{Version: cfg.Version, Argv: cfg.CommandLine, InputPath: cfg.Input, InputSize: size, InputFormat: rd.Format().String(),
+		Read: c.Read, Kept: kept, Skipped: c.Skipped, Masked: c.Masked,
+		SamplesInFile: rd.Header().Samples, Samples: samples, Warnings: rd.Warnings(),
+		Unlisted: unlisted, WallSeconds: time.Since(start).Seconds()}
+	return runsummary.Build(cfg.Stderr, f, totals, rres)
 }
 
-// loadSampleLists reads --samples and --exclude-samples.
-func (o *scanOptions) loadSampleLists() error {
-	var err error
-	if o.samplesFile != "" {
-		if o.read.Samples, err = readSampleList(o.samplesFile); err != nil {
-			return err
-		}
+// DefaultLimits are the input limits of the scan command's defaults.
+func DefaultLimits() vcfscan.Limits {
+	return vcfscan.Limits{
+		MaxLineBytes:   vcfscan.DefaultMaxLineBytes,
+		MaxSamples:     vcfscan.DefaultMaxSamples,
+		MaxAlleles:     1000,
+		MaxBlockExpand: 1 << 20,
 	}
-	if o.excludeFile != "" {
-		if o.read.ExcludeSamples, err = readSampleList(o.excludeFile); err != nil {
-			return err
-		}
-	}
-	return nil
 }
 
-// readSampleList reads one name per line (first whitespace-separated field),
-// skipping blank lines and lines starting with '#'.
-func readSampleList(path string) ([]string, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, &usageError{err.Error()}
-	}
-	defer f.Close()
-	var names []string
-	sc := bufio.NewScanner(f)
-	for sc.Scan() {
-		fields := strings.Fields(sc.Text())
-		if len(fields) == 0 || strings.HasPrefix(fields[0], "#") {
-			continue
-		}
-		names = append(names, fields[0])
-	}
-	if err := sc.Err(); err != nil {
-		return nil, fmt.Errorf("%s: %w", path, err)
-	}
-	return names, nil
+// Report prints the one-line account of a finished scan into out.
+func (r *Result) Report(w io.Writer, out string, elapsed time.Duration) {
+	fmt.Fprintf(w, "fgauge: %d records read, %d sites kept, %d samples, %s; results in %s\n",
+		r.Read, r.Kept, r.Samples, elapsed.Round(time.Millisecond), out)
 }
 
-// progress draws a bar of compressed bytes read when stderr is a terminal.
-type progress struct {
-	bar  *progressbar.ProgressBar
-	rd   *vcfscan.Reader
-	last time.Time
-}
+// noProgress is the Progress of a run nobody watches.
+type noProgress struct{}
 
-func newProgress(w io.Writer, off bool, rd *vcfscan.Reader) *progress {
-	p := &progress{rd: rd}
-	f, ok := w.(*os.File)
-	if off || !ok || !term.IsTerminal(int(f.Fd())) {
-		return p
-	}
-	_, total := rd.Progress()
-	if total <= 0 {
-		total = -1
-	}
-	p.bar = progressbar.NewOptions64(total,
-		progressbar.OptionSetWriter(w),
-		progressbar.OptionShowBytes(true),
-		progressbar.OptionSetDescription("scanning"),
-		progressbar.OptionThrottle(200*time.Millisecond),
-		progressbar.OptionClearOnFinish(),
-	)
-	return p
-}
-
-func (p *progress) update() {
-	if p.bar == nil || time.Since(p.last) < 100*time.Millisecond {
-		return
-	}
-	p.last = time.Now()
-	done, _ := p.rd.Progress()
-	p.bar.Set64(done)
-}
-
-func (p *progress) finish() {
-	if p.bar != nil {
-		p.bar.Finish()
-	}
-}
+func (noProgress) Start(func() (int64, int64)) {}
+func (noProgress) Update()                     {}
+func (noProgress) Finish()                     {}

@@ -9,104 +9,35 @@ import (
 	"io"
 	"math"
 	"os"
-	"runtime"
 	"sort"
 	"time"
 
-	"fgauge/cmd/fgauge/htmlreport"
+	"fgauge/cmd/fgauge/internal/badinput"
+	"fgauge/cmd/fgauge/internal/outdir"
+	"fgauge/cmd/fgauge/internal/runsummary"
 	"fgauge/roh"
 	"fgauge/stats"
 	"fgauge/vcfscan"
 )
 
-const mergeHelp = `Combines the states written by 'fgauge scan --region ... --state-out FILE'
-into the outputs one scan over the whole input would give: samples.tsv,
-runs.tsv, the population tables and run.json are computed from the merged
-accumulators (sums are exact, so the numbers are identical), and
-sites.tsv.gz is the shards' site tables joined in genome order.
-
-States must come from the same input file (path, size and modification
-time), the same fgauge version, the same samples and the same
-result-changing options, and their regions must not overlap. Chromosomes
-split across shards are joined and their runs of homozygosity detected
-here (their raw data travel in the states; see cmd/fgauge/state.go). Shards
-are put in genome order, the order of the index's references (the file's
-order), whatever the order of the arguments; shards that interleave in that
-order are refused, as their site tables could not be joined.
-
-run.json counts the records in the shards' regions; records the index
-brought in from outside a shard's region are reported under
-"shards" and not as outside_region.
-
-With --check, each state is only verified (header, checksum, site tables)
-and one line per state is printed; the exit status is 2 if any is not
-intact.
-
-The cautions of 'fgauge scan --help' apply to merged results alike: genomic
-F and F_ROH are not a diagnosis, and mating, culling or clinical decisions
-belong to licensed practice under local regulations.
-`
-
-func runMerge(ctx context.Context, env *runEnv, args []string) error {
-	fs := newFlagSet(env.stderr, "merge", "merge -o OUTDIR STATE... | merge --check STATE...", mergeHelp)
-	var out string
-	var force, check, report bool
-	threads := runtime.NumCPU()
-	fs.StringVar(&out, "o", "", "output folder (created if absent)")
-	fs.StringVar(&out, "out", "", "same as -o")
-	fs.BoolVar(&force, "force", false, "overwrite results already in OUTDIR")
-	fs.BoolVar(&check, "check", false, "only verify the states and their site tables")
-	fs.IntVar(&threads, "threads", threads, "detection workers for chromosomes split across shards")
-	fs.BoolVar(&report, "report", false, "also write OUTDIR/report.html")
-	paths, err := parseInterleaved(fs, args)
-	if err != nil {
-		return err
-	}
-	if len(paths) == 0 {
-		return usagef("merge: no state files given")
-	}
-	if threads < 1 {
-		return usagef("merge: --threads must be at least 1")
-	}
-	if check {
-		return checkStates(env, paths)
-	}
-	err = mergeStates(ctx, env, paths, out, force, threads)
-	if err == nil && report {
-		if err := htmlreport.Write(out, htmlreport.Options{}); err != nil {
-			return fmt.Errorf("merge finished, but the report failed: %w", err)
-		}
-	}
-	if err != nil {
-		var ue *usageError
-		if errors.As(err, &ue) || ctx.Err() != nil {
-			return err
-		}
-		if errors.Is(err, errStateCorrupt) || errors.Is(err, errStateMismatch) || errors.Is(err, os.ErrNotExist) {
-			return &usageError{err.Error()}
-		}
-		return err
-	}
-	return nil
-}
-
-// checkStates verifies each state and prints one line per file.
-func checkStates(env *runEnv, paths []string) error {
+// Check verifies each state and its site tables and prints one line per
+// file to w ("ok" or "bad", the path, and the regions or the problem).
+func Check(w io.Writer, paths []string) error {
 	bad := 0
 	for _, p := range paths {
-		st, err := readStateFile(p)
+		st, err := ReadFile(p)
 		if err == nil {
-			err = st.checkSiteTables(p)
+			err = st.CheckSiteTables(p)
 		}
 		if err != nil {
 			bad++
-			fmt.Fprintf(env.stdout, "bad\t%s\t%v\n", p, err)
+			fmt.Fprintf(w, "bad\t%s\t%v\n", p, err)
 			continue
 		}
-		fmt.Fprintf(env.stdout, "ok\t%s\t%s\tfgauge %s\n", p, describeRegions(st), st.Version)
+		fmt.Fprintf(w, "ok\t%s\t%s\tfgauge %s\n", p, DescribeRegions(st), st.Version)
 	}
 	if bad > 0 {
-		return usagef("merge --check: %d of %d states are not intact", bad, len(paths))
+		return badinput.Errorf("merge --check: %d of %d states are not intact", bad, len(paths))
 	}
 	return nil
 }
@@ -114,30 +45,30 @@ func checkStates(env *runEnv, paths []string) error {
 // loadedState is a state and the file it came from.
 type loadedState struct {
 	path string
-	st   *shardState
+	st   *State
 }
 
 // loadStates reads, matches and orders states. Errors name the file and
-// wrap errStateCorrupt or errStateMismatch.
+// wrap ErrCorrupt or ErrMismatch.
 func loadStates(paths []string) ([]loadedState, error) {
 	var ls []loadedState
 	for _, p := range paths {
-		st, err := readStateFile(p)
+		st, err := ReadFile(p)
 		if err != nil {
 			return nil, err
 		}
-		if err := st.checkSiteTables(p); err != nil {
+		if err := st.CheckSiteTables(p); err != nil {
 			return nil, err
 		}
 		if len(ls) > 0 {
-			if why := sameIdentity(ls[0].st, st); why != "" {
-				return nil, fmt.Errorf("%s and %s: %w: %s", ls[0].path, p, errStateMismatch, why)
+			if why := SameIdentity(ls[0].st, st); why != "" {
+				return nil, fmt.Errorf("%s and %s: %w: %s", ls[0].path, p, ErrMismatch, why)
 			}
 			// Sums merge exactly in any order: fold each state into the
 			// first as it is read, so that only one set of per-sample
 			// accumulators besides the total is held at a time.
 			if err := ls[0].st.Totals.Merge(st.Totals); err != nil {
-				return nil, fmt.Errorf("%s: %w: %v", p, errStateMismatch, err)
+				return nil, fmt.Errorf("%s: %w: %v", p, ErrMismatch, err)
 			}
 			st.Totals = nil
 		}
@@ -149,7 +80,7 @@ func loadStates(paths []string) ([]loadedState, error) {
 			rank[n] = i
 		}
 	}
-	key := func(r stateRegion) [2]int64 {
+	key := func(r Region) [2]int64 {
 		k, ok := rank[r.Chrom]
 		if !ok {
 			k = math.MaxInt32
@@ -159,10 +90,10 @@ func loadStates(paths []string) ([]loadedState, error) {
 	less := func(a, b [2]int64) bool { return a[0] < b[0] || (a[0] == b[0] && a[1] < b[1]) }
 	for _, l := range ls {
 		if l.st.WholeFile && len(ls) > 1 {
-			return nil, fmt.Errorf("%s: %w: this state covers the whole input, so it overlaps every other state", l.path, errStateMismatch)
+			return nil, fmt.Errorf("%s: %w: this state covers the whole input, so it overlaps every other state", l.path, ErrMismatch)
 		}
 		if !l.st.WholeFile && len(l.st.Regions) == 0 {
-			return nil, fmt.Errorf("%s: %w: the state names no regions", l.path, errStateCorrupt)
+			return nil, fmt.Errorf("%s: %w: the state names no regions", l.path, ErrCorrupt)
 		}
 		rs := l.st.Regions
 		sort.Slice(rs, func(i, j int) bool { return less(key(rs[i]), key(rs[j])) })
@@ -180,7 +111,7 @@ func loadStates(paths []string) ([]loadedState, error) {
 	ls[0].st.Totals = total // the merged sums of all states
 	// Overlaps, between and within states.
 	type owned struct {
-		r    stateRegion
+		r    Region
 		file string
 	}
 	byChrom := map[string][]owned{}
@@ -193,8 +124,8 @@ func loadStates(paths []string) ([]loadedState, error) {
 		sort.Slice(rs, func(i, j int) bool { return rs[i].r.Start < rs[j].r.Start })
 		for i := 1; i < len(rs); i++ {
 			if rs[i].r.Start <= rs[i-1].r.End {
-				return nil, fmt.Errorf("%s and %s: %w: regions overlap (%s and %s)", rs[i-1].file, rs[i].file, errStateMismatch,
-					describeRegions(&shardState{Regions: []stateRegion{rs[i-1].r}}), describeRegions(&shardState{Regions: []stateRegion{rs[i].r}}))
+				return nil, fmt.Errorf("%s and %s: %w: regions overlap (%s and %s)", rs[i-1].file, rs[i].file, ErrMismatch,
+					DescribeRegions(&State{Regions: []Region{rs[i-1].r}}), DescribeRegions(&State{Regions: []Region{rs[i].r}}))
 			}
 		}
 	}
@@ -204,7 +135,7 @@ func loadStates(paths []string) ([]loadedState, error) {
 		prev := ls[i-1].st.Regions
 		if !less(key(prev[len(prev)-1]), key(ls[i].st.Regions[0])) {
 			return nil, fmt.Errorf("%s and %s: %w: regions interleave in genome order, so their site tables cannot be joined; give each shard one stretch of the genome",
-				ls[i-1].path, ls[i].path, errStateMismatch)
+				ls[i-1].path, ls[i].path, ErrMismatch)
 		}
 	}
 	return ls, nil
@@ -218,7 +149,7 @@ var headerOnceWarnings = map[string]bool{
 
 // merged is the combination of several states.
 type merged struct {
-	first    *shardState
+	first    *State
 	totals   *stats.Totals
 	rres     *roh.Result
 	read     int64 // records in the shards' regions
@@ -301,7 +232,7 @@ func combineROH(ls []loadedState, threads int) (*roh.Result, error) {
 	pieces := map[string][]roh.Piece{}
 	for _, l := range ls {
 		if err := r.Merge(l.st.ROH); err != nil {
-			return nil, fmt.Errorf("%s: %w: %v", l.path, errStateMismatch, err)
+			return nil, fmt.Errorf("%s: %w: %v", l.path, ErrMismatch, err)
 		}
 		for _, p := range l.st.Pieces {
 			if _, ok := pieces[p.Name]; !ok {
@@ -312,7 +243,7 @@ func combineROH(ls []loadedState, threads int) (*roh.Result, error) {
 	}
 	if len(pieceOrder) > 0 {
 		if f.ROHConfig == nil {
-			return nil, fmt.Errorf("%s: %w: pieces of chromosomes without detection settings", ls[0].path, errStateCorrupt)
+			return nil, fmt.Errorf("%s: %w: pieces of chromosomes without detection settings", ls[0].path, ErrCorrupt)
 		}
 		cfg := *f.ROHConfig
 		cfg.Threads = threads
@@ -330,7 +261,7 @@ func combineROH(ls []loadedState, threads int) (*roh.Result, error) {
 		}
 		for _, c := range joined.Chroms {
 			if have[c.Name] {
-				return nil, fmt.Errorf("%w: chromosome %s is held whole by one shard and in part by another", errStateMismatch, c.Name)
+				return nil, fmt.Errorf("%w: chromosome %s is held whole by one shard and in part by another", ErrMismatch, c.Name)
 			}
 		}
 		r.Chroms = append(r.Chroms, joined.Chroms...)
@@ -355,56 +286,75 @@ func combineROH(ls []loadedState, threads int) (*roh.Result, error) {
 	return r, nil
 }
 
-func mergeStates(ctx context.Context, env *runEnv, paths []string, outDir string, force bool, threads int) (err error) {
+// MergeConfig says which states to merge and where to write the outputs.
+type MergeConfig struct {
+	States      []string // state files, in any order
+	Out         string   // output folder
+	Force       bool     // overwrite results already in Out
+	Threads     int      // detection workers for chromosomes split across shards
+	Version     string   // fgauge version, for run.json
+	CommandLine []string // for run.json
+	Stderr      io.Writer
+}
+
+// MergeResult counts what a merge combined.
+type MergeResult struct {
+	States     int
+	Read, Kept int64 // records in the shards' regions, sites kept
+	Samples    int
+}
+
+// Merge reads, checks and orders the states, and writes into cfg.Out the
+// outputs one scan over the whole input would have written. Errors about
+// the states wrap ErrCorrupt or ErrMismatch and name the file.
+func Merge(ctx context.Context, cfg MergeConfig) (res *MergeResult, err error) {
 	start := time.Now()
-	ls, err := loadStates(paths)
+	ls, err := loadStates(cfg.States)
 	if err != nil {
-		return err
+		return nil, err
 	}
-	m, err := combine(ls, threads)
+	m, err := combine(ls, cfg.Threads)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	if ctx.Err() != nil {
-		return ctx.Err()
+		return nil, ctx.Err()
 	}
-	out, err := newStagedDir(outDir, force)
+	out, err := outdir.New(cfg.Out, cfg.Force)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	defer func() {
 		if err != nil {
 			out.Abort()
 		}
 	}()
-	if err := joinSiteTables(out, "sites.tsv.gz", ls, func(s *shardState) string { return s.SitesFile }); err != nil {
-		return err
+	if err := joinSiteTables(out, "sites.tsv.gz", ls, func(s *State) string { return s.SitesFile }); err != nil {
+		return nil, err
 	}
 	if m.totals.HasPopulations() {
-		if err := joinSiteTables(out, "sites_by_population.tsv.gz", ls, func(s *shardState) string { return s.PopSitesFile }); err != nil {
-			return err
+		if err := joinSiteTables(out, "sites_by_population.tsv.gz", ls, func(s *State) string { return s.PopSitesFile }); err != nil {
+			return nil, err
 		}
 	}
-	if err := writeTables(out, m.totals, m.rres, m.first.Pedigree); err != nil {
-		return err
+	if err := outdir.WriteTables(out, m.totals, m.rres, m.first.Pedigree); err != nil {
+		return nil, err
 	}
-	if err := writeJSON(out, "run.json", mergeRunInfo(env, ls, m, start)); err != nil {
-		return err
+	if err := outdir.WriteJSON(out, "run.json", mergeRunInfo(&cfg, ls, m, start)); err != nil {
+		return nil, err
 	}
 	if ctx.Err() != nil {
-		return ctx.Err()
+		return nil, ctx.Err()
 	}
 	if err := out.Commit(); err != nil {
-		return err
+		return nil, err
 	}
-	fmt.Fprintf(env.stderr, "fgauge: merged %d shard states: %d records, %d sites kept, %d samples, %s; results in %s\n",
-		len(ls), m.read, m.kept, len(m.first.Samples), time.Since(start).Round(time.Millisecond), outDir)
-	return nil
+	return &MergeResult{States: len(ls), Read: m.read, Kept: m.kept, Samples: len(m.first.Samples)}, nil
 }
 
-// mergeRunInfo builds run.json as one pass would (runSummary) from the
-// merged counts, plus a "shards" section.
-func mergeRunInfo(env *runEnv, ls []loadedState, m *merged, start time.Time) map[string]any {
+// mergeRunInfo builds run.json as one pass would (runsummary.Build) from
+// the merged counts, plus a "shards" section.
+func mergeRunInfo(cfg *MergeConfig, ls []loadedState, m *merged, start time.Time) map[string]any {
 	f := m.first
 	t := m.totals
 	unlisted := []string{}
@@ -413,15 +363,15 @@ func mergeRunInfo(env *runEnv, ls []loadedState, m *merged, start time.Time) map
 			unlisted = append(unlisted, t.Samples[i])
 		}
 	}
-	facts := &runFacts{argv: env.argv, inputPath: f.InputPath, inputSize: f.InputSize, inputFormat: f.InputFormat,
-		read: m.read, kept: m.kept, skipped: m.skipped, masked: m.masked,
-		samplesInFile: f.SamplesInFile, samples: f.Samples, warnings: m.warnings,
-		unlisted: unlisted, wallSeconds: time.Since(start).Seconds()}
-	info := runSummary(env.stderr, facts, t, m.rres)
+	facts := &runsummary.Facts{Version: cfg.Version, Argv: cfg.CommandLine, InputPath: f.InputPath, InputSize: f.InputSize, InputFormat: f.InputFormat,
+		Read: m.read, Kept: m.kept, Skipped: m.skipped, Masked: m.masked,
+		SamplesInFile: f.SamplesInFile, Samples: f.Samples, Warnings: m.warnings,
+		Unlisted: unlisted, WallSeconds: time.Since(start).Seconds()}
+	info := runsummary.Build(cfg.Stderr, facts, t, m.rres)
 	var files, regions []string
 	for _, l := range ls {
 		files = append(files, l.path)
-		regions = append(regions, describeRegions(l.st))
+		regions = append(regions, DescribeRegions(l.st))
 	}
 	info["shards"] = map[string]any{
 		"count": len(ls), "states": files, "regions": regions,
@@ -441,9 +391,9 @@ var bgzfEOFBlock = []byte{
 // scan --state-out writes it.
 var errBGZFShape = errors.New("site table is not a BGZF file with its header in the first block")
 
-// bgzfBlockSize returns the total size of the BGZF block starting at b
+// BGZFBlockSize returns the total size of the BGZF block starting at b
 // (SAM spec 4.1: BSIZE in the BC extra subfield is the block size minus 1).
-func bgzfBlockSize(b []byte) (int, bool) {
+func BGZFBlockSize(b []byte) (int, bool) {
 	if len(b) < 18 || b[0] != 0x1f || b[1] != 0x8b || b[2] != 8 || b[3]&4 == 0 {
 		return 0, false
 	}
@@ -469,14 +419,14 @@ func bgzfBlockSize(b []byte) (int, bool) {
 // shard's data blocks (all blocks but the header block and the EOF
 // block), then the EOF block: a BGZF file whose text is the header line
 // followed by the shards' rows in genome order.
-func joinSiteTables(out *stagedDir, name string, ls []loadedState, file func(*shardState) string) error {
+func joinSiteTables(out *outdir.Dir, name string, ls []loadedState, file func(*State) string) error {
 	dst, err := out.Create(name)
 	if err != nil {
 		return err
 	}
 	defer dst.Close()
 	for i, l := range ls {
-		p := siteTablePath(l.path, file(l.st))
+		p := SiteTablePath(l.path, file(l.st))
 		f, err := os.Open(p)
 		if err != nil {
 			return fmt.Errorf("%s: %w", l.path, err)
@@ -488,7 +438,7 @@ func joinSiteTables(out *stagedDir, name string, ls []loadedState, file func(*sh
 		}
 		head := make([]byte, 64)
 		n, _ := io.ReadFull(f, head)
-		hsize, ok := bgzfBlockSize(head[:n])
+		hsize, ok := BGZFBlockSize(head[:n])
 		tail := make([]byte, len(bgzfEOFBlock))
 		if ok && st.Size() >= int64(hsize+len(tail)) {
 			_, err = f.ReadAt(tail, st.Size()-int64(len(tail)))

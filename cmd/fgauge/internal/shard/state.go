@@ -1,5 +1,5 @@
-package shard
-
+// Package shard is the shard state format and the merge of shard states.
+//
 // Shard states: what `fgauge scan --state-out FILE` writes so that
 // `fgauge merge` can produce the outputs of one pass over the whole input.
 //
@@ -9,7 +9,7 @@ package shard
 //	bytes 8-11   format version (stateFormat)
 //	bytes 12-19  payload length in bytes
 //	bytes 20-51  SHA-256 of the payload
-//	bytes 52-    payload: a zstd frame holding the gob encoding of shardState
+//	bytes 52-    payload: a zstd frame holding the gob encoding of State
 //
 // A file whose magic, version, length or checksum do not match is rejected
 // before anything in it is decoded.
@@ -25,6 +25,7 @@ package shard
 // chromosome) and needs margin sizes tuned per data set; raw data cost
 // about N*S/4 bytes per split piece (N samples, S sites), which the plan
 // keeps small by splitting only chromosomes larger than a shard.
+package shard
 
 import (
 	"bytes"
@@ -45,6 +46,7 @@ import (
 
 	"github.com/klauspost/compress/zstd"
 
+	"fgauge/cmd/fgauge/internal/badinput"
 	"fgauge/roh"
 	"fgauge/stats"
 	"fgauge/vcfscan"
@@ -58,19 +60,19 @@ const (
 
 // Errors of reading and matching shard states; test with errors.Is.
 var (
-	errStateCorrupt  = errors.New("not a valid shard state (corrupt, truncated or not a state file)")
-	errStateMismatch = errors.New("shard states do not belong to one run")
+	ErrCorrupt  = errors.New("not a valid shard state (corrupt, truncated or not a state file)")
+	ErrMismatch = errors.New("shard states do not belong to one run")
 )
 
-// stateRegion is one region of a shard, 1-based inclusive; End is
+// Region is one region of a shard, 1-based inclusive; End is
 // math.MaxInt64 for "to the end of the chromosome".
-type stateRegion struct {
+type Region struct {
 	Chrom      string
 	Start, End int64
 }
 
-// shardState is everything one shard contributes to a merged result.
-type shardState struct {
+// State is everything one shard contributes to a merged result.
+type State struct {
 	Format  int
 	Version string
 
@@ -89,7 +91,7 @@ type shardState struct {
 
 	// WholeFile is set when the shard read the whole input (no regions).
 	WholeFile bool
-	Regions   []stateRegion
+	Regions   []Region
 
 	Read     int64
 	Kept     int64
@@ -111,8 +113,8 @@ type shardState struct {
 	WallSeconds float64
 }
 
-// writeStateFile writes st atomically (temporary file, then rename).
-func writeStateFile(path string, st *shardState) error {
+// WriteFile writes st atomically (temporary file, then rename).
+func WriteFile(path string, st *State) error {
 	var gb bytes.Buffer
 	if err := gob.NewEncoder(&gb).Encode(st); err != nil {
 		return fmt.Errorf("encoding shard state: %w", err)
@@ -151,15 +153,15 @@ func writeStateFile(path string, st *shardState) error {
 	return os.Rename(tmp.Name(), path)
 }
 
-// readStateFile reads and checks a state file. Errors name the file and
-// wrap errStateCorrupt for anything that is not an intact state.
-func readStateFile(path string) (*shardState, error) {
+// ReadFile reads and checks a state file. Errors name the file and
+// wrap ErrCorrupt for anything that is not an intact state.
+func ReadFile(path string) (*State, error) {
 	raw, err := os.ReadFile(path)
 	if err != nil {
-		return nil, &usageError{err.Error()}
+		return nil, badinput.Wrap(err)
 	}
 	bad := func(format string, a ...any) error {
-		return fmt.Errorf("%s: %w: %s", path, errStateCorrupt, fmt.Sprintf(format, a...))
+		return fmt.Errorf("%s: %w: %s", path, ErrCorrupt, fmt.Sprintf(format, a...))
 	}
 	if len(raw) < stateHead || string(raw[:8]) != stateMagic {
 		return nil, bad("no shard-state header")
@@ -184,7 +186,7 @@ func readStateFile(path string) (*shardState, error) {
 	if err != nil {
 		return nil, bad("payload does not decompress: %v", err)
 	}
-	st := &shardState{}
+	st := &State{}
 	if err := gob.NewDecoder(bytes.NewReader(gb)).Decode(st); err != nil {
 		return nil, bad("payload does not decode: %v", err)
 	}
@@ -194,34 +196,34 @@ func readStateFile(path string) (*shardState, error) {
 	return st, nil
 }
 
-// siteTablePath resolves a site table path stored in the state at statePath.
-func siteTablePath(statePath, p string) string {
+// SiteTablePath resolves a site table path stored in the state at statePath.
+func SiteTablePath(statePath, p string) string {
 	if p == "" || filepath.IsAbs(p) {
 		return p
 	}
 	return filepath.Join(filepath.Dir(statePath), p)
 }
 
-// checkSiteTables verifies that the shard's site tables exist and match
+// CheckSiteTables verifies that the shard's site tables exist and match
 // the checksums recorded in its state.
-func (st *shardState) checkSiteTables(statePath string) error {
+func (st *State) CheckSiteTables(statePath string) error {
 	for _, f := range [][2]string{{st.SitesFile, st.SitesSHA256}, {st.PopSitesFile, st.PopSHA256}} {
 		if f[0] == "" {
 			continue
 		}
-		p := siteTablePath(statePath, f[0])
-		sum, err := fileSHA256(p)
+		p := SiteTablePath(statePath, f[0])
+		sum, err := FileSHA256(p)
 		if err != nil {
 			return fmt.Errorf("%s: site table of this shard: %w", statePath, err)
 		}
 		if sum != f[1] {
-			return fmt.Errorf("%s: %w: site table %s changed since the state was written (checksum differs)", statePath, errStateCorrupt, p)
+			return fmt.Errorf("%s: %w: site table %s changed since the state was written (checksum differs)", statePath, ErrCorrupt, p)
 		}
 	}
 	return nil
 }
 
-func fileSHA256(path string) (string, error) {
+func FileSHA256(path string) (string, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return "", err
@@ -234,8 +236,8 @@ func fileSHA256(path string) (string, error) {
 	return fmt.Sprintf("%x", h.Sum(nil)), nil
 }
 
-// relTo returns target relative to the folder of statePath when possible.
-func relTo(statePath, target string) string {
+// RelTo returns target relative to the folder of statePath when possible.
+func RelTo(statePath, target string) string {
 	sd, err1 := filepath.Abs(filepath.Dir(statePath))
 	ta, err2 := filepath.Abs(target)
 	if err1 != nil || err2 != nil {
@@ -255,15 +257,15 @@ var scanFlagsIgnored = map[string]bool{
 	"max-line-bytes": true, "max-samples": true, "max-alleles": true, "max-block-bytes": true,
 }
 
-// scanFlagsFiles are scan options naming files whose content matters.
-var scanFlagsFiles = map[string]bool{
+// ScanFlagsFiles are scan options naming files whose content matters.
+var ScanFlagsFiles = map[string]bool{
 	"samples": true, "exclude-samples": true, "populations": true, "freqs": true,
 	"recombination-map": true, "pedigree": true,
 }
 
-// optionFingerprint lists every result-changing option of fs as
+// OptionFingerprint lists every result-changing option of fs as
 // "name=value" (defaults included, files by SHA-256 of their content).
-func optionFingerprint(fs *flag.FlagSet) ([]string, error) {
+func OptionFingerprint(fs *flag.FlagSet) ([]string, error) {
 	var out []string
 	var err error
 	fs.VisitAll(func(f *flag.Flag) {
@@ -271,10 +273,10 @@ func optionFingerprint(fs *flag.FlagSet) ([]string, error) {
 			return
 		}
 		v := f.Value.String()
-		if scanFlagsFiles[f.Name] && v != "" {
-			sum, e := fileSHA256(v)
+		if ScanFlagsFiles[f.Name] && v != "" {
+			sum, e := FileSHA256(v)
 			if e != nil {
-				err = usagef("--%s: %v", f.Name, e)
+				err = badinput.Errorf("--%s: %v", f.Name, e)
 				return
 			}
 			v = "sha256:" + sum
@@ -285,9 +287,9 @@ func optionFingerprint(fs *flag.FlagSet) ([]string, error) {
 	return out, err
 }
 
-// shardRegions normalises the regions of a shard.
-func shardRegions(regs []vcfscan.Region) []stateRegion {
-	out := make([]stateRegion, 0, len(regs))
+// NormalizeRegions normalises the regions of a shard.
+func NormalizeRegions(regs []vcfscan.Region) []Region {
+	out := make([]Region, 0, len(regs))
 	for _, r := range regs {
 		s, e := r.Start, r.End
 		if s < 1 {
@@ -296,7 +298,7 @@ func shardRegions(regs []vcfscan.Region) []stateRegion {
 		if e <= 0 {
 			e = math.MaxInt64
 		}
-		out = append(out, stateRegion{r.Chrom, s, e})
+		out = append(out, Region{r.Chrom, s, e})
 	}
 	sort.Slice(out, func(i, j int) bool {
 		if out[i].Chrom != out[j].Chrom {
@@ -307,9 +309,9 @@ func shardRegions(regs []vcfscan.Region) []stateRegion {
 	return out
 }
 
-// wholeChroms returns the chromosomes a shard holds entirely: those with a
+// WholeChroms returns the chromosomes a shard holds entirely: those with a
 // region from 1 to the end (or to the header length).
-func wholeChroms(regs []stateRegion, contigs []vcfscan.Contig) map[string]bool {
+func WholeChroms(regs []Region, contigs []vcfscan.Contig) map[string]bool {
 	length := map[string]int64{}
 	for _, c := range contigs {
 		length[c.Name] = c.Length
@@ -323,11 +325,11 @@ func wholeChroms(regs []stateRegion, contigs []vcfscan.Contig) map[string]bool {
 	return whole
 }
 
-// inputIdentity returns the absolute path, size and modification time of
+// InputIdentity returns the absolute path, size and modification time of
 // the input.
-func inputIdentity(path string) (abs string, size, mod int64, err error) {
+func InputIdentity(path string) (abs string, size, mod int64, err error) {
 	if path == "-" {
-		return "", 0, 0, usagef("--state-out needs an input file, not standard input")
+		return "", 0, 0, badinput.Errorf("--state-out needs an input file, not standard input")
 	}
 	st, err := os.Stat(path)
 	if err != nil {
@@ -337,10 +339,10 @@ func inputIdentity(path string) (abs string, size, mod int64, err error) {
 	return abs, st.Size(), st.ModTime().Unix(), err
 }
 
-// shardSink routes a shard's batches to the ROH collector (records of
+// Sink routes a shard's batches to the ROH collector (records of
 // chromosomes the shard holds whole) and to the piece collector (records
 // of chromosomes it holds in part).
-type shardSink struct {
+type Sink struct {
 	rc     *roh.Collector
 	pc     *roh.PieceCollector
 	split  func(id int) bool
@@ -350,7 +352,7 @@ type shardSink struct {
 }
 
 // AddBatch splits b by chromosome into the two collectors.
-func (s *shardSink) AddBatch(b *vcfscan.Batch, freqs []float64) error {
+func (s *Sink) AddBatch(b *vcfscan.Batch, freqs []float64) error {
 	nAll := 0
 	for i := range b.Records {
 		if s.split(b.Records[i].ChromID) {
@@ -397,9 +399,9 @@ func (s *shardSink) AddBatch(b *vcfscan.Batch, freqs []float64) error {
 	return s.pc.AddBatch(&s.pieces, pf)
 }
 
-// sameIdentity reports the first way in which b differs from a as a run,
+// SameIdentity reports the first way in which b differs from a as a run,
 // or "" when they belong to the same run.
-func sameIdentity(a, b *shardState) string {
+func SameIdentity(a, b *State) string {
 	switch {
 	case a.Version != b.Version:
 		return fmt.Sprintf("fgauge versions differ (%s, %s)", a.Version, b.Version)
@@ -422,8 +424,8 @@ func sameIdentity(a, b *shardState) string {
 	return ""
 }
 
-// describeRegions renders a shard's regions for messages.
-func describeRegions(st *shardState) string {
+// DescribeRegions renders a shard's regions for messages.
+func DescribeRegions(st *State) string {
 	if st.WholeFile {
 		return "the whole input"
 	}
@@ -438,11 +440,11 @@ func describeRegions(st *shardState) string {
 	return strings.Join(parts, ",")
 }
 
-// buildVersion is the version of this fgauge as recorded in states: the
+// BuildVersion is the version of this fgauge as recorded in states: the
 // release version plus, when the binary was built from a version-control
 // checkout, its revision (and "-modified" for uncommitted changes), so
 // that shards of one run come from one build.
-func buildVersion() string {
+func BuildVersion(version string) string {
 	v := version
 	bi, ok := debug.ReadBuildInfo()
 	if !ok {
@@ -468,223 +470,21 @@ func buildVersion() string {
 	return v
 }
 
-// shardFlags are the scan options of sharded runs.
-type shardFlags struct {
-	stateOut  string
-	skipValid bool
-	fs        *flag.FlagSet
-
-	pc          *roh.PieceCollector
-	contigOrder []string // genome order: see genomeOrder
-	input       string
-	nHeader     int // contigs in the header at open
-}
-
-func addShardFlags(fs *flag.FlagSet) *shardFlags {
-	f := &shardFlags{fs: fs}
-	fs.StringVar(&f.stateOut, "state-out", "", "write this shard's mergeable state to `FILE` (for 'fgauge merge'); OUTDIR then gets the shard's site tables and run.json only")
-	fs.BoolVar(&f.skipValid, "skip-if-valid-state", false, "with --state-out: do nothing when FILE already holds an intact state of this same shard (for re-running batch scripts)")
-	return f
-}
-
-// on reports whether this scan writes a shard state.
-func (f *shardFlags) on() bool { return f != nil && f.stateOut != "" }
-
-// identity fills the identity fields of a state for this scan.
-func (f *shardFlags) identity(o *scanOptions) (*shardState, error) {
-	abs, size, mod, err := inputIdentity(o.input)
+// NewIdentity returns a state holding only the identity of a shard: this
+// build's version, the input file, the result-changing options
+// (OptionFingerprint) and the shard's regions.
+func NewIdentity(version, input string, options []string, regs []vcfscan.Region) (*State, error) {
+	abs, size, mod, err := InputIdentity(input)
 	if err != nil {
 		return nil, err
 	}
-	opts, err := optionFingerprint(f.fs)
-	if err != nil {
-		return nil, err
-	}
-	st := &shardState{Format: stateFormat, Version: buildVersion(), InputPath: o.input, InputAbs: abs,
-		InputSize: size, InputModUnix: mod, Options: opts, WholeFile: len(o.read.Regions) == 0,
-		Regions: shardRegions(o.read.Regions)}
-	return st, nil
+	return &State{Format: stateFormat, Version: BuildVersion(version), InputPath: input, InputAbs: abs,
+		InputSize: size, InputModUnix: mod, Options: options, WholeFile: len(regs) == 0,
+		Regions: NormalizeRegions(regs)}, nil
 }
 
-// skipIfValid reports whether --skip-if-valid-state applies: the state
-// file exists, is intact, was written for the same input, options and
-// regions by this version, and its site tables are unchanged.
-//
-// It also sets what reading a shard needs: a record belongs to the region
-// holding its POS, so that adjacent shards never both count a deletion
-// that spans their boundary.
-func (f *shardFlags) skipIfValid(env *runEnv, o *scanOptions) (bool, error) {
-	if f.on() {
-		f.input = o.input
-		o.read.RegionsByStart = true
-		if o.report {
-			return false, usagef("--report needs the tables of a whole run: run 'fgauge report' on the output of 'fgauge merge'")
-		}
-		if o.input == "-" {
-			return false, usagef("--state-out needs an input file (its identity is part of the state), not standard input")
-		}
-	}
-	if !f.on() {
-		if f != nil && f.skipValid {
-			return false, usagef("--skip-if-valid-state needs --state-out")
-		}
-		return false, nil
-	}
-	if !f.skipValid {
-		return false, nil
-	}
-	if _, err := os.Stat(f.stateOut); err != nil {
-		return false, nil
-	}
-	old, err := readStateFile(f.stateOut)
-	if err != nil {
-		fmt.Fprintf(env.stderr, "fgauge: %v; scanning the shard again\n", err)
-		return false, nil
-	}
-	want, err := f.identity(o)
-	if err != nil {
-		return false, err
-	}
-	want.SamplesInFile, want.Samples, want.ContigOrder = old.SamplesInFile, old.Samples, old.ContigOrder
-	want.ROH = old.ROH
-	if why := sameIdentity(want, old); why != "" || want.WholeFile != old.WholeFile || !slices.Equal(want.Regions, old.Regions) {
-		if why == "" {
-			why = "regions differ"
-		}
-		fmt.Fprintf(env.stderr, "fgauge: %s holds a state of another run (%s); scanning the shard again\n", f.stateOut, why)
-		return false, nil
-	}
-	if err := old.checkSiteTables(f.stateOut); err != nil {
-		fmt.Fprintf(env.stderr, "fgauge: %v; scanning the shard again\n", err)
-		return false, nil
-	}
-	fmt.Fprintf(env.stderr, "fgauge: %s already holds this shard's state; skipped\n", f.stateOut)
-	return true, nil
-}
-
-// separateHeader puts the header lines of the site tables in blocks of
-// their own, so that merge can concatenate the shards' blocks without them.
-func (f *shardFlags) separateHeader(ws ...*vcfscan.BGZFWriter) error {
-	if !f.on() {
-		return nil
-	}
-	for _, w := range ws {
-		if w != nil {
-			if err := w.Flush(); err != nil {
-				return err
-			}
-		}
-	}
-	return nil
-}
-
-// genomeOrder is the order merge puts shards and chromosomes in: the
-// references of the index (the order of the file for tabix, whose names
-// are listed as first met), then header contigs the index lacks; without
-// an index (a shard of the whole file), the header's contig order.
-func genomeOrder(input string, contigs []vcfscan.Contig, regs []vcfscan.Region) []string {
-	var order []string
-	seen := map[string]bool{}
-	if len(regs) > 0 {
-		hdr := &vcfscan.Header{Contigs: contigs}
-		if refs, err := readIndexRefs(input, hdr); err == nil {
-			for _, r := range refs {
-				if !seen[r.name] {
-					seen[r.name] = true
-					order = append(order, r.name)
-				}
-			}
-		}
-	}
-	for _, c := range contigs {
-		if !seen[c.Name] {
-			seen[c.Name] = true
-			order = append(order, c.Name)
-		}
-	}
-	return order
-}
-
-// batchSink receives batches in input order (the ROH collector, or a
-// shardSink in front of it).
-type batchSink interface {
-	AddBatch(b *vcfscan.Batch, freqs []float64) error
-}
-
-// sink returns what the ordered stage feeds: nil without ROH, rc for a
-// plain scan, and for a shard a router that keeps chromosomes held in
-// part as raw pieces.
-func (f *shardFlags) sink(rc *roh.Collector, cfg *roh.Config, samples []string, contigs []vcfscan.Contig, regs []vcfscan.Region) (batchSink, error) {
-	f.contigOrder = genomeOrder(f.input, contigs, regs)
-	f.nHeader = len(contigs)
-	if rc == nil {
-		return nil, nil
-	}
-	if !f.on() || len(regs) == 0 {
-		return rc, nil
-	}
-	pc, err := roh.NewPieceCollector(cfg, len(samples))
-	if err != nil {
-		return nil, err
-	}
-	f.pc = pc
-	whole := wholeChroms(shardRegions(regs), contigs)
-	names := make([]string, len(contigs))
-	for i, c := range contigs {
-		names[i] = c.Name
-	}
-	split := func(id int) bool {
-		// Contigs first met in records (absent from the header) have no
-		// name yet; they are kept as pieces, which is always exact.
-		return id >= len(names) || !whole[names[id]]
-	}
-	return &shardSink{rc: rc, pc: pc, split: split}, nil
-}
-
-// writeState writes the shard state after the shard's OUTDIR is committed.
-func (f *shardFlags) writeState(o *scanOptions, rd *vcfscan.Reader, counts *vcfscan.Batch, kept int64,
-	samples []string, totals *stats.Totals, rcfg *roh.Config, rres *roh.Result, ped []string, wall float64) error {
-	st, err := f.identity(o)
-	if err != nil {
-		return err
-	}
-	st.InputFormat = rd.Format().String()
-	st.SamplesInFile = rd.Header().Samples
-	st.Samples = samples
-	st.ContigOrder = f.contigOrder
-	for _, c := range rd.Header().Contigs[f.nHeader:] {
-		st.ExtraContigs = append(st.ExtraContigs, c.Name)
-	}
-	st.Read, st.Kept, st.Masked = counts.Read, kept, counts.Masked
-	st.Skipped = counts.Skipped[:]
-	st.Warnings = rd.Warnings()
-	st.Totals, st.ROH, st.ROHConfig, st.Pedigree = totals, rres, rcfg, ped
-	if f.pc != nil {
-		pieces, excl := f.pc.Pieces(rd.Header().Contigs)
-		st.Pieces = pieces
-		if rres.Excluded == nil {
-			rres.Excluded = map[string]int64{}
-		}
-		for k, v := range excl {
-			rres.Excluded[k] += v
-		}
-	}
-	if st.ROHConfig != nil {
-		c := *st.ROHConfig
-		c.Threads = 0
-		st.ROHConfig = &c
-	}
-	sites := filepath.Join(o.out, "sites.tsv.gz")
-	st.SitesFile = relTo(f.stateOut, sites)
-	if st.SitesSHA256, err = fileSHA256(sites); err != nil {
-		return err
-	}
-	if pop := filepath.Join(o.out, "sites_by_population.tsv.gz"); totals.HasPopulations() {
-		st.PopSitesFile = relTo(f.stateOut, pop)
-		if st.PopSHA256, err = fileSHA256(pop); err != nil {
-			return err
-		}
-	}
-	st.WallSeconds = wall
-	return writeStateFile(f.stateOut, st)
+// NewSink returns a Sink that sends the records of chromosomes for which
+// split reports true to pc and the others to rc.
+func NewSink(rc *roh.Collector, pc *roh.PieceCollector, split func(chromID int) bool) *Sink {
+	return &Sink{rc: rc, pc: pc, split: split}
 }
