@@ -66,17 +66,19 @@ func runMerge(ctx context.Context, env *runEnv, args []string) error {
 		return shard.Check(env.stdout, paths)
 	}
 	start := time.Now()
-	res, err := shard.Merge(ctx, shard.MergeConfig{States: paths, Out: out, Force: force, Threads: threads,
-		Version: version, CommandLine: env.argv, Stderr: env.stderr})
-	if err == nil {
-		fmt.Fprintf(env.stderr, "fgauge: merged %d shard states: %d records, %d sites kept, %d samples, %s; results in %s\n",
-			res.States, res.Read, res.Kept, res.Samples, time.Since(start).Round(time.Millisecond), out)
-	}
-	if err == nil && report {
-		if err := htmlreport.Write(out, htmlreport.Options{}); err != nil {
-			return fmt.Errorf("merge finished, but the report failed: %w", err)
-		}
-	}
+	_, err = shard.Merge(ctx, shard.MergeConfig{States: paths, Out: out, Force: force, Threads: threads,
+		Version: version, CommandLine: env.argv, Stderr: env.stderr,
+		AfterCommit: func(res *shard.MergeResult) error {
+			fmt.Fprintf(env.stderr, "fgauge: merged %d shard states: %d records, %d sites kept, %d samples, %s; results in %s\n",
+				res.States, res.Read, res.Kept, res.Samples, time.Since(start).Round(time.Millisecond), out)
+			if !report {
+				return nil
+			}
+			if err := htmlreport.Write(out, htmlreport.Options{}); err != nil {
+				return fmt.Errorf("merge finished, but the report failed: %w", err)
+			}
+			return nil
+		}})
 	if err != nil {
 		var ue *usageError
 		if errors.As(err, &ue) || ctx.Err() != nil {

@@ -173,14 +173,17 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) error {
 			return err
 		}
 	}
+	if o.report {
+		cfg.AfterCommit = func(out string) error {
+			if err := htmlreport.Write(out, htmlreport.Options{}); err != nil {
+				return fmt.Errorf("scan finished, but the report failed: %w", err)
+			}
+			return nil
+		}
+	}
 	res, err := scanrun.Run(ctx, cfg)
 	if err != nil || res.Skipped {
 		return err
-	}
-	if o.report {
-		if err := htmlreport.Write(o.out, htmlreport.Options{}); err != nil {
-			return fmt.Errorf("scan finished, but the report failed: %w", err)
-		}
 	}
 	res.Report(env.stderr, o.out, time.Since(start))
 	return nil

@@ -12,18 +12,25 @@ package badinput
 import "fmt"
 
 // Error is a problem with the command line or an input file; its message
-// is shown to the user as is.
-type Error struct{ Msg string }
+// is shown to the user as is. Err, when set, is the sentinel or cause it
+// wraps (for errors.Is).
+type Error struct {
+	Msg string
+	Err error
+}
 
 func (e *Error) Error() string { return e.Msg }
 
+// Unwrap returns the wrapped error, if any.
+func (e *Error) Unwrap() error { return e.Err }
+
 // Errorf formats a bad-input error.
-func Errorf(format string, a ...any) error { return &Error{fmt.Sprintf(format, a...)} }
+func Errorf(format string, a ...any) error { return &Error{Msg: fmt.Sprintf(format, a...)} }
 
 // Wrap returns err's message as a bad-input error (nil for nil).
 func Wrap(err error) error {
 	if err == nil {
 		return nil
 	}
-	return &Error{err.Error()}
+	return &Error{Msg: err.Error(), Err: err}
 }

@@ -113,10 +113,6 @@ func Run(ctx context.Context, cfg Config) error {
 	if err := ctx.Err(); err != nil {
 		return err
 	}
-	if scanErr == nil {
-		// The cohort report plus one printable page per animal.
-		scanErr = htmlreport.Write(scanDir, htmlreport.Options{PerSample: true})
-	}
 	fpedOf := map[string]float64{}
 	truthOf := map[string]float64{}
 	for _, s := range res.Samples {
@@ -511,7 +507,10 @@ func scan(ctx context.Context, cfg *Config, vcfPath, scanDir, popPath, pedPath s
 		Stats:    scanrun.StatsSettings{HWEMethod: "exact", Populations: pops, PopulationsFile: popPath, MinCallRate: 0.9, JackknifeBlockMB: 5},
 		ROH:      rohCfg,
 		Pedigree: ped,
-		Version:  cfg.Version, CommandLine: cfg.CommandLine, Stderr: cfg.Stderr,
+		// The cohort report plus one printable page per animal, written
+		// while the scan still holds the folder.
+		AfterCommit: func(out string) error { return htmlreport.Write(out, htmlreport.Options{PerSample: true}) },
+		Version:     cfg.Version, CommandLine: cfg.CommandLine, Stderr: cfg.Stderr,
 	})
 	if err != nil {
 		return err

@@ -21,6 +21,9 @@ var Names = []string{
 	"populations.tsv", "populations_pairwise.tsv", "run.json", "report.html", "samples",
 }
 
+// stagingPrefix starts the name of the hidden staging folder in OUTDIR.
+const stagingPrefix = ".fgauge-tmp-"
+
 // Dir collects the outputs of one run in a hidden temporary folder
 // inside OUTDIR and moves them into place only when the whole run has
 // succeeded, so a failed or interrupted run leaves no half-written result.
@@ -29,10 +32,13 @@ type Dir struct {
 	tmp     string // OUTDIR/.fgauge-tmp-*
 	created bool   // OUTDIR did not exist before the run
 	files   []string
+	lock    *folderLock
 }
 
-// New prepares OUTDIR. It refuses an OUTDIR that already holds
-// results unless force is set.
+// New prepares OUTDIR and locks it for this run. It refuses an OUTDIR that
+// already holds results unless force is set, and an OUTDIR that another
+// run holds (an error wrapping ErrBusy and naming the folder). Call Close
+// (or Abort) when done.
 func New(dir string, force bool) (*Dir, error) {
 	if dir == "" {
 		return nil, badinput.Errorf("an output folder is required (-o OUTDIR)")
@@ -49,17 +55,30 @@ func New(dir string, force bool) (*Dir, error) {
 		return nil, fmt.Errorf("output folder: %w", err)
 	case !st.IsDir():
 		return nil, badinput.Errorf("%s exists and is not a folder", dir)
-	default:
-		if !force {
-			for _, n := range Names {
-				if _, err := os.Stat(filepath.Join(dir, n)); err == nil {
-					return nil, badinput.Errorf("%s already holds results (%s); choose another folder or add --force to overwrite", dir, n)
-				}
+	}
+	if s.lock, err = lockFolder(dir); err != nil {
+		s.removeCreated()
+		return nil, err
+	}
+	// Staging folders of runs killed before they could clean up: nobody
+	// else can be using them while we hold the lock.
+	if old, _ := filepath.Glob(filepath.Join(dir, stagingPrefix+"*")); len(old) > 0 {
+		for _, p := range old {
+			os.RemoveAll(p)
+		}
+	}
+	if !s.created && !force {
+		for _, n := range Names {
+			if _, err := os.Stat(filepath.Join(dir, n)); err == nil {
+				s.Close()
+				return nil, badinput.Errorf("%s already holds results (%s); choose another folder or add --force to overwrite", dir, n)
 			}
 		}
 	}
-	tmp, err := os.MkdirTemp(dir, ".fgauge-tmp-")
+	tmp, err := os.MkdirTemp(dir, stagingPrefix)
 	if err != nil {
+		s.Close()
+		s.removeCreated()
 		return nil, fmt.Errorf("creating temporary folder in %s: %w", dir, err)
 	}
 	s.tmp = tmp
@@ -120,13 +139,31 @@ func (s *Dir) Commit() error {
 	return os.RemoveAll(s.tmp)
 }
 
-// Abort removes the temporary folder, and OUTDIR itself when this run
-// created it and it is empty.
+// Abort removes the temporary folder, releases the lock, and removes
+// OUTDIR itself when this run created it and it is empty.
 func (s *Dir) Abort() {
 	if s == nil {
 		return
 	}
-	os.RemoveAll(s.tmp)
+	if s.tmp != "" {
+		os.RemoveAll(s.tmp)
+	}
+	s.Close()
+	s.removeCreated()
+}
+
+// Close releases the folder's lock. Files written after Commit (a report)
+// should be written before Close, so that no other run mixes in.
+func (s *Dir) Close() {
+	if s != nil {
+		s.lock.release()
+	}
+}
+
+// Final is OUTDIR.
+func (s *Dir) Final() string { return s.final }
+
+func (s *Dir) removeCreated() {
 	if s.created {
 		os.Remove(s.final) // only succeeds when empty
 	}

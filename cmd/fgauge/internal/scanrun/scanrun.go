@@ -56,6 +56,10 @@ type Config struct {
 	// (shard.OptionFingerprint), part of a shard's identity.
 	Options []string
 
+	// AfterCommit, when set, runs once the outputs are in place and
+	// while the folder is still locked (the report).
+	AfterCommit func(out string) error
+
 	Version     string   // fgauge version, for run.json and states
 	CommandLine []string // for run.json
 	Stderr      io.Writer
@@ -134,6 +138,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		if err != nil {
 			out.Abort()
 		}
+		out.Close()
 	}()
 
 	rd, err := vcfscan.Open(cfg.Input, read)
@@ -341,6 +346,11 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	}
 	if sh.on() {
 		if err := sh.writeState(&cfg, &read, rd, &counts, kept, samples, totals, rohCfg, rres, ped, time.Since(start).Seconds()); err != nil {
+			return nil, err
+		}
+	}
+	if cfg.AfterCommit != nil {
+		if err := cfg.AfterCommit(cfg.Out); err != nil {
 			return nil, err
 		}
 	}

@@ -295,6 +295,9 @@ type MergeConfig struct {
 	Version     string   // fgauge version, for run.json
 	CommandLine []string // for run.json
 	Stderr      io.Writer
+	// AfterCommit, when set, runs once the outputs are in place and while
+	// the folder is still locked (the closing message, the report).
+	AfterCommit func(*MergeResult) error
 }
 
 // MergeResult counts what a merge combined.
@@ -328,6 +331,7 @@ func Merge(ctx context.Context, cfg MergeConfig) (res *MergeResult, err error) {
 		if err != nil {
 			out.Abort()
 		}
+		out.Close()
 	}()
 	if err := joinSiteTables(out, "sites.tsv.gz", ls, func(s *State) string { return s.SitesFile }); err != nil {
 		return nil, err
@@ -348,6 +352,12 @@ func Merge(ctx context.Context, cfg MergeConfig) (res *MergeResult, err error) {
 	}
 	if err := out.Commit(); err != nil {
 		return nil, err
+	}
+	res = &MergeResult{States: len(ls), Read: m.read, Kept: m.kept, Samples: len(m.first.Samples)}
+	if cfg.AfterCommit != nil {
+		// The outputs are complete: a failing hook (the report) does not
+		// undo them, and the caller gets both.
+		return res, cfg.AfterCommit(res)
 	}
 	return &MergeResult{States: len(ls), Read: m.read, Kept: m.kept, Samples: len(m.first.Samples)}, nil
 }
