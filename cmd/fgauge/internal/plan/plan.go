@@ -7,6 +7,7 @@ import (
 	"bufio"
 	"bytes"
 	"compress/gzip"
+	"embed"
 	"encoding/binary"
 	"fmt"
 	"io"
@@ -15,6 +16,7 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+	"text/template"
 
 	"github.com/biogo/hts/bgzf"
 	"github.com/biogo/hts/csi"
@@ -534,13 +536,50 @@ func slurmTime(sec int) string {
 	return fmt.Sprintf("%d:%02d:%02d", sec/3600, (sec/60)%60, sec%60)
 }
 
+// scripts are the batch scripts of a plan, rendered from the embedded
+// templates in scripts/.
+//
+//go:embed scripts/*.tmpl
+var scripts embed.FS
+
+var scriptTemplates = template.Must(template.New("").Funcs(template.FuncMap{
+	"sh": shellQuote,
+	"shjoin": func(args []string) string {
+		q := make([]string, len(args))
+		for i, a := range args {
+			q[i] = shellQuote(a)
+		}
+		return strings.Join(q, " ")
+	},
+}).ParseFS(scripts, "scripts/*.tmpl"))
+
+// scriptShard is one shard as the scripts name it.
+type scriptShard struct {
+	Number      int
+	Regions     []string // --region values
+	RegionsFile string   // name under PLANDIR/regions/ when the shard has too many regions
+}
+
+// scriptData is what the script templates read.
+type scriptData struct {
+	Fgauge, Input, Dir, Merged, Partition string
+	RunShard                              string // path of run_shard.sh
+	N, Width, Threads, Jobs               int
+	Shards                                []scriptShard
+	ScanArgs                              []string
+	ShardMemMB, MergeMemMB                int
+	ShardTime, MergeTime                  string // Slurm time limits
+}
+
 func (p *planScripts) write() error {
 	n := len(p.shards)
 	width := len(strconv.Itoa(n))
 	var tsv strings.Builder
 	tsv.WriteString("shard\tregions\tcompressed_bytes\test_records\test_cpu_seconds\test_memory_mb\n")
 	maxLimit, maxMem := 0, 0
-	var cases strings.Builder
+	d := &scriptData{Fgauge: p.fgauge, Input: p.input, Dir: p.dir, Merged: p.merged, Partition: p.partition,
+		RunShard: filepath.Join(p.dir, "run_shard.sh"), N: n, Width: width, Threads: p.threads, Jobs: p.jobs,
+		ScanArgs: p.scanArgs}
 	regionFiles := map[string]string{}
 	for i, s := range p.shards {
 		var regs []string
@@ -551,19 +590,15 @@ func (p *planScripts) write() error {
 		maxLimit, maxMem = max(maxLimit, limit), max(maxMem, mem)
 		fmt.Fprintf(&tsv, "%d\t%s\t%d\t%.0f\t%s\t%d\n", i+1, strings.Join(regs, ","), s.bytes, s.records,
 			strconv.FormatFloat(cpu, 'g', 3, 64), mem)
-		fmt.Fprintf(&cases, "  %d)", i+1)
+		ss := scriptShard{Number: i + 1, Regions: regs}
 		if len(regs) > MaxRegionArgs {
 			// Many whole contigs (unplaced scaffolds): a regions file
 			// keeps the command line short.
-			name := fmt.Sprintf("%0*d.txt", width, i+1)
-			regionFiles[name] = strings.Join(regs, "\n") + "\n"
-			fmt.Fprintf(&cases, " regions+=(--regions-file \"$PLANDIR/regions/%s\")", name)
-		} else {
-			for _, r := range regs {
-				fmt.Fprintf(&cases, " regions+=(--region %s)", shellQuote(r))
-			}
+			ss.RegionsFile = fmt.Sprintf("%0*d.txt", width, i+1)
+			ss.Regions = nil
+			regionFiles[ss.RegionsFile] = strings.Join(regs, "\n") + "\n"
 		}
-		cases.WriteString(" ;;\n")
+		d.Shards = append(d.Shards, ss)
 	}
 	// A different plan in the same folder: the states and shard folders
 	// of the old one would be merged with the new ones, so they go.
@@ -590,58 +625,7 @@ func (p *planScripts) write() error {
 	if err := os.WriteFile(filepath.Join(p.dir, "shards.tsv"), []byte(tsv.String()), 0o644); err != nil {
 		return err
 	}
-	var scanOpts []string
-	for _, a := range p.scanArgs {
-		scanOpts = append(scanOpts, shellQuote(a))
-	}
-	common := fmt.Sprintf(`FGAUGE=${FGAUGE:-%s}
-INPUT=%s
-PLANDIR=%s
-MERGED=%s
-N_SHARDS=%d
-`, shellQuote(p.fgauge), shellQuote(p.input), shellQuote(p.dir), shellQuote(p.merged), n)
-
-	shard := fmt.Sprintf(`#!/usr/bin/env bash
-# Scans one shard of the plan: run_shard.sh NUMBER (1..%d). Written by
-# 'fgauge plan'. A shard whose state is already intact is skipped.
-set -euo pipefail
-%si=${1:?usage: run_shard.sh NUMBER}
-regions=()
-case "$i" in
-%s  *) echo "run_shard.sh: no shard $i (1..$N_SHARDS)" >&2; exit 2 ;;
-esac
-name=$(printf '%%0%dd' "$i")
-exec "$FGAUGE" scan "$INPUT" "${regions[@]}" -o "$PLANDIR/shards/$name" --force \
-  --state-out "$PLANDIR/states/$name.state" --skip-if-valid-state \
-  --threads %d --no-progress %s
-`, n, common, cases.String(), width, p.threads, strings.Join(scanOpts, " "))
-
-	local := fmt.Sprintf(`#!/usr/bin/env bash
-# Runs every shard of the plan on this machine, JOBS at a time, then
-# merges. Written by 'fgauge plan'. Re-running skips finished shards.
-set -euo pipefail
-%sJOBS=${JOBS:-%d}
-if [ "$JOBS" -lt 1 ]; then JOBS=$(( $(nproc) / %d )); fi
-if [ "$JOBS" -lt 1 ]; then JOBS=1; fi
-seq 1 "$N_SHARDS" | xargs -P "$JOBS" -n 1 "$PLANDIR/run_shard.sh"
-exec "$FGAUGE" merge -o "$MERGED" --force --threads %d "$PLANDIR"/states/*.state
-`, common, p.jobs, p.threads, p.threads)
-
-	part := ""
-	if p.partition != "" {
-		part = "#SBATCH --partition=" + p.partition + "\n"
-	}
-	array := fmt.Sprintf(`#!/usr/bin/env bash
-#SBATCH --job-name=fgauge_shard
-#SBATCH --array=1-%d
-#SBATCH --cpus-per-task=%d
-#SBATCH --mem=%dM
-#SBATCH --time=%s
-#SBATCH --output=%s/logs/shard_%%a.log
-%s# One array task per shard (resources: the largest shard's estimate in
-# shards.tsv). Written by 'fgauge plan'.
-exec %s "$SLURM_ARRAY_TASK_ID"
-`, n, p.threads, maxMem, slurmTime(maxLimit), p.dir, part, shellQuote(filepath.Join(p.dir, "run_shard.sh")))
+	d.ShardMemMB, d.ShardTime = maxMem, slurmTime(maxLimit)
 
 	// The merge detects runs on every chromosome split across shards, one
 	// at a time, from the joined raw data of all of them: 0.25 byte per
@@ -661,51 +645,14 @@ exec %s "$SLURM_ARRAY_TASK_ID"
 	}
 	mergeMem += int(math.Ceil((0.25*splitAll + splitMax) * float64(p.samples) / 1e6))
 	mergeLimit = max(mergeLimit, int(math.Ceil(splitAll*float64(p.samples)*costPerSiteSample*timeSafety/float64(p.threads))))
-	merge := fmt.Sprintf(`#!/usr/bin/env bash
-#SBATCH --job-name=fgauge_merge
-#SBATCH --cpus-per-task=%d
-#SBATCH --mem=%dM
-#SBATCH --time=%s
-#SBATCH --output=%s/logs/merge.log
-%s# Merges the shard states once every array task has succeeded.
-set -euo pipefail
-%sexec "$FGAUGE" merge -o "$MERGED" --force --threads %d "$PLANDIR"/states/*.state
-`, p.threads, mergeMem, slurmTime(mergeLimit), p.dir, part, common, p.threads)
+	d.MergeMemMB, d.MergeTime = mergeMem, slurmTime(mergeLimit)
 
-	submit := fmt.Sprintf(`#!/usr/bin/env bash
-# Submits the shards as one Slurm job array and the merge as a job that
-# runs after every task has succeeded. Written by 'fgauge plan'.
-# Re-running submits only the shards without an intact state.
-set -euo pipefail
-%scd "$PLANDIR"
-todo=()
-for i in $(seq 1 "$N_SHARDS"); do
-  name=$(printf '%%0%dd' "$i")
-  if ! "$FGAUGE" merge --check "states/$name.state" >/dev/null 2>&1; then todo+=("$i"); fi
-done
-dep=()
-if [ "${#todo[@]}" -gt 0 ]; then
-  list=$(IFS=,; echo "${todo[*]}")
-  jobid=$(sbatch --parsable --array="$list" shard_array.sbatch)
-  jobid=${jobid%%%%;*}
-  echo "shards: job array $jobid (tasks $list)"
-  dep=(--dependency=afterok:$jobid)
-else
-  echo "shards: every state is already intact"
-fi
-mergeid=$(sbatch --parsable "${dep[@]}" merge.sbatch)
-echo "merge: job ${mergeid%%%%;*}"
-echo "${mergeid%%%%;*}" > "$PLANDIR/merge_job_id"
-`, common, width)
-
-	files := []struct {
-		name, text string
-	}{
-		{"run_shard.sh", shard}, {"run_local.sh", local}, {"shard_array.sbatch", array},
-		{"merge.sbatch", merge}, {"submit_slurm.sh", submit},
-	}
-	for _, f := range files {
-		if err := os.WriteFile(filepath.Join(p.dir, f.name), []byte(f.text), 0o755); err != nil {
+	for _, name := range []string{"run_shard.sh", "run_local.sh", "shard_array.sbatch", "merge.sbatch", "submit_slurm.sh"} {
+		var b bytes.Buffer
+		if err := scriptTemplates.ExecuteTemplate(&b, name+".tmpl", d); err != nil {
+			return fmt.Errorf("plan: rendering %s: %w", name, err)
+		}
+		if err := os.WriteFile(filepath.Join(p.dir, name), b.Bytes(), 0o755); err != nil {
 			return err
 		}
 	}
