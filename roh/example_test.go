@@ -94,9 +94,9 @@ func ExampleResult_Summary() {
 	c.AddBatch(b, freqs)
 	res, _ := c.Finish()
 	s := res.Summary()
-	fmt.Println(s["method"], s["covered_bp"], s["covered_source"], s["autosomes_used"])
+	fmt.Println(s.Method, s.CoveredBP, s.CoveredSource, s.AutosomesUsed, s.ClassColumns()[0])
 	// Output:
-	// hmm 10000000 contig_lengths [1]
+	// hmm 10000000 contig_lengths [1] f_roh_gt_1mb
 }
 
 // Results of disjoint chromosomes (for example two shards of one input)

@@ -2,6 +2,7 @@ package roh
 
 import (
 	"bufio"
+	"fgauge/internal/numfmt"
 	"fmt"
 	"io"
 	"math"
@@ -111,12 +112,7 @@ func ClassColumn(mb float64) string {
 	return "f_roh_gt_" + strings.ReplaceAll(strconv.FormatFloat(mb, 'g', -1, 64), ".", "p") + "mb"
 }
 
-func fmtF(x float64) string {
-	if math.IsNaN(x) || math.IsInf(x, 0) {
-		return "NA"
-	}
-	return strconv.FormatFloat(x, 'g', -1, 64)
-}
+func fmtF(x float64) string { return numfmt.Float(x) }
 
 // WriteRuns writes runs.tsv: a header line and one line per run, grouped
 // by sample (in sample order), then chromosome (input order), then start.
@@ -247,8 +243,46 @@ func (r *Result) SampleTable() (header []string, rows [][]string) {
 	return header, rows
 }
 
+// Summary is the "roh" object of run.json: the detector and its settings,
+// the autosomal length F_ROH divides by and where it came from, the
+// contigs used and left out, the length classes of the f_roh_gt_*
+// columns, and counts of sites and runs. Fields are in the order run.json
+// lists them; the optional ones are present only where they apply.
+type Summary struct {
+	AutosomesUsed []string `json:"autosomes_used"`
+	// ChromsWithoutMap are the chromosomes the genetic map did not cover
+	// (distances from cm_per_mb); present only with a map.
+	ChromsWithoutMap *[]string        `json:"chroms_without_map,omitempty"`
+	ClassesMB        []float64        `json:"classes_mb"` // the f_roh_gt_* classes; the first is the shortest run counted
+	CMPerMB          float64          `json:"cm_per_mb"`
+	CoveredBP        int64            `json:"covered_bp"`
+	CoveredSource    string           `json:"covered_source"` // "contig_lengths" or "site_span"
+	ExcludedContigs  map[string]int64 `json:"excluded_contigs"`
+	Fit              *bool            `json:"fit,omitempty"`            // HMM only
+	GenotypeError    *float64         `json:"genotype_error,omitempty"` // HMM only
+	// MeanFittedFraction and MeanFittedRate average the per-sample,
+	// per-chromosome EM estimates (HMM with Fit only).
+	MeanFittedFraction *float64 `json:"mean_fitted_autozygous_fraction,omitempty"`
+	MeanFittedRate     *float64 `json:"mean_fitted_rate_per_morgan,omitempty"`
+	Method             string   `json:"method"`
+	MinCountedBP       int64    `json:"min_counted_bp"`
+	RunsCounted        int      `json:"runs_counted"`
+	RunsWritten        int      `json:"runs_written"`
+	SitesUsed          int      `json:"sites_used"`
+}
+
+// ClassColumns returns the samples.tsv column of each length class, in
+// the order of ClassesMB.
+func (s *Summary) ClassColumns() []string {
+	out := make([]string, len(s.ClassesMB))
+	for i, mb := range s.ClassesMB {
+		out[i] = ClassColumn(mb)
+	}
+	return out
+}
+
 // Summary returns the "roh" object of run.json.
-func (r *Result) Summary() map[string]any {
+func (r *Result) Summary() *Summary {
 	cov, src := r.Covered()
 	used := []string{}
 	var sites, nruns, counted int
@@ -271,29 +305,28 @@ func (r *Result) Summary() map[string]any {
 	for k, v := range r.Excluded {
 		excl[k] = v
 	}
-	m := map[string]any{
-		"method":           r.Method,
-		"covered_bp":       cov,
-		"covered_source":   src,
-		"autosomes_used":   used,
-		"excluded_contigs": excl,
-		"sites_used":       sites,
-		"runs_written":     nruns,
-		"runs_counted":     counted,
-		"min_counted_bp":   minBP,
-		"classes_mb":       r.Classes,
-		"cm_per_mb":        r.CMPerMB,
+	m := &Summary{
+		Method:          r.Method,
+		CoveredBP:       cov,
+		CoveredSource:   src,
+		AutosomesUsed:   used,
+		ExcludedContigs: excl,
+		SitesUsed:       sites,
+		RunsWritten:     nruns,
+		RunsCounted:     counted,
+		MinCountedBP:    minBP,
+		ClassesMB:       r.Classes,
+		CMPerMB:         r.CMPerMB,
 	}
 	if r.MapUsed {
-		// chromosomes the genetic map did not cover: distances from cm_per_mb
 		if mapMissing == nil {
 			mapMissing = []string{}
 		}
-		m["chroms_without_map"] = mapMissing
+		m.ChromsWithoutMap = &mapMissing
 	}
 	if r.Method == MethodHMM {
-		m["genotype_error"] = r.GenotypeError
-		m["fit"] = r.Fit
+		ge, fit := r.GenotypeError, r.Fit
+		m.GenotypeError, m.Fit = &ge, &fit
 		if r.Fit {
 			var sf, sa float64
 			var n int
@@ -305,8 +338,8 @@ func (r *Result) Summary() map[string]any {
 				}
 			}
 			if n > 0 {
-				m["mean_fitted_autozygous_fraction"] = sf / float64(n)
-				m["mean_fitted_rate_per_morgan"] = sa / float64(n)
+				f, a := sf/float64(n), sa/float64(n)
+				m.MeanFittedFraction, m.MeanFittedRate = &f, &a
 			}
 		}
 	}

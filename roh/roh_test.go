@@ -581,8 +581,8 @@ func TestSampleTableAndSummary(t *testing.T) {
 		t.Errorf("row b = %q", got)
 	}
 	s := r.Summary()
-	if s["covered_bp"] != int64(10_000_000) || s["covered_source"] != "contig_lengths" {
-		t.Errorf("summary %v", s)
+	if s.CoveredBP != 10_000_000 || s.CoveredSource != "contig_lengths" {
+		t.Errorf("summary %+v", s)
 	}
 	var buf bytes.Buffer
 	r.WriteRuns(&buf)

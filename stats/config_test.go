@@ -106,9 +106,9 @@ func TestPanelFrequencies(t *testing.T) {
 	if cols["sites_informative"][0] != 2 || math.Abs(cols["f_uniting_gametes"][0]-1) > 1e-9 {
 		t.Errorf("informative %v, f_uniting %v (want 2, 1)", cols["sites_informative"], cols["f_uniting_gametes"])
 	}
-	fr := tot.Summary()["frequencies"].(map[string]any)
-	if fr["data_sites_absent_from_panel"] != int64(1) || fr["panel_sites_never_met"] != int64(1) {
-		t.Errorf("frequencies summary %v", fr)
+	fr := tot.Summary().Frequencies
+	if fr.PanelAbsent == nil || *fr.PanelAbsent != 1 || fr.PanelNeverMet == nil || *fr.PanelNeverMet != 1 || fr.InfoMissing != nil {
+		t.Errorf("frequencies summary %+v", fr)
 	}
 }
 
@@ -136,9 +136,9 @@ func TestLambdaNull(t *testing.T) {
 	calls := simulateCohort(5, make([]float64, len(names)), 4000)
 	tot, _ := runCalls(t, &Config{Samples: names, MinCallRate: 0.9}, calls, nil)
 	s := tot.Summary()
-	lam := s["lambda"].(float64)
-	below := float64(s["hwe_p_below_1e3"].(int64)) / float64(s["tested"].(int64))
-	qq := s["qq"].([][2]float64)
+	lam := float64(s.Lambda)
+	below := float64(s.Below1e3) / float64(s.Tested)
+	qq := s.QQ
 	t.Logf("lambda %.4f, share p<1e-3 %.4g, %d QQ points", lam, below, len(qq))
 	if math.Abs(lam-1) > 0.08 || below > 0.004 || len(qq) < 100 {
 		t.Errorf("lambda %v share %v qq %d", lam, below, len(qq))

@@ -278,8 +278,8 @@ func TestPopulationFrequencies(t *testing.T) {
 		t.Errorf("stray: informative %v f_grm %v f_uniting %v", cols["sites_informative"][4], cols["f_grm"][4], cols["f_uniting_gametes"][4])
 	}
 	// Fixed different alleles: theta = 1 (Weir & Cockerham 1984).
-	if s := tot.PopulationSummary(); math.Abs(s["f_st"].(float64)-1) > 1e-9 {
-		t.Errorf("f_st %v, want 1", s["f_st"])
+	if s := tot.PopulationSummary(); math.Abs(float64(s.FST)-1) > 1e-9 {
+		t.Errorf("f_st %v, want 1", s.FST)
 	}
 }
 

@@ -2,6 +2,7 @@ package stats
 
 import (
 	"bufio"
+	"fgauge/internal/numfmt"
 	"io"
 	"math"
 	"sort"
@@ -163,46 +164,91 @@ func (t *Totals) WritePairwise(w io.Writer) error {
 // HasPopulations reports whether populations were given.
 func (t *Totals) HasPopulations() bool { return t.PopOf != nil }
 
-// Summary returns the run.json "sites" section: HWE tests ("tested",
-// "hwe_method", counts "hwe_p_below_1e3/1e6/1e10"), the genomic inflation
-// "lambda" of the HWE chi-square statistics, "mean_f_site", "qq" points
-// [expected, observed] of -log10 p, and "frequencies" (where the
-// estimators' allele frequencies came from, with the counts of sites
-// without one).
-func (t *Totals) Summary() map[string]any {
+// SitesSummary is the run.json "sites" section: the Hardy-Weinberg tests,
+// the genomic inflation of their chi-square statistics, the mean f_site,
+// the QQ points and where the estimators' allele frequencies came from.
+// Fields are in the order run.json lists them.
+type SitesSummary struct {
+	Frequencies FreqSummary      `json:"frequencies"`
+	HWEMethod   string           `json:"hwe_method"`
+	Below1e10   int64            `json:"hwe_p_below_1e10"`
+	Below1e3    int64            `json:"hwe_p_below_1e3"`
+	Below1e6    int64            `json:"hwe_p_below_1e6"`
+	Lambda      numfmt.JSONFloat `json:"lambda"`      // genomic inflation factor; null without tests
+	MeanFSite   numfmt.JSONFloat `json:"mean_f_site"` // null without polymorphic sites
+	QQ          [][2]float64     `json:"qq"`          // [expected, observed] -log10 p
+	Tested      int64            `json:"tested"`
+}
+
+// FreqSummary says where the per-sample estimators' allele frequencies
+// came from ("cohort", "population", "info" or "panel") and, for INFO or
+// panel frequencies, how many sites lacked one.
+type FreqSummary struct {
+	PanelAbsent   *int64 `json:"data_sites_absent_from_panel,omitempty"`
+	PanelMismatch *int64 `json:"data_sites_allele_mismatch,omitempty"`
+	PanelSites    *int64 `json:"panel_sites,omitempty"`
+	PanelNeverMet *int64 `json:"panel_sites_never_met,omitempty"`
+	InfoMissing   *int64 `json:"sites_without_info_value,omitempty"`
+	Source        string `json:"source"`
+}
+
+// PopulationSummary is the run.json "populations" section: names, samples
+// per population, samples not assigned to one, and the genome-wide Weir &
+// Cockerham f_st, f_is, f_it with their block jackknife SEs, sites used
+// and blocks.
+type PopulationSummary struct {
+	FIS              numfmt.JSONFloat `json:"f_is"`
+	FISSE            numfmt.JSONFloat `json:"f_is_se"`
+	FIT              numfmt.JSONFloat `json:"f_it"`
+	FITSE            numfmt.JSONFloat `json:"f_it_se"`
+	FST              numfmt.JSONFloat `json:"f_st"`
+	FSTSE            numfmt.JSONFloat `json:"f_st_se"`
+	JackknifeBlockBP int64            `json:"jackknife_block_bp"`
+	JackknifeBlocks  int              `json:"jackknife_blocks"`
+	NSamples         map[string]int64 `json:"n_samples"`
+	Names            []string         `json:"names"`
+	// SamplesNotListed are the selected samples absent from the
+	// populations file (left out of population statistics).
+	SamplesNotListed   []string `json:"samples_not_listed"`
+	SamplesUnassigned  int64    `json:"samples_unassigned"`
+	SitesUsed          int64    `json:"sites_used"`
+	UnassignedFirst100 []string `json:"unassigned_first_100"`
+}
+
+// Summary returns the run.json "sites" section.
+func (t *Totals) Summary() *SitesSummary {
 	h := &t.HWETally
-	fr := map[string]any{"source": t.Freqs.String()}
+	fr := FreqSummary{Source: t.Freqs.String()}
+	p := func(v int64) *int64 { return &v }
 	switch t.Freqs {
 	case FreqInfo:
-		fr["sites_without_info_value"] = t.Freq.InfoMissing
+		fr.InfoMissing = p(t.Freq.InfoMissing)
 	case FreqPanel:
 		var met int64
 		for _, w := range t.Freq.PanelMet {
 			met += int64(popcount(w))
 		}
-		fr["panel_sites"] = t.Freq.PanelSize
-		fr["panel_sites_never_met"] = t.Freq.PanelSize - met
-		fr["data_sites_absent_from_panel"] = t.Freq.PanelAbsent
-		fr["data_sites_allele_mismatch"] = t.Freq.PanelMismatch
+		fr.PanelSites = p(int64(t.Freq.PanelSize))
+		fr.PanelNeverMet = p(int64(t.Freq.PanelSize) - met)
+		fr.PanelAbsent = p(t.Freq.PanelAbsent)
+		fr.PanelMismatch = p(t.Freq.PanelMismatch)
 	}
-	return map[string]any{
-		"hwe_method":       t.HWEMethod,
-		"tested":           h.Tested,
-		"hwe_p_below_1e3":  h.Below[0],
-		"hwe_p_below_1e6":  h.Below[1],
-		"hwe_p_below_1e10": h.Below[2],
-		"lambda":           jsonFloat(t.lambda()),
-		"mean_f_site":      jsonFloat(ratio(h.FSite.Float64(), float64(h.FSiteN))),
-		"qq":               t.qq(defaultQQPoint),
-		"frequencies":      fr,
+	return &SitesSummary{
+		Frequencies: fr,
+		HWEMethod:   t.HWEMethod,
+		Tested:      h.Tested,
+		Below1e3:    h.Below[0],
+		Below1e6:    h.Below[1],
+		Below1e10:   h.Below[2],
+		Lambda:      numfmt.JSONFloat(t.lambda()),
+		MeanFSite:   numfmt.JSONFloat(ratio(h.FSite.Float64(), float64(h.FSiteN))),
+		QQ:          t.qq(defaultQQPoint),
 	}
 }
 
-// PopulationSummary returns the run.json "populations" section (nil
-// without populations): names, samples per population, unassigned
-// samples, and the genome-wide Weir & Cockerham f_st, f_is, f_it with
-// their block jackknife SEs, sites used and blocks.
-func (t *Totals) PopulationSummary() map[string]any {
+// PopulationSummary returns the run.json "populations" section, nil
+// without populations.
+func (t *Totals) PopulationSummary() *PopulationSummary {
 	if t.PopOf == nil {
 		return nil
 	}
@@ -211,27 +257,31 @@ func (t *Totals) PopulationSummary() map[string]any {
 	fis, fisSE, _, _ := t.wcJackknife(all, (*WCSums).fis)
 	fit, fitSE, _, _ := t.wcJackknife(all, (*WCSums).fit)
 	ns := t.popSampleCounts()
-	per := map[string]any{}
+	per := map[string]int64{}
 	for i, name := range t.PopNames {
 		per[name] = ns[i]
 	}
-	unassigned := []string{}
+	unassigned, notListed := []string{}, []string{}
 	for i, p := range t.PopOf {
-		if p < 0 && len(unassigned) < 100 {
-			unassigned = append(unassigned, t.Samples[i])
+		if p < 0 {
+			notListed = append(notListed, t.Samples[i])
+			if len(unassigned) < 100 {
+				unassigned = append(unassigned, t.Samples[i])
+			}
 		}
 	}
-	return map[string]any{
-		"names":                t.PopNames,
-		"unassigned_first_100": unassigned,
-		"n_samples":            per,
-		"samples_unassigned":   int64(len(t.PopOf)) - ns[len(t.PopNames)],
-		"f_st":                 jsonFloat(fst), "f_st_se": jsonFloat(fstSE),
-		"f_is": jsonFloat(fis), "f_is_se": jsonFloat(fisSE),
-		"f_it": jsonFloat(fit), "f_it_se": jsonFloat(fitSE),
-		"sites_used":         n,
-		"jackknife_blocks":   g,
-		"jackknife_block_bp": t.JackknifeBlockBP,
+	return &PopulationSummary{
+		Names:              t.PopNames,
+		UnassignedFirst100: unassigned,
+		SamplesNotListed:   notListed,
+		NSamples:           per,
+		SamplesUnassigned:  int64(len(t.PopOf)) - ns[len(t.PopNames)],
+		FST:                numfmt.JSONFloat(fst), FSTSE: numfmt.JSONFloat(fstSE),
+		FIS: numfmt.JSONFloat(fis), FISSE: numfmt.JSONFloat(fisSE),
+		FIT: numfmt.JSONFloat(fit), FITSE: numfmt.JSONFloat(fitSE),
+		SitesUsed:        n,
+		JackknifeBlocks:  g,
+		JackknifeBlockBP: t.JackknifeBlockBP,
 	}
 }
 

@@ -2,6 +2,7 @@ package stats
 
 import (
 	"errors"
+	"fgauge/internal/numfmt"
 	"fmt"
 	"math"
 	"slices"
@@ -302,6 +303,120 @@ func (t *Totals) estimates(i int) sampleEstimates {
 	return e
 }
 
+// SampleFlags are the warnings of one sample, the flags column of
+// samples.tsv. Test them with Has; String gives the column's text.
+type SampleFlags uint8
+
+// The per-sample flags, in the order the column lists them.
+const (
+	// FlagNoCalls: the sample has no diploid call at any kept site.
+	FlagNoCalls SampleFlags = 1 << iota
+	// FlagLowCallRate: call_rate below Config.MinCallRate.
+	FlagLowCallRate
+	// FlagHetRateOutlier: het_rate outside the HetRateBand.
+	FlagHetRateOutlier
+	// FlagEstimatorsDisagree: f_hom > 0.1 while f_uniting_gametes < 0,
+	// or the reverse.
+	FlagEstimatorsDisagree
+	numFlags = iota
+)
+
+var flagNames = [numFlags]string{"no_calls", "low_call_rate", "het_rate_outlier", "estimators_disagree"}
+
+// Has reports whether every flag of g is set in f.
+func (f SampleFlags) Has(g SampleFlags) bool { return f&g == g }
+
+// String is the flags column: comma-separated names, "." when none.
+func (f SampleFlags) String() string {
+	if f == 0 {
+		return "."
+	}
+	var names []string
+	for i, n := range flagNames {
+		if f&(1<<i) != 0 {
+			names = append(names, n)
+		}
+	}
+	return strings.Join(names, ",")
+}
+
+// HetRateOutlierSDs is the half-width of the het_rate_outlier band in
+// cohort standard deviations.
+const HetRateOutlierSDs = 3
+
+// HetRateBand is the band of het_rate outside which a sample is flagged
+// het_rate_outlier: the cohort mean plus or minus HetRateOutlierSDs sample
+// standard deviations (n-1 denominator) over the samples with a het_rate.
+// With fewer than three such samples there is no band (SD is NaN and no
+// sample is flagged). It is published in run.json for the report.
+type HetRateBand struct {
+	High    numfmt.JSONFloat `json:"high"`
+	Low     numfmt.JSONFloat `json:"low"`
+	Mean    numfmt.JSONFloat `json:"mean"`
+	Samples int              `json:"samples"` // samples with a het_rate
+	SD      numfmt.JSONFloat `json:"sd"`
+	SDs     float64          `json:"sds"` // HetRateOutlierSDs
+}
+
+// sampleView holds every sample's estimates, the het_rate band and the
+// flags, computed once for the table, the flags and the summary.
+type sampleView struct {
+	est   []sampleEstimates
+	band  HetRateBand
+	flags []SampleFlags
+}
+
+func (t *Totals) view() *sampleView {
+	v := &sampleView{est: make([]sampleEstimates, len(t.PerSample)), flags: make([]SampleFlags, len(t.PerSample))}
+	// Cohort mean and SD of het_rate for het_rate_outlier (fixed order).
+	var sum, sum2, m float64
+	for i := range t.PerSample {
+		v.est[i] = t.estimates(i)
+		if h := v.est[i].hetRate; !math.IsNaN(h) {
+			sum += h
+			m++
+		}
+	}
+	mean := sum / m
+	for i := range v.est {
+		if h := v.est[i].hetRate; !math.IsNaN(h) {
+			sum2 += (h - mean) * (h - mean)
+		}
+	}
+	sd := nan
+	if m >= 3 {
+		sd = math.Sqrt(sum2 / (m - 1))
+	}
+	v.band = HetRateBand{Mean: numfmt.JSONFloat(mean), SD: numfmt.JSONFloat(sd), SDs: HetRateOutlierSDs, Samples: int(m),
+		Low: numfmt.JSONFloat(mean - HetRateOutlierSDs*sd), High: numfmt.JSONFloat(mean + HetRateOutlierSDs*sd)}
+	for i := range v.est {
+		e := &v.est[i]
+		var f SampleFlags
+		if e.called == 0 {
+			f |= FlagNoCalls
+		} else if e.callRate < t.MinCallRate {
+			f |= FlagLowCallRate
+		}
+		if sd > 0 && !math.IsNaN(e.hetRate) && math.Abs(e.hetRate-mean) > HetRateOutlierSDs*sd {
+			f |= FlagHetRateOutlier
+		}
+		if (e.fHom > 0.1 && e.fUniting < 0) || (e.fUniting > 0.1 && e.fHom < 0) {
+			f |= FlagEstimatorsDisagree
+		}
+		v.flags[i] = f
+	}
+	return v
+}
+
+// SampleFlags returns each selected sample's flags, in sample order.
+func (t *Totals) SampleFlags() []SampleFlags { return t.view().flags }
+
+// HetRateBand returns the het_rate_outlier band of the cohort.
+func (t *Totals) HetRateBand() HetRateBand { return t.view().band }
+
+// CallRate returns sample i's call_rate (NaN without kept sites).
+func (t *Totals) CallRate(i int) float64 { return t.estimates(i).callRate }
+
 // SampleTable returns the samples.tsv columns produced by this package and
 // one row per selected sample, in order. The population column is present
 // only with populations ("NA" for unlisted samples).
@@ -313,62 +428,26 @@ func (t *Totals) SampleTable() (header []string, rows [][]string) {
 	header = append(header, "sites_called", "n_hom_ref", "n_het", "n_hom_alt", "n_missing", "n_haploid",
 		"call_rate", "het_rate", "hom_observed", "hom_expected", "sites_informative",
 		"f_hom", "f_grm", "f_excess_hom", "f_uniting_gametes", "f_vanraden", "flags")
-	est := make([]sampleEstimates, len(t.PerSample))
-	// Cohort mean and SD of het_rate for het_rate_outlier (fixed order).
-	var sum, sum2, m float64
-	for i := range t.PerSample {
-		est[i] = t.estimates(i)
-		if h := est[i].hetRate; !math.IsNaN(h) {
-			sum += h
-			m++
-		}
-	}
-	mean := sum / m
-	for i := range est {
-		if h := est[i].hetRate; !math.IsNaN(h) {
-			sum2 += (h - mean) * (h - mean)
-		}
-	}
-	sd := nan
-	if m >= 3 {
-		sd = math.Sqrt(sum2 / (m - 1))
-	}
+	v := t.view()
 	for i := range t.PerSample {
 		a := &t.PerSample[i]
-		e := &est[i]
+		e := &v.est[i]
 		row := []string{t.Samples[i]}
 		if t.PopOf != nil {
-			pop := "NA"
+			pop := numfmt.NA
 			if p := t.PopOf[i]; p >= 0 {
 				pop = t.PopNames[p]
 			}
 			row = append(row, pop)
 		}
-		homObs := "NA"
+		homObs := numfmt.NA
 		if e.informative > 0 {
 			homObs = itoa(e.homInformative)
 		}
 		row = append(row, itoa(e.called), itoa(a.Counts[0]), itoa(a.Counts[1]), itoa(a.Counts[2]),
 			itoa(a.Counts[3]), itoa(a.Counts[4]+a.Counts[5]),
 			ftoa(e.callRate), ftoa(e.hetRate), homObs, ftoa(e.homExp), itoa(e.informative),
-			ftoa(e.fHom), ftoa(e.fGRM), ftoa(e.fExcess), ftoa(e.fUniting), ftoa(e.fVanRad))
-		var flags []string
-		if e.called == 0 {
-			flags = append(flags, "no_calls")
-		} else if e.callRate < t.MinCallRate {
-			flags = append(flags, "low_call_rate")
-		}
-		if sd > 0 && !math.IsNaN(e.hetRate) && math.Abs(e.hetRate-mean) > 3*sd {
-			flags = append(flags, "het_rate_outlier")
-		}
-		if (e.fHom > 0.1 && e.fUniting < 0) || (e.fUniting > 0.1 && e.fHom < 0) {
-			flags = append(flags, "estimators_disagree")
-		}
-		if len(flags) == 0 {
-			row = append(row, ".")
-		} else {
-			row = append(row, strings.Join(flags, ","))
-		}
+			ftoa(e.fHom), ftoa(e.fGRM), ftoa(e.fExcess), ftoa(e.fUniting), ftoa(e.fVanRad), v.flags[i].String())
 		rows = append(rows, row)
 	}
 	return header, rows

@@ -117,7 +117,7 @@ func TestIslandModel(t *testing.T) {
 		cfg := &Config{Samples: names, PopOf: popOf, PopNames: pops, Freqs: FreqPopulation, JackknifeBlockBP: 20_000, MinCallRate: 0.9}
 		tot, _ := runCalls(t, cfg, calls, nil)
 		s := tot.PopulationSummary()
-		fst, se, fis := s["f_st"].(float64), s["f_st_se"].(float64), s["f_is"].(float64)
+		fst, se, fis := float64(s.FST), float64(s.FSTSE), float64(s.FIS)
 		want := 1 / (1 + 4*N*m)
 		wantFinite := 1 / (1 + 4*N*m*math.Pow(float64(d)/float64(d-1), 2))
 		t.Logf("m=%v: theta %.4f (SE %.4f), f %.4f; infinite islands %.4f, finite %.4f", m, fst, se, fis, want, wantFinite)
@@ -158,18 +158,15 @@ func TestWeirCockerhamAgainstR(t *testing.T) {
 	tot, _, _ := fx.run(t, popConfig(fx, 1_000_000), 0, len(fx.recs), 40)
 	_, ref, _ := readTSV(t, "../testdata/snpstats/wc_theta.tsv")
 	s := tot.PopulationSummary()
-	for _, c := range [][2]string{{"theta", "f_st"}, {"f", "f_is"}, {"F", "f_it"}, {"sites", "sites_used"}} {
-		want, _ := strconv.ParseFloat(ref[c[0]][1], 64)
-		var got float64
-		switch v := s[c[1]].(type) {
-		case float64:
-			got = v
-		case int64:
-			got = float64(v)
-		}
+	for _, c := range []struct {
+		ref, name string
+		got       float64
+	}{{"theta", "f_st", float64(s.FST)}, {"f", "f_is", float64(s.FIS)}, {"F", "f_it", float64(s.FIT)}, {"sites", "sites_used", float64(s.SitesUsed)}} {
+		want, _ := strconv.ParseFloat(ref[c.ref][1], 64)
+		got := c.got
 		// Fixed-point sums: about 1e-10 per site.
 		if math.Abs(got-want) > 1e-8 {
-			t.Errorf("%s: %v, R %v", c[1], got, want)
+			t.Errorf("%s: %v, R %v", c.name, got, want)
 		}
 	}
 }
@@ -192,8 +189,8 @@ func TestJackknifeSE(t *testing.T) {
 			Freqs: FreqPopulation, JackknifeBlockBP: 20_000, MinCallRate: 0.9}
 		tot, _ := runCalls(t, cfg, calls, nil)
 		s := tot.PopulationSummary()
-		thetas = append(thetas, s["f_st"].(float64))
-		ses = append(ses, s["f_st_se"].(float64))
+		thetas = append(thetas, float64(s.FST))
+		ses = append(ses, float64(s.FSTSE))
 	}
 	_, v := meanVar(thetas)
 	sd := math.Sqrt(v)

@@ -2,6 +2,7 @@ package stats
 
 import (
 	"bytes"
+	"fgauge/internal/numfmt"
 	"math"
 	"strconv"
 
@@ -505,11 +506,7 @@ func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64
 
 // appendFloat appends a tab and x in shortest round-trip form, or NA.
 func appendFloat(b []byte, x float64) []byte {
-	b = append(b, '\t')
-	if math.IsNaN(x) || math.IsInf(x, 0) {
-		return append(b, "NA"...)
-	}
-	return strconv.AppendFloat(b, x, 'g', -1, 64)
+	return numfmt.AppendFloat(append(b, '\t'), x)
 }
 
 // SitesHeader is the header line of sites.tsv (no trailing newline).

@@ -213,17 +213,17 @@ func (c *cohort) figRunLengths() (figure, error) {
 	p.Add(histFromCounts(bins, colTeal))
 	f.Points, f.Total = nbins, len(c.d.runLenMb)
 	f.Caption = fmt.Sprintf("%d runs in %d bins of equal width on a logarithmic length axis (each bin spans a factor of %.3g).", len(logs), nbins, math.Pow(10, w))
-	if mc := c.d.info.ROH.MinCountedBP; mc != nil && float64(*mc) > 0 {
+	if mc := c.d.info.ROH.MinCountedBP; mc > 0 {
 		top := 0.0
 		for _, b := range bins {
 			top = math.Max(top, b.Weight)
 		}
-		x := math.Log10(float64(*mc) / 1e6)
+		x := math.Log10(float64(mc) / 1e6)
 		l, _ := plotter.NewLine(plotter.XYs{{X: x, Y: 0}, {X: x, Y: top}})
 		l.Color = colBrick
 		l.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
 		p.Add(l)
-		f.Caption += fmt.Sprintf(" Red dashed line: %s Mb; shorter runs are listed in runs.tsv but not counted in F_ROH.", fmtG(float64(*mc)/1e6))
+		f.Caption += fmt.Sprintf(" Red dashed line: %s Mb; shorter runs are listed in runs.tsv but not counted in F_ROH.", fmtG(float64(mc)/1e6))
 	}
 	var err error
 	f.SVG, err = renderPlot(p, plotW, plotH*0.6)
@@ -336,10 +336,7 @@ func (c *cohort) figQQ() (figure, error) {
 		f.Empty = noData("QQ summary (run.json sites.qq)")
 		return f, nil
 	}
-	lambda := "NA"
-	if c.d.info.Sites.Lambda != nil {
-		lambda = fmtG(float64(*c.d.info.Sites.Lambda))
-	}
+	lambda := fmtG(float64(c.d.info.Sites.Lambda))
 	p := newPlot("λ = "+lambda, "expected −log10 p", "observed −log10 p")
 	p.Add(diagonal(0, hi))
 	s, _ := plotter.NewScatter(pts)
@@ -565,20 +562,21 @@ func (c *cohort) figQuality() (figure, error) {
 	}
 	addLabels(p, xs, ys, lab, c.names)
 	var band string
-	if m, sd, ok := meanSD(ys); ok && sd > 0 {
+	// The band is the one the scan flagged by, as run.json publishes it.
+	if b := c.d.info.Samples.HetRateBand; b != nil && b.SD > 0 {
 		lo, hi := math.Inf(1), math.Inf(-1)
 		for _, x := range xs {
 			if !math.IsNaN(x) {
 				lo, hi = math.Min(lo, x), math.Max(hi, x)
 			}
 		}
-		for _, y := range []float64{m - 3*sd, m + 3*sd} {
+		for _, y := range []float64{float64(b.Low), float64(b.High)} {
 			l, _ := plotter.NewLine(plotter.XYs{{X: lo, Y: y}, {X: hi, Y: y}})
 			l.Color = colFaint
 			l.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
 			p.Add(l)
 		}
-		band = " Dashed lines: cohort mean of the heterozygous share ± 3 standard deviations, the band outside which the scan flags het_rate_outlier."
+		band = fmt.Sprintf(" Dashed lines: cohort mean of the heterozygous share ± %g standard deviations, the band outside which the scan flags het_rate_outlier.", b.SDs)
 	}
 	f.Caption = fmt.Sprintf("Circles: samples without a flag; red triangles: the %d flagged samples (up to %d of the most unusual labelled). Low call rate sits to the left; contamination or mixed samples tend to sit high, samples from another population or truly inbred ones low.", len(flagged), maxLabels) + band
 	if f.Points < f.Total {

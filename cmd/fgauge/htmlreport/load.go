@@ -5,6 +5,10 @@ import (
 	"bytes"
 	"encoding/json"
 	"errors"
+	"fgauge/cmd/fgauge/internal/runsummary"
+	"fgauge/internal/numfmt"
+	"fgauge/roh"
+	"fgauge/stats"
 	"fmt"
 	"io"
 	"math"
@@ -15,92 +19,24 @@ import (
 	"github.com/klauspost/compress/gzip"
 )
 
-// flexFloat is a JSON number that may also be null or the string "NA";
-// both give NaN.
-type flexFloat float64
-
-func (f *flexFloat) UnmarshalJSON(b []byte) error {
-	b = bytes.TrimSpace(b)
-	if bytes.Equal(b, []byte("null")) {
-		*f = flexFloat(math.NaN())
-		return nil
-	}
-	if len(b) > 0 && b[0] == '"' {
-		var s string
-		if err := json.Unmarshal(b, &s); err != nil {
-			return err
-		}
-		*f = flexFloat(parseNum(s))
-		return nil
-	}
-	v, err := strconv.ParseFloat(string(b), 64)
-	if err != nil {
-		return err
-	}
-	*f = flexFloat(v)
-	return nil
-}
-
-// runInfo is the part of run.json the report shows. Unknown keys are
-// ignored; missing ones stay zero.
+// runInfo is run.json as scan and merge write it (runsummary.Run), with
+// its optional sections replaced by empty ones when absent so that the
+// report can read them unconditionally. Unknown keys are ignored; missing
+// ones stay zero.
 type runInfo struct {
-	Version     string   `json:"version"`
-	CommandLine []string `json:"command_line"`
-	Input       struct {
-		Path      string `json:"path"`
-		SizeBytes int64  `json:"size_bytes"`
-		Format    string `json:"format"`
-	} `json:"input"`
-	Records struct {
-		Read        int64            `json:"read"`
-		Kept        int64            `json:"kept"`
-		Skipped     map[string]int64 `json:"skipped"`
-		MaskedCalls int64            `json:"masked_calls"`
-	} `json:"records"`
-	Samples struct {
-		InFile   int64             `json:"in_file"`
-		Kept     int64             `json:"kept"`
-		Excluded []json.RawMessage `json:"excluded"`
-	} `json:"samples"`
-	Sites struct {
-		Tested      int64         `json:"tested"`
-		Below1e3    int64         `json:"hwe_p_below_1e3"`
-		Below1e6    int64         `json:"hwe_p_below_1e6"`
-		Below1e10   int64         `json:"hwe_p_below_1e10"`
-		Lambda      *flexFloat    `json:"lambda"`
-		MeanFSite   *flexFloat    `json:"mean_f_site"`
-		QQ          [][]flexFloat `json:"qq"`
-		HWEMethod   string        `json:"hwe_method"`
-		Frequencies struct {
-			Source string `json:"source"`
-		} `json:"frequencies"`
-		present bool
-	} `json:"sites"`
-	ROH struct {
-		Method          string           `json:"method"`
-		CoveredBP       *flexFloat       `json:"covered_bp"`
-		CoveredSource   string           `json:"covered_source"`
-		AutosomesUsed   []string         `json:"autosomes_used"`
-		ExcludedContigs map[string]int64 `json:"excluded_contigs"`
-		MinCountedBP    *flexFloat       `json:"min_counted_bp"`
-	} `json:"roh"`
-	Warnings    map[string]int64 `json:"warnings"`
-	WallSeconds *flexFloat       `json:"wall_seconds"`
+	runsummary.Run
+	sitesPresent bool // run.json has a "sites" section
 }
 
-// excludedNames renders samples.excluded entries as text, whatever their
-// JSON shape (plain names or objects).
-func (ri *runInfo) excludedNames() []string {
-	out := make([]string, 0, len(ri.Samples.Excluded))
-	for _, raw := range ri.Samples.Excluded {
-		var s string
-		if json.Unmarshal(raw, &s) == nil {
-			out = append(out, s)
-			continue
-		}
-		out = append(out, string(raw))
+// fillAbsent replaces absent optional sections by empty ones.
+func (ri *runInfo) fillAbsent() {
+	ri.sitesPresent = ri.Sites != nil
+	if ri.Sites == nil {
+		ri.Sites = &stats.SitesSummary{Lambda: numfmt.JSONFloat(math.NaN()), MeanFSite: numfmt.JSONFloat(math.NaN())}
 	}
-	return out
+	if ri.ROH == nil {
+		ri.ROH = &roh.Summary{}
+	}
 }
 
 // rohRun is one row of runs.tsv.
@@ -178,6 +114,7 @@ func load(dir string) (*data, error) {
 }
 
 func (d *data) loadInfo(path string) error {
+	defer d.info.fillAbsent()
 	b, err := os.ReadFile(path)
 	if errors.Is(err, os.ErrNotExist) {
 		return nil
@@ -193,9 +130,6 @@ func (d *data) loadInfo(path string) error {
 		}
 		return fmt.Errorf("report: %s: %v: %w", path, err, ErrMalformed)
 	}
-	var probe map[string]json.RawMessage
-	_ = json.Unmarshal(b, &probe)
-	_, d.info.Sites.present = probe["sites"]
 	d.infoPresent = true
 	return nil
 }

@@ -140,10 +140,10 @@ const (
 func computeHeadline(d *data) headline {
 	h := headline{Samples: len(d.samples.rows), MedianFROH: math.NaN(), ShareAbove1: math.NaN(), ShareAbove2: math.NaN(), Lambda: math.NaN()}
 	h.SitesKept, h.SitesRead = d.info.Records.Kept, d.info.Records.Read
-	h.HasSitesBlock = d.info.Sites.present
+	h.HasSitesBlock = d.info.sitesPresent
 	h.HWETested, h.HWEFail1e6 = d.info.Sites.Tested, d.info.Sites.Below1e6
-	if d.info.Sites.Lambda != nil {
-		h.Lambda = float64(*d.info.Sites.Lambda)
+	if d.info.sitesPresent {
+		h.Lambda = float64(d.info.Sites.Lambda)
 	}
 	var f []float64
 	if d.samples.has("f_roh") {
@@ -303,27 +303,4 @@ func fmtInt(n int64) string {
 		return "-" + b.String()
 	}
 	return b.String()
-}
-
-// meanSD is the mean and sample standard deviation (n-1 denominator) of
-// the non-NaN values; ok is false with fewer than three, as in the scan's
-// het_rate_outlier rule.
-func meanSD(xs []float64) (mean, sd float64, ok bool) {
-	n := 0
-	for _, x := range xs {
-		if !math.IsNaN(x) {
-			n++
-			mean += x
-		}
-	}
-	if n < 3 {
-		return 0, 0, false
-	}
-	mean /= float64(n)
-	for _, x := range xs {
-		if !math.IsNaN(x) {
-			sd += (x - mean) * (x - mean)
-		}
-	}
-	return mean, math.Sqrt(sd / float64(n-1)), true
 }

@@ -206,16 +206,16 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 	v.Skipped = nonZero(sortedKV(d.info.Records.Skipped))
 	v.Warnings = sortedKV(d.info.Warnings)
 	v.ExcludedContigs = sortedKV(d.info.ROH.ExcludedContigs)
-	v.Excluded = d.info.excludedNames()
+	v.Excluded = d.info.Samples.Excluded
 	if len(v.Excluded) > maxExcludedShown {
 		more := len(v.Excluded) - maxExcludedShown
 		v.Excluded = append(v.Excluded[:maxExcludedShown:maxExcludedShown], fmt.Sprintf("… and %d more (see run.json)", more))
 	}
-	if d.info.ROH.CoveredBP != nil && !math.IsNaN(float64(*d.info.ROH.CoveredBP)) {
-		v.CoveredBP = fmtInt(int64(*d.info.ROH.CoveredBP))
+	if d.info.ROH.CoveredBP > 0 {
+		v.CoveredBP = fmtInt(d.info.ROH.CoveredBP)
 	}
-	if d.info.WallSeconds != nil {
-		v.WallSeconds = float64(*d.info.WallSeconds)
+	if d.info.WallSeconds > 0 {
+		v.WallSeconds = d.info.WallSeconds
 	}
 	v.Command = shellJoin(d.info.CommandLine)
 	v.Unknown = c.unknown

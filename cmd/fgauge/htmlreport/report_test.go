@@ -564,15 +564,3 @@ func TestOldPagesRemoved(t *testing.T) {
 		t.Errorf("samples/ holds %s, want %s", got, want)
 	}
 }
-
-func TestMeanSD(t *testing.T) {
-	// common practice: sample SD with n-1; {2,4,4,4,5,5,7,9} has mean 5
-	// and sum of squares 32, so SD = sqrt(32/7)
-	m, sd, ok := meanSD([]float64{2, 4, 4, 4, 5, math.NaN(), 5, 7, 9})
-	if !ok || m != 5 || math.Abs(sd-math.Sqrt(32.0/7)) > 1e-15 {
-		t.Errorf("meanSD = %v %v %v", m, sd, ok)
-	}
-	if _, _, ok := meanSD([]float64{1, 2, math.NaN()}); ok {
-		t.Error("meanSD of two values should not be ok")
-	}
-}

@@ -20,6 +20,7 @@ import (
 
 	"fgauge/cmd/fgauge/htmlreport"
 	"fgauge/cmd/fgauge/internal/scanrun"
+	"fgauge/internal/numfmt"
 	"fgauge/roh"
 	"fgauge/roh/simulate"
 	"fgauge/stats"
@@ -424,7 +425,7 @@ func writeDemoSummary(w io.Writer, ped *pedigree.Pedigree, fped, truth, genomic 
 		fmt.Fprintf(w, "  %-10s %8s %9s %10s  %s\n", "animal", "genomic", "pedigree", "simulated", "mating (from the herd book)")
 	}
 	line := func(r row) {
-		g := "NA"
+		g := numfmt.NA
 		if r.hasG {
 			g = strconv.FormatFloat(r.g, 'f', 3, 64)
 		}

@@ -5,7 +5,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"math"
 	"strings"
 
 	"fgauge/roh"
@@ -77,30 +76,11 @@ func WriteFile(out *Dir, name string, fill func(io.Writer) error) error {
 	return f.Close()
 }
 
-// WriteJSON writes v as indented JSON, NaN and infinities as null.
+// WriteJSON writes v as indented JSON.
 func WriteJSON(out *Dir, name string, v any) error {
 	return WriteFile(out, name, func(w io.Writer) error {
 		enc := json.NewEncoder(w)
 		enc.SetIndent("", "  ")
-		return enc.Encode(sanitizeJSON(v))
+		return enc.Encode(v)
 	})
-}
-
-// sanitizeJSON replaces NaN and infinities, which JSON cannot carry, by null.
-func sanitizeJSON(v any) any {
-	switch x := v.(type) {
-	case float64:
-		if math.IsNaN(x) || math.IsInf(x, 0) {
-			return nil
-		}
-	case map[string]any:
-		for k, e := range x {
-			x[k] = sanitizeJSON(e)
-		}
-	case []any:
-		for i, e := range x {
-			x[i] = sanitizeJSON(e)
-		}
-	}
-	return v
 }

@@ -1,18 +1,102 @@
-// Package runsummary builds run.json, the machine-readable summary of a
-// scan or a merge: what was read, kept, skipped and why, the warnings, and
-// the summaries of the statistics and runs of homozygosity. Scan and
-// merge both build it here, so a merge reports exactly what one pass
-// would.
+// Package runsummary is run.json, the machine-readable summary of a scan
+// or a merge: what was read, kept, skipped and why, the warnings, and the
+// summaries of the statistics and of the runs of homozygosity. Run is the
+// one type that scan and merge write and the report reads; its parts
+// that describe statistics are owned by the packages that compute them
+// (stats.SitesSummary, stats.PopulationSummary, roh.Summary).
+//
+// Scan and merge both build it with Build, so a merge reports exactly
+// what one pass would.
 package runsummary
 
 import (
+	"encoding/json"
 	"fmt"
 	"io"
+	"os"
 
 	"fgauge/roh"
 	"fgauge/stats"
 	"fgauge/vcfscan"
 )
+
+// FileName is the name of the summary in OUTDIR.
+const FileName = "run.json"
+
+// Run is run.json. Fields are in the order the file lists them
+// (alphabetical); optional sections are nil when they do not apply.
+type Run struct {
+	CommandLine []string                 `json:"command_line"`
+	Input       Input                    `json:"input"`
+	Populations *stats.PopulationSummary `json:"populations,omitempty"` // with --populations
+	Records     Records                  `json:"records"`
+	ROH         *roh.Summary             `json:"roh,omitempty"` // without --no-roh
+	Samples     Samples                  `json:"samples"`
+	Shards      *Shards                  `json:"shards,omitempty"` // merges only
+	Sites       *stats.SitesSummary      `json:"sites,omitempty"`
+	Version     string                   `json:"version"`
+	WallSeconds float64                  `json:"wall_seconds"`
+	Warnings    map[string]int64         `json:"warnings"` // count by kind
+}
+
+// Input identifies the file read.
+type Input struct {
+	Format    string `json:"format"`
+	Path      string `json:"path"`       // as given on the command line
+	SizeBytes int64  `json:"size_bytes"` // -1 for standard input
+}
+
+// Records counts the records read, kept, skipped by reason, and the
+// calls masked by --min-gq/--min-dp.
+type Records struct {
+	Kept        int64            `json:"kept"`
+	MaskedCalls int64            `json:"masked_calls"`
+	Read        int64            `json:"read"`
+	Skipped     map[string]int64 `json:"skipped"` // by vcfscan.SkipReason
+}
+
+// Samples counts the samples in the file and kept, and names those left
+// out by --samples/--exclude-samples.
+type Samples struct {
+	Excluded Names `json:"excluded"`
+	// HetRateBand is the het_rate_outlier band of samples.tsv.
+	HetRateBand *stats.HetRateBand `json:"het_rate_band,omitempty"`
+	InFile      int                `json:"in_file"`
+	Kept        int                `json:"kept"`
+}
+
+// Shards describes the states a merge combined.
+type Shards struct {
+	Count                 int      `json:"count"`
+	RecordsOutsideRegions int64    `json:"records_outside_regions"`
+	RecordsRead           int64    `json:"records_read"`
+	Regions               []string `json:"regions"`
+	ShardWallSeconds      float64  `json:"shard_wall_seconds"`
+	States                []string `json:"states"`
+}
+
+// Names is a list of sample names. Reading also accepts entries that are
+// not strings (older or hand-made files) and keeps their JSON text.
+type Names []string
+
+// UnmarshalJSON reads a list whose entries are names or any JSON value.
+func (n *Names) UnmarshalJSON(b []byte) error {
+	var raw []json.RawMessage
+	if err := json.Unmarshal(b, &raw); err != nil {
+		return err
+	}
+	out := make(Names, 0, len(raw))
+	for _, r := range raw {
+		var s string
+		if json.Unmarshal(r, &s) == nil {
+			out = append(out, s)
+			continue
+		}
+		out = append(out, string(r))
+	}
+	*n = out
+	return nil
+}
 
 // Facts are the counts and identities run.json reports besides the
 // statistics: from one scan, or summed over the shards of a merge.
@@ -28,24 +112,23 @@ type Facts struct {
 	SamplesInFile []string
 	Samples       []string // kept, in output order
 	Warnings      []vcfscan.Warning
-	Unlisted      []string // kept samples absent from --populations
 	WallSeconds   float64
 }
 
-// Build builds run.json from the facts and the (merged) statistics,
-// and prints the warnings and the note on unlisted samples to stderr. Scan
-// and merge share it, so a merge reports exactly what one pass would.
-func Build(stderr io.Writer, f *Facts, totals *stats.Totals, rres *roh.Result) map[string]any {
-	skipped := map[string]any{}
+// Build builds run.json from the facts and the (merged) statistics, and
+// prints the warnings and the note on samples missing from --populations
+// to stderr.
+func Build(stderr io.Writer, f *Facts, totals *stats.Totals, rres *roh.Result) *Run {
+	skipped := map[string]int64{}
 	for i := vcfscan.SkipReason(0); i < vcfscan.NumSkipReasons; i++ {
 		skipped[i.String()] = f.Skipped[i]
 	}
 	warns := append(append([]vcfscan.Warning(nil), f.Warnings...), Warnings(totals, f.Kept, rres)...)
-	warnings := map[string]any{}
+	warnings := map[string]int64{}
 	for _, w := range warns {
 		warnings[w.Kind] = w.Count
 	}
-	excluded := []string{}
+	excluded := Names{}
 	keptSet := map[string]bool{}
 	for _, s := range f.Samples {
 		keptSet[s] = true
@@ -55,31 +138,43 @@ func Build(stderr io.Writer, f *Facts, totals *stats.Totals, rres *roh.Result) m
 			excluded = append(excluded, s)
 		}
 	}
-	info := map[string]any{
-		"version":      f.Version,
-		"command_line": f.Argv,
-		"input":        map[string]any{"path": f.InputPath, "size_bytes": f.InputSize, "format": f.InputFormat},
-		"records": map[string]any{
-			"read": f.Read, "kept": f.Kept, "skipped": skipped, "masked_calls": f.Masked,
-		},
-		"samples":      map[string]any{"in_file": len(f.SamplesInFile), "kept": len(f.Samples), "excluded": excluded},
-		"sites":        totals.Summary(),
-		"warnings":     warnings,
-		"wall_seconds": f.WallSeconds,
+	r := &Run{
+		Version:     f.Version,
+		CommandLine: f.Argv,
+		Input:       Input{Path: f.InputPath, SizeBytes: f.InputSize, Format: f.InputFormat},
+		Records:     Records{Read: f.Read, Kept: f.Kept, Skipped: skipped, MaskedCalls: f.Masked},
+		Samples:     Samples{InFile: len(f.SamplesInFile), Kept: len(f.Samples), Excluded: excluded, HetRateBand: ptr(totals.HetRateBand())},
+		Sites:       totals.Summary(),
+		Warnings:    warnings,
+		WallSeconds: f.WallSeconds,
 	}
 	if totals.HasPopulations() {
-		ps := totals.PopulationSummary()
-		ps["samples_not_listed"] = append([]string{}, f.Unlisted...)
-		info["populations"] = ps
-		if n := len(f.Unlisted); n > 0 {
+		r.Populations = totals.PopulationSummary()
+		if n := len(r.Populations.SamplesNotListed); n > 0 {
 			fmt.Fprintf(stderr, "fgauge: %d samples are not in --populations and are left out of population statistics (listed in run.json)\n", n)
 		}
 	}
 	if rres != nil {
-		info["roh"] = rres.Summary()
+		r.ROH = rres.Summary()
 	}
 	for _, w := range warns {
 		fmt.Fprintf(stderr, "fgauge: warning: %s (%d times; first: %s)\n", w.Kind, w.Count, w.Example)
 	}
-	return info
+	return r
 }
+
+// Read reads run.json from path. Unknown fields are ignored; missing ones
+// stay zero (missing sections nil).
+func Read(path string) (*Run, error) {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	r := &Run{}
+	if err := json.Unmarshal(b, r); err != nil {
+		return nil, err
+	}
+	return r, nil
+}
+
+func ptr[T any](v T) *T { return &v }

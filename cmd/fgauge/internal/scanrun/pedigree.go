@@ -1,8 +1,7 @@
 package scanrun
 
 import (
-	"strconv"
-
+	"fgauge/internal/numfmt"
 	"fgauge/stats/pedigree"
 )
 
@@ -17,9 +16,9 @@ func pedigreeColumn(ped *pedigree.Pedigree, samples []string) []string {
 	col := make([]string, len(samples))
 	for i, s := range samples {
 		if v, ok := byID[s]; ok {
-			col[i] = strconv.FormatFloat(v, 'g', -1, 64)
+			col[i] = numfmt.Float(v)
 		} else {
-			col[i] = "NA"
+			col[i] = numfmt.NA
 		}
 	}
 	return col

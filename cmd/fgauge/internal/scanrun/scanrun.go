@@ -148,7 +148,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	defer rd.Close()
 	hdr := rd.Header()
 	samples := rd.Samples()
-	scfg, unlisted, err := cfg.Stats.config(samples)
+	scfg, _, err := cfg.Stats.config(samples)
 	if err != nil {
 		return nil, err
 	}
@@ -337,7 +337,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	if ctx.Err() != nil {
 		return nil, ctx.Err()
 	}
-	info := runInfo(&cfg, rd, &counts, kept, samples, unlisted, totals, rres, start)
+	info := runInfo(&cfg, rd, &counts, kept, samples, totals, rres, start)
 	if err := outdir.WriteJSON(out, "run.json", info); err != nil {
 		return nil, err
 	}
@@ -435,7 +435,7 @@ func writeChunk(c *siteChunk, sitesZ, popZ io.Writer, rc batchSink) error {
 	return nil
 }
 
-func runInfo(cfg *Config, rd *vcfscan.Reader, c *vcfscan.Batch, kept int64, samples, unlisted []string, totals *stats.Totals, rres *roh.Result, start time.Time) map[string]any {
+func runInfo(cfg *Config, rd *vcfscan.Reader, c *vcfscan.Batch, kept int64, samples []string, totals *stats.Totals, rres *roh.Result, start time.Time) *runsummary.Run {
 	size := int64(-1)
 	if st, err := os.Stat(cfg.Input); err == nil && cfg.Input != "-" {
 		size = st.Size()
@@ -443,7 +443,7 @@ func runInfo(cfg *Config, rd *vcfscan.Reader, c *vcfscan.Batch, kept int64, samp
 	f := &runsummary.Facts{Version: cfg.Version, Argv: cfg.CommandLine, InputPath: cfg.Input, InputSize: size, InputFormat: rd.Format().String(),
 		Read: c.Read, Kept: kept, Skipped: c.Skipped, Masked: c.Masked,
 		SamplesInFile: rd.Header().Samples, Samples: samples, Warnings: rd.Warnings(),
-		Unlisted: unlisted, WallSeconds: time.Since(start).Seconds()}
+		WallSeconds: time.Since(start).Seconds()}
 	return runsummary.Build(cfg.Stderr, f, totals, rres)
 }
 

@@ -364,30 +364,19 @@ func Merge(ctx context.Context, cfg MergeConfig) (res *MergeResult, err error) {
 
 // mergeRunInfo builds run.json as one pass would (runsummary.Build) from
 // the merged counts, plus a "shards" section.
-func mergeRunInfo(cfg *MergeConfig, ls []loadedState, m *merged, start time.Time) map[string]any {
+func mergeRunInfo(cfg *MergeConfig, ls []loadedState, m *merged, start time.Time) *runsummary.Run {
 	f := m.first
-	t := m.totals
-	unlisted := []string{}
-	for i, p := range t.PopOf {
-		if p < 0 {
-			unlisted = append(unlisted, t.Samples[i])
-		}
-	}
 	facts := &runsummary.Facts{Version: cfg.Version, Argv: cfg.CommandLine, InputPath: f.InputPath, InputSize: f.InputSize, InputFormat: f.InputFormat,
 		Read: m.read, Kept: m.kept, Skipped: m.skipped, Masked: m.masked,
 		SamplesInFile: f.SamplesInFile, Samples: f.Samples, Warnings: m.warnings,
-		Unlisted: unlisted, WallSeconds: time.Since(start).Seconds()}
-	info := runsummary.Build(cfg.Stderr, facts, t, m.rres)
-	var files, regions []string
+		WallSeconds: time.Since(start).Seconds()}
+	info := runsummary.Build(cfg.Stderr, facts, m.totals, m.rres)
+	sh := &runsummary.Shards{Count: len(ls), RecordsRead: m.readAll, RecordsOutsideRegions: m.outside, ShardWallSeconds: m.wall}
 	for _, l := range ls {
-		files = append(files, l.path)
-		regions = append(regions, DescribeRegions(l.st))
+		sh.States = append(sh.States, l.path)
+		sh.Regions = append(sh.Regions, DescribeRegions(l.st))
 	}
-	info["shards"] = map[string]any{
-		"count": len(ls), "states": files, "regions": regions,
-		"records_read": m.readAll, "records_outside_regions": m.outside,
-		"shard_wall_seconds": m.wall,
-	}
+	info.Shards = sh
 	return info
 }
 
