@@ -112,6 +112,25 @@ func ClassColumn(mb float64) string {
 	return "f_roh_gt_" + strings.ReplaceAll(strconv.FormatFloat(mb, 'g', -1, 64), ".", "p") + "mb"
 }
 
+// ColumnClass returns the class length in Mb named by a column of
+// ClassColumn, e.g. "f_roh_gt_0p5mb" -> 0.5; ok is false for any other
+// name.
+func ColumnClass(col string) (mb float64, ok bool) {
+	rest, found := strings.CutPrefix(col, "f_roh_gt_")
+	if !found {
+		return 0, false
+	}
+	rest, found = strings.CutSuffix(rest, "mb")
+	if !found {
+		return 0, false
+	}
+	v, err := strconv.ParseFloat(strings.ReplaceAll(rest, "p", "."), 64)
+	if err != nil || ClassColumn(v) != col {
+		return 0, false
+	}
+	return v, true
+}
+
 func fmtF(x float64) string { return numfmt.Float(x) }
 
 // WriteRuns writes runs.tsv: a header line and one line per run, grouped

@@ -787,3 +787,23 @@ func TestChromosomesReleased(t *testing.T) {
 		t.Errorf("chromosome summaries %+v", r.Chroms)
 	}
 }
+
+// TestClassColumnNames: ClassColumn and ColumnClass are inverses.
+func TestClassColumnNames(t *testing.T) {
+	for _, tc := range []struct {
+		mb  float64
+		col string
+	}{{0.5, "f_roh_gt_0p5mb"}, {1, "f_roh_gt_1mb"}, {16, "f_roh_gt_16mb"}, {0.25, "f_roh_gt_0p25mb"}, {1.5, "f_roh_gt_1p5mb"}} {
+		if got := ClassColumn(tc.mb); got != tc.col {
+			t.Errorf("ClassColumn(%v) = %q, want %q", tc.mb, got, tc.col)
+		}
+		if mb, ok := ColumnClass(tc.col); !ok || mb != tc.mb {
+			t.Errorf("ColumnClass(%q) = %v, %v", tc.col, mb, ok)
+		}
+	}
+	for _, bad := range []string{"f_roh", "f_roh_gt_mb", "f_roh_gt_1kb", "f_roh_gt_1.5mb", "f_roh_gt_01mb", "f_roh_gt_xmb"} {
+		if _, ok := ColumnClass(bad); ok {
+			t.Errorf("ColumnClass(%q) accepted", bad)
+		}
+	}
+}

@@ -62,3 +62,49 @@ func TestReportCommand(t *testing.T) {
 		t.Error("page written for a sample not in --highlight")
 	}
 }
+
+// TestReportROHClasses: the report's length classes are those the scan
+// used (run.json roh.classes_mb), so a 0.5 Mb class shows in the legend of
+// the cohort report and in the table of every sample page (it used to be
+// dropped, the legend starting at "< 1 Mb").
+func TestReportROHClasses(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "out")
+	code, msg := reportRun("scan", "../../testdata/cohort189.vcf.gz", "-o", out, "--no-progress", "--roh-classes", "0.5,1,2", "--report")
+	if code != exitOK {
+		t.Fatalf("scan: exit %d: %s", code, msg)
+	}
+	html, err := os.ReadFile(filepath.Join(out, "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"&lt; 0.5 Mb", "0.5 Mb–1 Mb", "1 Mb–2 Mb", "&gt; 2 Mb"} {
+		if !bytes.Contains(html, []byte(want)) {
+			t.Errorf("report.html lacks the band %q", want)
+		}
+	}
+	if bytes.Contains(html, []byte("&lt; 1 Mb")) {
+		t.Error("report.html still starts the bands at 1 Mb")
+	}
+	if code, msg := reportRun("report", out, "--per-sample"); code != exitOK {
+		t.Fatalf("report: exit %d: %s", code, msg)
+	}
+	pages, _ := filepath.Glob(filepath.Join(out, "samples", "*.html"))
+	n := 0
+	for _, p := range pages {
+		if filepath.Base(p) == "index.html" {
+			continue
+		}
+		b, err := os.ReadFile(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		n++
+		if !bytes.Contains(b, []byte("<code>f_roh_gt_0p5mb</code>")) || !bytes.Contains(b, []byte("runs of at least 0.5 Mb")) {
+			t.Errorf("%s lacks the 0.5 Mb class row", p)
+			break
+		}
+	}
+	if n != 189 {
+		t.Errorf("%d sample pages, want 189", n)
+	}
+}

@@ -22,7 +22,7 @@ type cohort struct {
 
 func newCohort(d *data, highlight []string) *cohort {
 	t := d.samples
-	c := &cohort{d: d, cols: map[string][]float64{}, classes: parseClasses(t.header), highlight: map[int]bool{}}
+	c := &cohort{d: d, cols: map[string][]float64{}, classes: parseClasses(t.header, &d.info), highlight: map[int]bool{}}
 	n := len(t.rows)
 	c.names = make([]string, n)
 	c.raw = make([]string, n)
@@ -162,12 +162,13 @@ func (c *cohort) layout() genomeLayout {
 	return g
 }
 
-// classOf returns the length band index of a run.
+// classOf returns the length band index of a run: the number of classes
+// it is at least as long as (the rule of the f_roh_gt_* columns).
 func (c *cohort) classOf(lengthBP float64) int {
 	mb := lengthBP / 1e6
 	k := 0
 	for _, cl := range c.classes {
-		if mb > cl.MinMb {
+		if mb >= cl.MinMb {
 			k++
 		}
 	}

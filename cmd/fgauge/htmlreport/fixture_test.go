@@ -199,7 +199,7 @@ func writeFixture(t testing.TB, dir string, o fixtureOpts) []string {
 		"samples":      map[string]any{"in_file": o.n + 1, "kept": o.n, "excluded": []string{"VALE-999"}},
 		"sites": map[string]any{"tested": nSites - 20, "hwe_p_below_1e3": 57, "hwe_p_below_1e6": 13, "hwe_p_below_1e10": 2,
 			"lambda": 1.07, "mean_f_site": 0.021, "qq": qq},
-		"roh": map[string]any{"method": "sliding_window", "covered_bp": covered, "covered_source": "contig_lengths",
+		"roh": map[string]any{"method": "sliding_window", "covered_bp": covered, "covered_source": "contig_lengths", "classes_mb": []float64{1, 2, 4, 8, 16},
 			"autosomes_used": []string{"1", "2", "3"}, "excluded_contigs": map[string]int{"X": o.sitesPerChr}},
 		"populations":  map[string]any{},
 		"warnings":     map[string]int{"half_missing_call": 4},

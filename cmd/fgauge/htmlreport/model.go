@@ -1,8 +1,8 @@
 package htmlreport
 
 import (
+	"fgauge/roh"
 	"math"
-	"regexp"
 	"sort"
 	"strconv"
 	"strings"
@@ -31,8 +31,8 @@ func estimatorLabel(col string) string {
 	case "f_pedigree":
 		return "F_pedigree (from the pedigree, not the genotypes)"
 	}
-	if strings.HasPrefix(col, "f_roh_gt_") {
-		return "F_ROH from runs longer than " + strings.TrimPrefix(col, "f_roh_gt_")
+	if mb, ok := roh.ColumnClass(col); ok {
+		return "F_ROH from runs of at least " + fmtMb(mb)
 	}
 	return col
 }
@@ -45,30 +45,25 @@ var flagText = map[string]string{
 	"no_calls":            "No diploid genotype of this sample was called at any kept site; nothing can be estimated.",
 }
 
-// rohClass is one --roh-classes column: runs longer than MinMb.
+// rohClass is one --roh-classes column: runs of at least MinMb.
 type rohClass struct {
 	Col   string
 	MinMb float64
 }
 
-var reClass = regexp.MustCompile(`^f_roh_gt_([0-9]+(?:\.[0-9]+)?)(kb|mb|gb)$`)
-
-// parseClasses finds the f_roh_gt_* columns and sorts them by length.
-func parseClasses(header []string) []rohClass {
-	var out []rohClass
+// parseClasses returns the length classes run.json lists (roh.classes_mb,
+// published by the detector) whose column is in samples.tsv, shortest
+// first.
+func parseClasses(header []string, info *runInfo) []rohClass {
+	have := map[string]bool{}
 	for _, h := range header {
-		m := reClass.FindStringSubmatch(strings.ToLower(h))
-		if m == nil {
-			continue
+		have[h] = true
+	}
+	var out []rohClass
+	for i, col := range info.ROH.ClassColumns() {
+		if have[col] {
+			out = append(out, rohClass{Col: col, MinMb: info.ROH.ClassesMB[i]})
 		}
-		v, _ := strconv.ParseFloat(m[1], 64)
-		switch m[2] {
-		case "kb":
-			v /= 1000
-		case "gb":
-			v *= 1000
-		}
-		out = append(out, rohClass{Col: h, MinMb: v})
 	}
 	sort.Slice(out, func(i, j int) bool { return out[i].MinMb < out[j].MinMb })
 	return out

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"errors"
+	"fgauge/roh"
 	"html"
 	"io/fs"
 	"math"
@@ -381,8 +382,12 @@ func TestPercentile(t *testing.T) {
 }
 
 func TestBandsAndClasses(t *testing.T) {
-	cl := parseClasses([]string{"sample", "f_roh", "f_roh_gt_2mb", "f_roh_gt_500kb", "f_roh_gt_16mb", "f_roh_gt_x"})
-	if len(cl) != 3 || cl[0].MinMb != 0.5 || cl[1].MinMb != 2 || cl[2].MinMb != 16 {
+	// The classes are those run.json lists whose column samples.tsv has
+	// (4 Mb is listed but its column is missing; f_roh_gt_x is no class).
+	info := &runInfo{}
+	info.ROH = &roh.Summary{ClassesMB: []float64{2, 0.5, 16, 4}}
+	cl := parseClasses([]string{"sample", "f_roh", "f_roh_gt_2mb", "f_roh_gt_0p5mb", "f_roh_gt_16mb", "f_roh_gt_x"}, info)
+	if len(cl) != 3 || cl[0].Col != "f_roh_gt_0p5mb" || cl[0].MinMb != 0.5 || cl[1].MinMb != 2 || cl[2].MinMb != 16 {
 		t.Fatalf("parseClasses = %+v", cl)
 	}
 	if got := bandLabels(cl); strings.Join(got, "|") != "< 0.5 Mb|0.5 Mb–2 Mb|2 Mb–16 Mb|> 16 Mb" {

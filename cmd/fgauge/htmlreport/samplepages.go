@@ -285,7 +285,7 @@ func (c *cohort) sampleView(i int, stem string, g genomeLayout, cr map[string]ra
 		v.Ests = append(v.Ests, ev)
 	}
 	for _, cl := range c.classes {
-		v.Classes = append(v.Classes, namedCell{cl.Col, "runs longer than " + fmtMb(cl.MinMb), newCell(c.col(cl.Col)[i])})
+		v.Classes = append(v.Classes, namedCell{cl.Col, "runs of at least " + fmtMb(cl.MinMb), newCell(c.col(cl.Col)[i])})
 	}
 	if _, ok := c.cols["f_pedigree"]; ok {
 		ped := c.col("f_pedigree")[i]
