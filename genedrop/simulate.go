@@ -1,10 +1,13 @@
-package simulate
+package genedrop
 
 import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"sort"
+
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"fgauge/stats/pedigree"
 )
@@ -210,17 +213,21 @@ func (r *Result) geneDrop(rng *rand.Rand) {
 
 // Crossovers returns the crossover positions (cM, increasing) of one
 // meiosis on a chromosome of lengthCM: a Poisson process with rate one per
-// Morgan, i.e. no interference (Haldane 1919).
+// Morgan, i.e. no interference (Haldane 1919, J Genet 8:299-309). The
+// count is drawn from a Poisson distribution of mean lengthCM/100
+// (gonum distuv.Poisson) and the positions uniformly on [0, lengthCM),
+// which given the count is the same process.
 func Crossovers(rng *rand.Rand, lengthCM float64, buf []float64) []float64 {
 	buf = buf[:0]
-	x := 0.0
-	for {
-		x += rng.ExpFloat64() * 100
-		if x >= lengthCM {
-			return buf
-		}
-		buf = append(buf, x)
+	if !(lengthCM > 0) {
+		return buf
 	}
+	n := int(distuv.Poisson{Lambda: lengthCM / 100, Src: rng}.Rand())
+	for range n {
+		buf = append(buf, rng.Float64()*lengthCM)
+	}
+	slices.Sort(buf)
+	return buf
 }
 
 // HaldaneR is the recombination fraction between loci d Morgans apart
