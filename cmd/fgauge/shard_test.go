@@ -18,8 +18,8 @@ import (
 	"strings"
 	"testing"
 
-	"fgauge/roh"
 	"fgauge/genedrop"
+	"fgauge/roh"
 	"fgauge/stats"
 )
 
