@@ -3,7 +3,6 @@ package vcfscan
 import (
 	"bufio"
 	"bytes"
-	"compress/gzip"
 	"encoding/binary"
 	"errors"
 	"fmt"
@@ -83,7 +82,7 @@ func ParseRegion(s string) (Region, error) {
 // "chrom", "chrom pos" or "chrom start end" with 1-based inclusive
 // coordinates, as in ParseRegion. Errors name the file and line.
 func ReadRegionsFile(path string) ([]Region, error) {
-	f, err := os.Open(path)
+	f, err := OpenText(path)
 	if err != nil {
 		return nil, err
 	}
@@ -353,25 +352,13 @@ func csiNames(aux []byte) []string {
 
 // readIndexBytes reads a BGZF-compressed (or plain) index file whole.
 func readIndexBytes(path string) ([]byte, error) {
-	f, err := os.Open(path)
+	f, err := OpenText(path)
 	if err != nil {
 		return nil, err
 	}
 	defer f.Close()
-	br := bufio.NewReader(f)
-	if magic, _ := br.Peek(2); len(magic) == 2 && magic[0] == 0x1f && magic[1] == 0x8b {
-		zr, err := gzip.NewReader(br)
-		if err != nil {
-			return nil, fmt.Errorf("%s: %w: %v", path, ErrMalformed, err)
-		}
-		// Indexes are small; cap at 1 GiB against a hostile file.
-		raw, err := io.ReadAll(io.LimitReader(zr, 1<<30))
-		if err != nil {
-			return nil, fmt.Errorf("%s: %w: %v", path, ErrMalformed, err)
-		}
-		return raw, nil
-	}
-	return io.ReadAll(io.LimitReader(br, 1<<30))
+	// Indexes are small; cap at 1 GiB against a hostile file.
+	return io.ReadAll(io.LimitReader(f, 1<<30))
 }
 
 func offLess(a, b bgzf.Offset) bool {

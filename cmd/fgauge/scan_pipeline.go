@@ -598,7 +598,7 @@ func (o *scanOptions) loadSampleLists() error {
 // readSampleList reads one name per line (first whitespace-separated field),
 // skipping blank lines and lines starting with '#'.
 func readSampleList(path string) ([]string, error) {
-	f, err := os.Open(path)
+	f, err := vcfscan.OpenText(path)
 	if err != nil {
 		return nil, &usageError{err.Error()}
 	}

@@ -3,7 +3,6 @@ package main
 import (
 	"flag"
 	"fmt"
-	"os"
 
 	"fgauge/stats"
 	"fgauge/vcfscan"
@@ -71,7 +70,7 @@ func (f *statsFlags) prepare(read *vcfscan.Options) error {
 		return usagef("--jackknife-block-mb %v: want a positive number", f.blockMB)
 	}
 	if f.populations != "" && f.pops == nil {
-		r, err := os.Open(f.populations)
+		r, err := vcfscan.OpenText(f.populations)
 		if err != nil {
 			return usagef("--populations: %v", err)
 		}
@@ -81,7 +80,7 @@ func (f *statsFlags) prepare(read *vcfscan.Options) error {
 		}
 	}
 	if f.freqs != "" && f.panel == nil {
-		r, err := os.Open(f.freqs)
+		r, err := vcfscan.OpenText(f.freqs)
 		if err != nil {
 			return usagef("--freqs: %v", err)
 		}
