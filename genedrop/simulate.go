@@ -9,6 +9,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"fgauge/genmap"
 	"fgauge/stats/pedigree"
 )
 
@@ -278,20 +279,38 @@ func gamete(rng *rand.Rand, a, b []seg, lengthCM float64) []seg {
 }
 
 // cmToBP converts a genetic position on chromosome c to bp (fractional).
+// With a map, genetic positions count from the map's value at position 0
+// (see mapLengthCM).
 func (r *Result) cmToBP(c int, cm float64) float64 {
 	ch := r.Chromosomes[c]
-	if pts := r.Config.Map[ch.Name]; len(pts) > 0 {
-		return mapBP(pts, cm)
+	if m := r.Config.Map.Chrom(ch.Name); m != nil {
+		fb := mapFallback(ch)
+		return m.PosAt(cm+m.At(0, fb), fb)
 	}
 	return cm / ch.LengthCM * float64(ch.LengthBP)
 }
 
 func (r *Result) bpToCM(c int, pos int64) float64 {
 	ch := r.Chromosomes[c]
-	if pts := r.Config.Map[ch.Name]; len(pts) > 0 {
-		return mapCM(pts, pos)
+	if m := r.Config.Map.Chrom(ch.Name); m != nil {
+		fb := mapFallback(ch)
+		return m.At(pos, fb) - m.At(0, fb)
 	}
 	return float64(pos) / float64(ch.LengthBP) * ch.LengthCM
+}
+
+// mapLengthCM is the genetic length of chromosome ch under map m: the
+// genetic distance from position 0 to its last base, by the rules of
+// package genmap (a single-point map extrapolates at ch's own mean rate).
+func mapLengthCM(m *genmap.Chrom, ch *Chromosome) float64 {
+	fb := mapFallback(*ch)
+	return m.At(ch.LengthBP, fb) - m.At(0, fb)
+}
+
+// mapFallback is the cM per Mb of chromosome ch's given lengths, used
+// where its map has a single point.
+func mapFallback(ch Chromosome) float64 {
+	return ch.LengthCM / float64(ch.LengthBP) * 1e6
 }
 
 // autozygous returns the merged stretches of chromosome c where the two

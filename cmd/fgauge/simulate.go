@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"fgauge/genedrop"
+	"fgauge/genmap"
 )
 
 func simulateHelp() string {
@@ -110,13 +111,8 @@ func runSimulate(ctx context.Context, env *runEnv, args []string) error {
 		return usagef("simulate: give --pedigree FILE or at least one --design (run 'fgauge simulate --help')")
 	}
 	if *mapFile != "" {
-		f, err := os.Open(*mapFile)
-		if err != nil {
-			return usagef("simulate: %v", err)
-		}
-		cfg.Map, err = genedrop.ReadGeneticMap(f, *mapFile)
-		f.Close()
-		if err != nil {
+		var err error
+		if cfg.Map, err = genmap.ReadFile(*mapFile); err != nil {
 			return usagef("simulate: %v", err)
 		}
 	}
