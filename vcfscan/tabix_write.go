@@ -8,6 +8,7 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/biogo/hts/bgzf/index"
 	"github.com/biogo/hts/tabix"
 	"github.com/klauspost/compress/flate"
 )
@@ -41,8 +42,9 @@ var (
 // biogo/hts/tabix. Records of one chromosome must be contiguous and sorted
 // by start.
 type TabixWriter struct {
-	idx *tabix.Index
-	err error
+	idx   *tabix.Index
+	err   error
+	added int
 }
 
 // NewTabixWriter returns an empty index for a table laid out as cols.
@@ -109,6 +111,11 @@ func (t *TabixWriter) Add(chrom string, beg, end int64, c Chunk) error {
 	if err != nil {
 		t.err = fmt.Errorf("%w: tabix: %s:%d: %v", ErrUnsorted, chrom, beg+1, err)
 	}
+	// biogo keeps one chunk per record until merged; merge touching
+	// chunks now and then so that memory stays small.
+	if t.added++; t.added%(1<<16) == 0 {
+		t.idx.MergeChunks(index.Adjacent)
+	}
 	return t.err
 }
 
@@ -117,6 +124,7 @@ func (t *TabixWriter) WriteTo(w io.Writer) (int64, error) {
 	if t.err != nil {
 		return 0, t.err
 	}
+	t.idx.MergeChunks(index.Adjacent)
 	cw := &countWriter{w: w}
 	bw := NewBGZFWriter(cw, flate.DefaultCompression)
 	bw.SetThreads(1)
