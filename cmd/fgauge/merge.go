@@ -378,6 +378,9 @@ func mergeStates(ctx context.Context, env *runEnv, paths []string, outDir string
 	if err := joinSiteTables(out, "sites.tsv.gz", ls, func(s *shardState) string { return s.SitesFile }); err != nil {
 		return err
 	}
+	if err := vcfscan.IndexBGZFTable(out.Path("sites.tsv.gz"), vcfscan.TabixSitesColumns); err != nil && !errors.Is(err, vcfscan.ErrLimit) && !errors.Is(err, vcfscan.ErrUnsorted) {
+		return err
+	}
 	if m.totals.HasPopulations() {
 		if err := joinSiteTables(out, "sites_by_population.tsv.gz", ls, func(s *shardState) string { return s.PopSitesFile }); err != nil {
 			return err

@@ -10,7 +10,7 @@ import (
 // outputNames are the files a scan or merge may write into OUTDIR; an
 // OUTDIR holding any of them is not overwritten without --force.
 var outputNames = []string{
-	"sites.tsv.gz", "sites_by_population.tsv.gz", "samples.tsv", "runs.tsv",
+	"sites.tsv.gz", "sites.tsv.gz.tbi", "sites_by_population.tsv.gz", "samples.tsv", "runs.tsv",
 	"populations.tsv", "populations_pairwise.tsv", "run.json", "report.html", "samples",
 }
 

@@ -28,6 +28,7 @@ import (
 
 const scanHelp = `Outputs (see 'fgauge columns' for every column):
   OUTDIR/sites.tsv.gz              one row per kept site (BGZF, indexable)
+  OUTDIR/sites.tsv.gz.tbi          its tabix index (e.g. tabix OUTDIR/sites.tsv.gz 1:1-1000000)
   OUTDIR/sites_by_population.tsv.gz  per site and population (with --populations)
   OUTDIR/samples.tsv               one row per sample: counts, genomic F, F_ROH
   OUTDIR/runs.tsv                  one row per run of homozygosity
@@ -348,6 +349,10 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) (err error) {
 	}
 	bar.finish()
 	if err := sitesZ.Close(); err != nil {
+		return err
+	}
+	// Its tabix index, so standard tools slice it by region (none when unsorted or past 2^29).
+	if err := vcfscan.IndexBGZFTable(out.Path("sites.tsv.gz"), vcfscan.TabixSitesColumns); err != nil && !errors.Is(err, vcfscan.ErrLimit) && !errors.Is(err, vcfscan.ErrUnsorted) {
 		return err
 	}
 	if popZ != nil {
