@@ -2,6 +2,7 @@ package vcfscan
 
 import (
 	"bytes"
+	"errors"
 	"fmt"
 	"math/rand/v2"
 	"os"
@@ -154,4 +155,27 @@ func TestTabixWriterStreaming(t *testing.T) {
 		t.Error("a chromosome met again after others was accepted")
 	}
 	tabixQueries(t, path, rows, rand.New(rand.NewPCG(5, 5)))
+}
+
+// FuzzIndexBGZFTable: damaged BGZF or table text never makes the indexer
+// panic, and every refusal is a ParseError naming the file.
+func FuzzIndexBGZFTable(f *testing.F) {
+	var good bytes.Buffer
+	bw := NewBGZFWriter(&good, 6)
+	bw.Write([]byte("chrom\tpos\tv\n1\t5\ta\n1\t9\tb\n2\t3\tc\n"))
+	bw.Close()
+	f.Add(good.Bytes())
+	f.Add(good.Bytes()[:40])
+	f.Add([]byte(BGZFEOF))
+	f.Fuzz(func(t *testing.T, b []byte) {
+		path := filepath.Join(t.TempDir(), "t.tsv.gz")
+		if err := os.WriteFile(path, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		err := IndexBGZFTable(path, TabixSitesColumns)
+		var pe *ParseError
+		if err != nil && (!errors.As(err, &pe) || pe.File != path) {
+			t.Fatalf("error without the file: %v", err)
+		}
+	})
 }
