@@ -305,7 +305,7 @@ func (c *Collector) prepare(ch *chromData, w *chromWork) {
 	n := len(ch.pos)
 	ch.cm = make([]float64, n)
 	w.mapSource = "cm_per_mb"
-	if m := c.cfg.Map.chrom(ch.name); m != nil && len(m.Pos) > 0 {
+	if m := c.cfg.Map.Chrom(ch.name); m != nil && len(m.Pos) > 0 {
 		w.mapSource = "genetic_map"
 		for i, p := range ch.pos {
 			ch.cm[i] = m.At(p, c.cfg.CMPerMB)

@@ -7,6 +7,8 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+
+	"fgauge/genmap"
 )
 
 // ErrConfig is wrapped by every configuration error.
@@ -31,9 +33,10 @@ type Config struct {
 	// CMPerMB converts physical to genetic distance where no map applies;
 	// 0 means the species preset's value, else 1.0.
 	CMPerMB float64
-	// Map, when not nil, gives genetic positions; chromosomes absent from it
-	// fall back to CMPerMB (counted in the summary).
-	Map *GeneticMap
+	// Map, when not nil, gives genetic positions (rules in package genmap;
+	// "chr7" and "7" match); chromosomes absent from it fall back to
+	// CMPerMB (counted in the summary).
+	Map *genmap.Map
 	// Fit estimates, per sample and chromosome, the autozygous fraction and
 	// the transition rate by expectation-maximisation instead of using
 	// AutozygousPrior and Rate.

@@ -24,9 +24,9 @@
 // Collector, keeps the genotypes of one chromosome at a time (2 bits per
 // call, plus 3 bytes per call where phred likelihoods are present), and
 // detects runs on a bounded pool of goroutines while reading continues.
-// It does not read files itself (except a genetic map through
-// ReadGeneticMap) and it computes no per-site or per-sample statistics
-// other than ROH.
+// It does not read files itself (a genetic map comes read by package
+// genmap, the same reader the gene-drop simulator uses) and it computes no
+// per-site or per-sample statistics other than ROH.
 //
 // Memory: for a chromosome of S sites and N samples, N*S/4 bytes of packed
 // calls (at most twice that while the slices grow), 3 bytes per call where

@@ -78,16 +78,6 @@ func ExampleResult_WriteRuns() {
 	// calf_07	1	1950000	7000000	5050001	5.05	203	0	0	NA	9.900990099009901
 }
 
-func ExampleReadGeneticMap() {
-	m, err := roh.ReadGeneticMap(strings.NewReader("chrom pos cm\n1 1000000 1.0\n1 3000000 5.0\n"), "map.txt")
-	if err != nil {
-		panic(err)
-	}
-	fmt.Println(m.Chroms["1"].At(2_000_000, 1.0))
-	// Output:
-	// 3
-}
-
 func ExampleResult_Summary() {
 	c, _ := roh.NewCollector(roh.DefaultConfig(), []string{"calf_07"}, []vcfscan.Contig{{Name: "1", Length: 10_000_000}})
 	b, freqs := calfBatch()

@@ -9,6 +9,7 @@ import (
 	"strings"
 	"testing"
 
+	"fgauge/genmap"
 	"fgauge/vcfscan"
 )
 
@@ -520,34 +521,6 @@ func TestAutosomes(t *testing.T) {
 	}
 }
 
-func TestGeneticMap(t *testing.T) {
-	const in = "chrom pos cm\n# comment\nchr1 1000000 0.5\n1 2000000 2.5\n1 4000000 3.5\n2 500 1\n"
-	m, err := ReadGeneticMap(strings.NewReader(in), "map.txt")
-	if err != nil {
-		t.Fatal(err)
-	}
-	c := m.chrom("chr1")
-	// linear interpolation and end extrapolation by the nearest slope,
-	// worked by hand from the three points above.
-	for _, tc := range []struct {
-		pos  int64
-		want float64
-	}{{1_000_000, 0.5}, {1_500_000, 1.5}, {3_000_000, 3.0}, {5_000_000, 4.0}, {0, -1.5}} {
-		if got := c.At(tc.pos, 1); math.Abs(got-tc.want) > 1e-12 {
-			t.Errorf("At(%d) = %g, want %g", tc.pos, got, tc.want)
-		}
-	}
-	if got := m.chrom("2").At(1_000_500, 2); math.Abs(got-3) > 1e-12 {
-		t.Errorf("single point map: got %g, want 3", got)
-	}
-	for _, bad := range []string{"1 100 1\n1 50 2\n", "1 100 2\n1 200 1\n", "1 100\n", "1 100 1\n1 x 2\n", ""} {
-		_, err := ReadGeneticMap(strings.NewReader(bad), "bad.txt")
-		if !errors.Is(err, ErrMap) {
-			t.Errorf("%q: got %v, want ErrMap", bad, err)
-		}
-	}
-}
-
 // Emission rows are probability distributions over the three genotypes
 // (stored as float32, so to float32 precision).
 func TestEmissionRowSums(t *testing.T) {
@@ -590,36 +563,6 @@ func TestSampleTableAndSummary(t *testing.T) {
 	if len(lines) != 3 || lines[1] != "a\t1\t1\t3000000\t3000000\t3\t0\t0\t0\t0\t16.666666666666668" {
 		t.Errorf("runs.tsv:\n%s", buf.String())
 	}
-}
-
-// FuzzReadGeneticMap: the map reader never panics, and what it accepts is
-// sorted and interpolates monotonically.
-func FuzzReadGeneticMap(f *testing.F) {
-	f.Add("chrom pos cm\n1 1000 0.1\n1 2000 0.3\n")
-	f.Add("# c\nchr2 5 0\nchr2 9 0\n")
-	f.Add("1 1 1\n1 1 1\n")
-	f.Fuzz(func(t *testing.T, in string) {
-		m, err := ReadGeneticMap(strings.NewReader(in), "fuzz.map")
-		if err != nil {
-			if !errors.Is(err, ErrMap) && !strings.Contains(err.Error(), "fuzz.map") {
-				t.Fatalf("error without position or sentinel: %v", err)
-			}
-			return
-		}
-		for _, c := range m.Chroms {
-			for i := 1; i < len(c.Pos); i++ {
-				if c.Pos[i] <= c.Pos[i-1] || c.CM[i] < c.CM[i-1] {
-					t.Fatalf("accepted unsorted map %v %v", c.Pos, c.CM)
-				}
-			}
-			if len(c.Pos) >= 2 {
-				a, b := c.At(c.Pos[0], 1), c.At(c.Pos[len(c.Pos)-1], 1)
-				if b < a {
-					t.Fatalf("interpolation decreases: %g then %g", a, b)
-				}
-			}
-		}
-	})
 }
 
 // The two-lane HMM passes give exactly the runs and qualities of the
@@ -671,7 +614,7 @@ func TestGobRoundTrip(t *testing.T) {
 	for _, method := range []string{MethodHMM, MethodRules} {
 		cfg := DefaultConfig()
 		cfg.Method = method
-		cfg.Map, _ = ReadGeneticMap(strings.NewReader("1 1 0\n1 30000000 40\n"), "map")
+		cfg.Map, _ = genmap.Read(strings.NewReader("1 1 0\n1 30000000 40\n"), "map")
 		r := collect(t, cfg, sampleNames(ns), contigs, sites)
 		var buf bytes.Buffer
 		if err := gob.NewEncoder(&buf).Encode(struct {
@@ -693,7 +636,7 @@ func TestGobRoundTrip(t *testing.T) {
 		if w1.String() != w2.String() || strings.Count(w1.String(), "\n") < 2 {
 			t.Errorf("%s: runs.tsv differs after gob round trip", method)
 		}
-		if back.C.Map.chrom("1").At(15_000_000, 1) != cfg.Map.chrom("1").At(15_000_000, 1) {
+		if back.C.Map.Chrom("1").At(15_000_000, 1) != cfg.Map.Chrom("1").At(15_000_000, 1) {
 			t.Errorf("%s: map lost in round trip", method)
 		}
 		if !back.R.MapUsed || back.R.Chroms[0].MapSource != "genetic_map" || back.R.Chroms[1].MapSource != "cm_per_mb" {
@@ -785,6 +728,26 @@ func TestChromosomesReleased(t *testing.T) {
 	}
 	if len(r.Chroms) != 3 || r.Chroms[2].NSites != 100 || r.Chroms[0].FirstPos != 10_000 || r.Chroms[0].LastPos != 1_000_000 {
 		t.Errorf("chromosome summaries %+v", r.Chroms)
+	}
+}
+
+// A map naming "chr1" applies to contig "1" (and "1" to "chr1"): the
+// detection uses genmap's name rule, the same as the gene-drop simulator.
+func TestGeneticMapChrPrefix(t *testing.T) {
+	const ns = 3
+	contigs, sites := randomCohort(8, ns)
+	for _, text := range []string{"chr1 1 0\nchr1 30000000 40\n", "CHR1 1 0\nCHR1 30000000 40\n"} {
+		cfg := DefaultConfig()
+		cfg.Method = MethodRules
+		var err error
+		if cfg.Map, err = genmap.Read(strings.NewReader(text), "map"); err != nil {
+			t.Fatal(err)
+		}
+		r := collect(t, cfg, sampleNames(ns), contigs, sites)
+		if r.Chroms[0].Name != "1" || r.Chroms[0].MapSource != "genetic_map" || r.Chroms[1].MapSource != "cm_per_mb" {
+			t.Errorf("map %q: chromosome %q map source %q, next %q; want genetic_map for 1 only",
+				text, r.Chroms[0].Name, r.Chroms[0].MapSource, r.Chroms[1].MapSource)
+		}
 	}
 }
 

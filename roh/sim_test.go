@@ -6,7 +6,7 @@ import (
 	"sort"
 	"testing"
 
-	"fgauge/roh/simulate"
+	"fgauge/genedrop"
 	"fgauge/vcfscan"
 )
 
@@ -20,7 +20,7 @@ type simScore struct {
 
 // simBatches turns a simulated cohort into batches once, so that both
 // detectors read the same data without simulating it again.
-func simBatches(t *testing.T, sim *simulate.Result) ([]string, []vcfscan.Contig, []*vcfscan.Batch) {
+func simBatches(t *testing.T, sim *genedrop.Result) ([]string, []vcfscan.Contig, []*vcfscan.Batch) {
 	t.Helper()
 	names := make([]string, len(sim.Samples))
 	for i, s := range sim.Samples {
@@ -34,7 +34,7 @@ func simBatches(t *testing.T, sim *simulate.Result) ([]string, []vcfscan.Contig,
 	var bs []*vcfscan.Batch
 	b := &vcfscan.Batch{NSamples: len(names)}
 	hasPL := sim.Config.Depth > 0
-	err := sim.ForEachSite(func(s *simulate.Site) error {
+	err := sim.ForEachSite(func(s *genedrop.Site) error {
 		b.Records = append(b.Records, vcfscan.Record{ChromID: s.Chrom, Pos: s.Pos})
 		b.GT = append(b.GT, s.GT...)
 		if hasPL {
@@ -78,7 +78,7 @@ func detectSim(t *testing.T, cfg *Config, names []string, contigs []vcfscan.Cont
 
 // scoreSim scores the runs of the focal animals of one design against the
 // simulator's truth.
-func scoreSim(sim *simulate.Result, res *Result, design string) simScore {
+func scoreSim(sim *genedrop.Result, res *Result, design string) simScore {
 	stats := res.SampleStats()
 	type key struct{ s, c int }
 	truth := map[key][][2]int64{}
@@ -162,7 +162,7 @@ func pearson(x, y []float64) float64 {
 }
 
 // Simulated truth: gene dropping through full-sib, half-sib,
-// first-cousin, parent-offspring and selfing designs (roh/simulate), with
+// first-cousin, parent-offspring and selfing designs (genedrop), with
 // 0.1% genotype error and 0.5% missing calls, at array density (one site
 // per 30 kb, U-shaped spectrum, 200 replicates) and sequence density (one
 // site per 4 kb, neutral spectrum, 60 replicates; sparser than real
@@ -195,26 +195,26 @@ func TestSimulatedTruth(t *testing.T) {
 	densities := []struct {
 		name    string
 		spacing float64
-		spec    simulate.Spectrum
+		spec    genedrop.Spectrum
 		reps    int
 	}{
-		{"array", 30_000, simulate.SpectrumUShaped, 200},
-		{"sequence", 4_000, simulate.SpectrumNeutral, 60},
+		{"array", 30_000, genedrop.SpectrumUShaped, 200},
+		{"sequence", 4_000, genedrop.SpectrumNeutral, 60},
 	}
 	for _, dn := range densities {
-		var ds []simulate.Design
+		var ds []genedrop.Design
 		dstr := map[string]string{} // as recorded in SampleTruth.Design
 		for _, d := range designs {
-			x, err := simulate.ParseDesign(d.d)
+			x, err := genedrop.ParseDesign(d.d)
 			if err != nil {
 				t.Fatal(err)
 			}
 			ds = append(ds, x)
 			dstr[d.d] = x.String()
 		}
-		sim, err := simulate.Run(simulate.Config{
+		sim, err := genedrop.Run(genedrop.Config{
 			Seed:          20261202,
-			Chromosomes:   []simulate.Chromosome{{Name: "1", LengthBP: 150_000_000, LengthCM: 150}, {Name: "2", LengthBP: 120_000_000, LengthCM: 120}, {Name: "3", LengthBP: 100_000_000, LengthCM: 100}},
+			Chromosomes:   []genedrop.Chromosome{{Name: "1", LengthBP: 150_000_000, LengthCM: 150}, {Name: "2", LengthBP: 120_000_000, LengthCM: 120}, {Name: "3", LengthBP: 100_000_000, LengthCM: 100}},
 			SiteSpacing:   dn.spacing,
 			Spectrum:      dn.spec,
 			Designs:       ds,
@@ -262,7 +262,7 @@ func TestSimulatedTruth(t *testing.T) {
 	}
 }
 
-// Low-depth sequence with phred likelihoods (roh/simulate reads at mean
+// Low-depth sequence with phred likelihoods (genedrop reads at mean
 // depth 4 with 1% base error; GT is the most likely genotype, so many true
 // heterozygotes are called homozygous and a few homozygotes heterozygous).
 // The HMM reading PL should stay accurate; the numbers are reported next
@@ -271,21 +271,21 @@ func TestSimulatedLowDepthPL(t *testing.T) {
 	if testing.Short() {
 		t.Skip("simulation: skipped with -short")
 	}
-	var ds []simulate.Design
+	var ds []genedrop.Design
 	dstr := map[string]string{}
 	for _, s := range []string{"full_sib", "half_sib"} {
-		d, err := simulate.ParseDesign(s)
+		d, err := genedrop.ParseDesign(s)
 		if err != nil {
 			t.Fatal(err)
 		}
 		ds = append(ds, d)
 		dstr[s] = d.String()
 	}
-	sim, err := simulate.Run(simulate.Config{
+	sim, err := genedrop.Run(genedrop.Config{
 		Seed:        7,
-		Chromosomes: []simulate.Chromosome{{Name: "1", LengthBP: 100_000_000, LengthCM: 100}, {Name: "2", LengthBP: 80_000_000, LengthCM: 80}},
+		Chromosomes: []genedrop.Chromosome{{Name: "1", LengthBP: 100_000_000, LengthCM: 100}, {Name: "2", LengthBP: 80_000_000, LengthCM: 80}},
 		SiteSpacing: 5_000,
-		Spectrum:    simulate.SpectrumNeutral,
+		Spectrum:    genedrop.SpectrumNeutral,
 		Designs:     ds,
 		Replicates:  25,
 		Depth:       4,
@@ -317,16 +317,16 @@ func TestSimulatedFit(t *testing.T) {
 	if testing.Short() {
 		t.Skip("simulation: skipped with -short")
 	}
-	var ds []simulate.Design
+	var ds []genedrop.Design
 	dstr := map[string]string{}
 	for _, s := range []string{"full_sib", "first_cousin"} {
-		d, _ := simulate.ParseDesign(s)
+		d, _ := genedrop.ParseDesign(s)
 		ds = append(ds, d)
 		dstr[s] = d.String()
 	}
-	sim, err := simulate.Run(simulate.Config{
+	sim, err := genedrop.Run(genedrop.Config{
 		Seed:          11,
-		Chromosomes:   []simulate.Chromosome{{Name: "1", LengthBP: 150_000_000, LengthCM: 150}, {Name: "2", LengthBP: 120_000_000, LengthCM: 120}},
+		Chromosomes:   []genedrop.Chromosome{{Name: "1", LengthBP: 150_000_000, LengthCM: 150}, {Name: "2", LengthBP: 120_000_000, LengthCM: 120}},
 		SiteSpacing:   30_000,
 		Designs:       ds,
 		Replicates:    30,

@@ -5,6 +5,7 @@ import (
 	"fgauge/internal/numfmt"
 	"io"
 	"math"
+	"math/bits"
 	"sort"
 	"strings"
 )
@@ -226,7 +227,7 @@ func (t *Totals) Summary() *SitesSummary {
 	case FreqPanel:
 		var met int64
 		for _, w := range t.Freq.PanelMet {
-			met += int64(popcount(w))
+			met += int64(bits.OnesCount64(w))
 		}
 		fr.PanelSites = p(int64(t.Freq.PanelSize))
 		fr.PanelNeverMet = p(int64(t.Freq.PanelSize) - met)
@@ -285,17 +286,8 @@ func (t *Totals) PopulationSummary() *PopulationSummary {
 	}
 }
 
-func popcount(x uint64) int {
-	n := 0
-	for x != 0 {
-		x &= x - 1
-		n++
-	}
-	return n
-}
-
 // lambda is the genomic inflation factor of the HWE chi-square
-// statistics: median / 0.4549364 (common practice), with the median read
+// statistics: median / the median of chi-square(1) (common practice), with the median read
 // from a histogram of 1000 bins per decade (bin centre; within 0.12%).
 func (t *Totals) lambda() float64 {
 	h := t.HWETally.ChiHist

@@ -5,13 +5,13 @@ import (
 	"strconv"
 	"testing"
 
-	"fgauge/roh/simulate"
+	"fgauge/genedrop"
 	"fgauge/stats"
 	"fgauge/vcfscan"
 )
 
 // TestSelfingTruth drops genomes through selfed lines with the project's
-// gene-drop simulator (roh/simulate, whose truth we control) and checks
+// gene-drop simulator (genedrop, whose truth we control) and checks
 // that f_hom and f_uniting_gametes, read against the ancestral-pool
 // frequencies (passed as INFO values), track the realized autozygous share
 // of each focal animal, which after t selfing generations is about
@@ -22,14 +22,14 @@ import (
 func TestSelfingTruth(t *testing.T) {
 	var n int
 	for g := 1; g <= 4; g++ {
-		d, err := simulate.ParseDesign("selfing:" + strconv.Itoa(g))
+		d, err := genedrop.ParseDesign("selfing:" + strconv.Itoa(g))
 		if err != nil {
 			t.Fatal(err)
 		}
-		res, err := simulate.Run(simulate.Config{
+		res, err := genedrop.Run(genedrop.Config{
 			Seed:        uint64(10 + g),
-			Chromosomes: []simulate.Chromosome{{Name: "1", LengthBP: 150_000_000, LengthCM: 150}, {Name: "2", LengthBP: 100_000_000, LengthCM: 100}},
-			Designs:     []simulate.Design{d},
+			Chromosomes: []genedrop.Chromosome{{Name: "1", LengthBP: 150_000_000, LengthCM: 150}, {Name: "2", LengthBP: 100_000_000, LengthCM: 100}},
+			Designs:     []genedrop.Design{d},
 			Replicates:  3,
 			SiteSpacing: 50_000,
 		})
@@ -44,7 +44,7 @@ func TestSelfingTruth(t *testing.T) {
 		w := stats.NewWorker(cfg, func(id int) string { return res.Chromosomes[id].Name })
 		b := &vcfscan.Batch{NSamples: len(names), Records: make([]vcfscan.Record, 1)}
 		freqs := make([]float64, 1)
-		err = res.ForEachSite(func(s *simulate.Site) error {
+		err = res.ForEachSite(func(s *genedrop.Site) error {
 			b.Records[0] = vcfscan.Record{ChromID: s.Chrom, Pos: s.Pos, Ref: []byte{s.Ref}, Alt: []byte{s.Alt}, InfoValue: s.PoolFreq}
 			b.GT = append(b.GT[:0], s.GT...)
 			w.ProcessBatch(b, nil, nil, freqs)

@@ -5,6 +5,8 @@ import (
 	"fgauge/internal/numfmt"
 	"fmt"
 	"math"
+
+	"gonum.org/v1/gonum/stat/distuv"
 	"slices"
 	"strings"
 )
@@ -67,9 +69,13 @@ const (
 	chiBinsPerDec  = 1000
 	chiMinLog10    = -12
 	chiZeroBin     = math.MinInt32
-	lambdaDivisor  = 0.4549364 // median of chi-square(1), common practice
 	defaultQQPoint = 300
 )
+
+// lambdaDivisor is the median of the chi-square distribution with one
+// degree of freedom (0.45493642...), the expected median of the HWE test
+// statistics under the null (common practice), from gonum's quantile.
+var lambdaDivisor = distuv.ChiSquared{K: 1}.Quantile(0.5)
 
 func (h *HWESummary) add(r *HWEResult) {
 	h.Tested++

@@ -9,6 +9,7 @@ import (
 	"io"
 	"runtime"
 	"sync"
+	"sync/atomic"
 
 	"github.com/biogo/hts/bgzf"
 	"github.com/klauspost/compress/flate"
@@ -26,12 +27,8 @@ const (
 	bgzfWriteChunk  = 0xff00
 )
 
-// bgzfEOF is the 28-byte empty block that ends a BGZF file (SAM spec 4.1.2).
-var bgzfEOF = []byte{
-	0x1f, 0x8b, 0x08, 0x04, 0x00, 0x00, 0x00, 0x00, 0x00, 0xff, 0x06, 0x00,
-	0x42, 0x43, 0x02, 0x00, 0x1b, 0x00, 0x03, 0x00, 0x00, 0x00, 0x00, 0x00,
-	0x00, 0x00, 0x00, 0x00,
-}
+// bgzfEOF is BGZFEOF as bytes.
+var bgzfEOF = []byte(BGZFEOF)
 
 // isBGZFHeader reports whether p starts like a BGZF block: gzip magic,
 // deflate, FEXTRA set and a BC subfield in the extra field.
@@ -459,6 +456,8 @@ type BGZFWriter struct {
 	errMu   sync.Mutex
 	err     error
 	closed  bool
+	pending int          // blocks submitted since the last wait for the writer
+	written atomic.Int64 // compressed bytes written to w
 }
 
 // bgzfWJob is one block on its way through the writer. A job with
@@ -574,7 +573,9 @@ func (bw *BGZFWriter) writeLoop() {
 		}
 		<-j.ready
 		if bw.getErr() == nil {
-			if _, err := bw.w.Write(j.out.Bytes()); err != nil {
+			n, err := bw.w.Write(j.out.Bytes())
+			bw.written.Add(int64(n))
+			if err != nil {
 				bw.setErr(err)
 			}
 		}
@@ -587,6 +588,7 @@ func (bw *BGZFWriter) writeLoop() {
 func (bw *BGZFWriter) submit() {
 	j := bw.cur
 	bw.cur = nil
+	bw.pending++
 	bw.order <- j
 	bw.jobs <- j
 }
@@ -633,10 +635,37 @@ func (bw *BGZFWriter) Flush() error {
 	if bw.cur != nil && len(bw.cur.in) > 0 {
 		bw.submit()
 	}
+	bw.waitWritten()
+	return bw.getErr()
+}
+
+// waitWritten waits until every block submitted so far is written.
+func (bw *BGZFWriter) waitWritten() {
 	marker := &bgzfWJob{flush: true, ready: make(chan struct{}, 1)}
 	bw.order <- marker
 	<-marker.ready
-	return bw.getErr()
+	bw.pending = 0
+}
+
+// Offset returns the virtual offset (SAM/BAM format specification,
+// section 4.1.1) at which the next byte written will be found in the
+// output: the compressed offset of the block being filled and the number
+// of bytes already in it. It waits until the blocks before that block are
+// compressed and written, so a caller asking once per record pays one
+// wait per block (the blocks are then compressed one at a time);
+// IndexBGZFTable indexes a finished table without that cost.
+func (bw *BGZFWriter) Offset() (Offset, error) {
+	if bw.closed {
+		return Offset{}, errWriterClosed
+	}
+	if bw.started && bw.pending > 0 {
+		bw.waitWritten()
+	}
+	o := Offset{File: bw.written.Load()}
+	if bw.cur != nil {
+		o.Block = uint16(len(bw.cur.in))
+	}
+	return o, bw.getErr()
 }
 
 // Close flushes the last block, writes the EOF block and stops the
@@ -657,7 +686,9 @@ func (bw *BGZFWriter) Close() error {
 	if err := bw.getErr(); err != nil {
 		return err
 	}
-	if _, err := bw.w.Write(bgzfEOF); err != nil {
+	n, err := bw.w.Write(bgzfEOF)
+	bw.written.Add(int64(n))
+	if err != nil {
 		bw.setErr(err)
 		return err
 	}

@@ -20,6 +20,14 @@
 // blank_lines, no_fileformat_line and unknown_fileformat.
 //
 // vcfscan knows nothing about statistics: the stats and roh packages
-// consume its batches. It also writes BGZF (BGZFWriter) for the tables and
-// simulated files the command line produces.
+// consume its batches. It is the one owner of BGZF and index I/O in
+// fgauge, and the only package that imports biogo/hts:
+//
+//   - OpenIndex reads a .tbi or .csi index (checked against damaged counts
+//     and refused when older than its data) for region queries, plan's
+//     shards and shard ordering; Offset and Chunk are its virtual offsets.
+//   - BGZFWriter writes BGZF (Offset reports virtual offsets); BGZFEOF,
+//     BGZFBlockSize and BGZFRatio serve block splicing and cost estimates.
+//   - TabixWriter and IndexBGZFTable write tabix indexes (biogo/hts/tabix).
+//   - OpenText opens small text inputs, plain, gzip or BGZF by content.
 package vcfscan

@@ -3,7 +3,6 @@ package vcfscan
 import (
 	"bufio"
 	"bytes"
-	"compress/gzip"
 	"encoding/binary"
 	"errors"
 	"fmt"
@@ -14,9 +13,6 @@ import (
 	"strings"
 
 	"github.com/biogo/hts/bgzf"
-	"github.com/biogo/hts/bgzf/index"
-	"github.com/biogo/hts/csi"
-	"github.com/biogo/hts/tabix"
 )
 
 // Errors of region parsing and index lookup; test with errors.Is.
@@ -86,7 +82,7 @@ func ParseRegion(s string) (Region, error) {
 // "chrom", "chrom pos" or "chrom start end" with 1-based inclusive
 // coordinates, as in ParseRegion. Errors name the file and line.
 func ReadRegionsFile(path string) ([]Region, error) {
-	f, err := os.Open(path)
+	f, err := OpenText(path)
 	if err != nil {
 		return nil, err
 	}
@@ -256,11 +252,7 @@ func findIndex(path string) (string, error) {
 // index nor h knows is an error (ErrUnknownContig); one the header declares
 // but the index lacks (no records) gives no chunks.
 func regionChunks(path string, h *Header, regs []Region) ([]bgzf.Chunk, error) {
-	idxPath, err := findIndex(path)
-	if err != nil {
-		return nil, err
-	}
-	raw, err := readIndexBytes(idxPath)
+	idx, err := OpenIndex(path, h)
 	if err != nil {
 		return nil, err
 	}
@@ -277,91 +269,34 @@ func regionChunks(path string, h *Header, regs []Region) ([]bgzf.Chunk, error) {
 		if len(names) > len(show) {
 			more = fmt.Sprintf(" and %d more", len(names)-len(show))
 		}
-		return fmt.Errorf("%s: %w: %q (index has %s%s)", idxPath, ErrUnknownContig, chrom, strings.Join(show, ", "), more)
-	}
-
-	if bytes.HasPrefix(raw, []byte("TBI\x01")) || bytes.HasPrefix(raw, []byte("CSI")) {
-		if err := checkIndexCounts(raw); err != nil {
-			return nil, fmt.Errorf("%s: %w", idxPath, err)
-		}
+		return fmt.Errorf("%s: %w: %q (index has %s%s)", idx.Path, ErrUnknownContig, chrom, strings.Join(show, ", "), more)
 	}
 	var chunks []bgzf.Chunk
-	switch {
-	case bytes.HasPrefix(raw, []byte("TBI\x01")):
-		var idx *tabix.Index
-		err := noPanic(func() (err error) { idx, err = tabix.ReadFrom(bytes.NewReader(raw)); return err })
-		if err != nil || idx == nil {
-			return nil, fmt.Errorf("%s: %w: cannot read tabix index: %v", idxPath, ErrMalformed, err)
-		}
-		ids := idx.IDs()
-		for _, r := range regs {
-			if _, ok := ids[r.Chrom]; !ok {
-				if inHeader[r.Chrom] {
-					continue
-				}
-				return nil, unknown(r.Chrom, idx.Names())
-			}
-			beg, end, ok := clampRegion(r, tabixMaxPos)
-			if !ok {
+	for _, r := range regs {
+		rid, ok := idx.Ref(r.Chrom)
+		if !ok {
+			if inHeader[r.Chrom] {
 				continue
 			}
-			cs, err := idx.Chunks(r.Chrom, beg, end)
-			if err != nil && !errors.Is(err, index.ErrInvalid) {
-				return nil, fmt.Errorf("%s: region %s: %w", idxPath, r.Chrom, err)
-			}
-			chunks = append(chunks, cs...)
+			return nil, unknown(r.Chrom, idx.Names())
 		}
-	case bytes.HasPrefix(raw, []byte("CSI\x01")) || bytes.HasPrefix(raw, []byte("CSI\x02")):
-		if len(raw) < 12 {
-			return nil, fmt.Errorf("%s: %w: CSI index cut short", idxPath, ErrMalformed)
+		beg, end, ok := clampRegion(r, idx.MaxPos)
+		if !ok {
+			continue
 		}
-		minShift := binary.LittleEndian.Uint32(raw[4:8])
-		depth := binary.LittleEndian.Uint32(raw[8:12])
-		if minShift+3*depth > 62 {
-			return nil, fmt.Errorf("%s: %w: CSI min_shift %d depth %d out of range", idxPath, ErrMalformed, minShift, depth)
-		}
-		var idx *csi.Index
-		err := noPanic(func() (err error) { idx, err = csi.ReadFrom(bytes.NewReader(raw)); return err })
+		cs, err := idx.Chunks(rid, int64(beg), int64(end))
 		if err != nil {
-			return nil, fmt.Errorf("%s: %w: cannot read CSI index: %v", idxPath, ErrMalformed, err)
+			return nil, err
 		}
-		names := csiNames(idx.Auxilliary)
-		if names == nil {
-			// BCF: reference IDs are the header's contig dictionary.
-			_, names, err = bcfDictionaries(h.Meta)
-			if err != nil {
-				return nil, fmt.Errorf("%s: %w: %v", path, ErrMalformed, err)
-			}
+		for _, c := range cs {
+			chunks = append(chunks, toBGZFChunk(c))
 		}
-		ids := make(map[string]int, len(names))
-		for i, n := range names {
-			if _, dup := ids[n]; !dup && n != "" {
-				ids[n] = i
-			}
-		}
-		for _, r := range regs {
-			rid, ok := ids[r.Chrom]
-			if !ok {
-				if inHeader[r.Chrom] {
-					continue
-				}
-				return nil, unknown(r.Chrom, names)
-			}
-			beg, end, ok := clampRegion(r, int64(1)<<(minShift+3*depth))
-			if !ok {
-				continue
-			}
-			chunks = append(chunks, idx.Chunks(rid, beg, end)...)
-		}
-	default:
-		return nil, fmt.Errorf("%s: %w: not a tabix or CSI index", idxPath, ErrMalformed)
 	}
 	chunks = mergeChunks(chunks)
 	if st, err := os.Stat(path); err == nil {
 		for _, c := range chunks {
 			if c.Begin.File >= st.Size() {
-				return nil, fmt.Errorf("%s: %w: it points at byte %d but %s has only %d bytes; the index belongs to another version of the data file: rebuild it",
-					idxPath, ErrMalformed, c.Begin.File, path, st.Size())
+				return nil, staleOffsets(idx.Path, path, c.Begin.File, st.Size())
 			}
 		}
 	}
@@ -417,25 +352,13 @@ func csiNames(aux []byte) []string {
 
 // readIndexBytes reads a BGZF-compressed (or plain) index file whole.
 func readIndexBytes(path string) ([]byte, error) {
-	f, err := os.Open(path)
+	f, err := OpenText(path)
 	if err != nil {
 		return nil, err
 	}
 	defer f.Close()
-	br := bufio.NewReader(f)
-	if magic, _ := br.Peek(2); len(magic) == 2 && magic[0] == 0x1f && magic[1] == 0x8b {
-		zr, err := gzip.NewReader(br)
-		if err != nil {
-			return nil, fmt.Errorf("%s: %w: %v", path, ErrMalformed, err)
-		}
-		// Indexes are small; cap at 1 GiB against a hostile file.
-		raw, err := io.ReadAll(io.LimitReader(zr, 1<<30))
-		if err != nil {
-			return nil, fmt.Errorf("%s: %w: %v", path, ErrMalformed, err)
-		}
-		return raw, nil
-	}
-	return io.ReadAll(io.LimitReader(br, 1<<30))
+	// Indexes are small; cap at 1 GiB against a hostile file.
+	return io.ReadAll(io.LimitReader(f, 1<<30))
 }
 
 func offLess(a, b bgzf.Offset) bool {

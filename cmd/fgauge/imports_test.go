@@ -28,15 +28,14 @@ func TestMainImports(t *testing.T) {
 		"fgauge/stats":                      true, // population and panel options, error sentinels
 		"fgauge/stats/pedigree":             true, // the pedigree command, error sentinels
 		"fgauge/roh":                        true, // detection options, error sentinels
-		"fgauge/roh/simulate":               true, // the simulate command's options
+		"fgauge/genedrop":                   true, // the simulate command's options
+		"fgauge/genmap":                     true, // the --recombination-map option
 		"github.com/schollz/progressbar/v3": true,
 		"golang.org/x/term":                 true,
 	}
 	// Standard packages that mean file-format or pipeline work.
 	denied := []string{"encoding/", "compress/", "crypto/", "hash/", "text/template", "html/", "archive/", "embed", "net/"}
-	// Allowed for now: the --recombination-map reader in scan_roh.go,
-	// which moves to the one genetic-map reader.
-	tolerated := map[string]bool{"compress/gzip": true}
+	tolerated := map[string]bool{}
 	for _, imp := range strings.Fields(string(out)) {
 		switch {
 		case strings.HasPrefix(imp, "fgauge/cmd/fgauge/internal/"), allowed[imp], tolerated[imp]:

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"io/fs"
 
+	"fgauge/genmap"
 	"fgauge/roh"
 	"fgauge/stats"
 	"fgauge/stats/pedigree"
@@ -17,7 +18,7 @@ var inputSentinels = []error{
 	vcfscan.ErrMalformed, vcfscan.ErrTruncated, vcfscan.ErrChecksum, vcfscan.ErrLimit,
 	vcfscan.ErrUnsorted, vcfscan.ErrSampleCount,
 	vcfscan.ErrBadRegion, vcfscan.ErrNoIndex, vcfscan.ErrStaleIndex, vcfscan.ErrUnknownContig, vcfscan.ErrUnknownSample,
-	stats.ErrBadTable, roh.ErrMap, roh.ErrConfig,
+	stats.ErrBadTable, genmap.ErrMap, roh.ErrConfig,
 	pedigree.ErrMalformed, pedigree.ErrDuplicate, pedigree.ErrLoop, pedigree.ErrUnknownID,
 	fs.ErrNotExist, fs.ErrPermission,
 	bufio.ErrTooLong, // a side file (sample list, ...) with an overlong line

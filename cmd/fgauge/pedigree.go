@@ -78,7 +78,7 @@ func runPedigree(ctx context.Context, env *runEnv, args []string) error {
 	if *pairsIn == "" {
 		return nil
 	}
-	pf, err := os.Open(*pairsIn)
+	pf, err := vcfscan.OpenText(*pairsIn)
 	if err != nil {
 		return usagef("pedigree: %v", err)
 	}
@@ -109,7 +109,7 @@ func runPedigree(ctx context.Context, env *runEnv, args []string) error {
 // readPedigreeFile opens and parses a pedigree table; parse errors are
 // reported as input errors (exit code 2).
 func readPedigreeFile(path string) (*pedigree.Pedigree, error) {
-	f, err := os.Open(path)
+	f, err := vcfscan.OpenText(path)
 	if err != nil {
 		return nil, usagef("%v", err)
 	}

@@ -25,6 +25,7 @@ import (
 
 const scanHelp = `Outputs (see 'fgauge columns' for every column):
   OUTDIR/sites.tsv.gz              one row per kept site (BGZF, indexable)
+  OUTDIR/sites.tsv.gz.tbi          its tabix index (e.g. tabix OUTDIR/sites.tsv.gz 1:1-1000000)
   OUTDIR/sites_by_population.tsv.gz  per site and population (with --populations)
   OUTDIR/samples.tsv               one row per sample: counts, genomic F, F_ROH
   OUTDIR/runs.tsv                  one row per run of homozygosity
@@ -209,7 +210,7 @@ func (o *scanOptions) loadSampleLists() error {
 // readSampleList reads one name per line (first whitespace-separated field),
 // skipping blank lines and lines starting with '#'.
 func readSampleList(path string) ([]string, error) {
-	f, err := os.Open(path)
+	f, err := vcfscan.OpenText(path)
 	if err != nil {
 		return nil, badinput.Wrap(err)
 	}

@@ -1,15 +1,11 @@
 package main
 
 import (
-	"bufio"
-	"compress/gzip"
 	"flag"
-	"fmt"
-	"io"
-	"os"
 	"strconv"
 	"strings"
 
+	"fgauge/genmap"
 	"fgauge/roh"
 )
 
@@ -143,21 +139,6 @@ func (f *rohFlags) config() (*roh.Config, error) {
 	return c, nil
 }
 
-func readMapFile(path string) (*roh.GeneticMap, error) {
-	fh, err := os.Open(path)
-	if err != nil {
-		return nil, err
-	}
-	defer fh.Close()
-	br := bufio.NewReader(fh)
-	var r io.Reader = br
-	if magic, _ := br.Peek(2); len(magic) == 2 && magic[0] == 0x1f && magic[1] == 0x8b {
-		zr, err := gzip.NewReader(br)
-		if err != nil {
-			return nil, fmt.Errorf("%s: %w", path, err)
-		}
-		defer zr.Close()
-		r = zr
-	}
-	return roh.ReadGeneticMap(r, path)
+func readMapFile(path string) (*genmap.Map, error) {
+	return genmap.ReadFile(path)
 }

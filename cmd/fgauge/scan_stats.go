@@ -2,11 +2,11 @@ package main
 
 import (
 	"flag"
-	"os"
 
 	"fgauge/cmd/fgauge/internal/badinput"
 	"fgauge/cmd/fgauge/internal/scanrun"
 	"fgauge/stats"
+	"fgauge/vcfscan"
 )
 
 // statsFlags are the scan options of per-site, population and per-sample
@@ -68,7 +68,7 @@ func (f *statsFlags) prepare() error {
 		return usagef("--jackknife-block-mb %v: want a positive number", f.blockMB)
 	}
 	if f.populations != "" && f.pops == nil {
-		r, err := os.Open(f.populations)
+		r, err := vcfscan.OpenText(f.populations)
 		if err != nil {
 			return usagef("--populations: %v", err)
 		}
@@ -78,7 +78,7 @@ func (f *statsFlags) prepare() error {
 		}
 	}
 	if f.freqs != "" && f.panel == nil {
-		r, err := os.Open(f.freqs)
+		r, err := vcfscan.OpenText(f.freqs)
 		if err != nil {
 			return usagef("--freqs: %v", err)
 		}

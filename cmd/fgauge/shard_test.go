@@ -19,7 +19,7 @@ import (
 
 	"fgauge/cmd/fgauge/internal/plan"
 	"fgauge/cmd/fgauge/internal/shard"
-	"fgauge/roh/simulate"
+	"fgauge/genedrop"
 )
 
 // shardSplit is one way of cutting an input into shards: the --region
@@ -191,17 +191,17 @@ func simulatedInput(t *testing.T, dir string) string {
 // mean depth (GT:DP:PL) when depth > 0.
 func simulatedInputDepth(t *testing.T, dir, name string, depth float64) string {
 	t.Helper()
-	var designs []simulate.Design
+	var designs []genedrop.Design
 	for _, s := range []string{"full_sib", "half_sib", "first_cousin"} {
-		d, err := simulate.ParseDesign(s)
+		d, err := genedrop.ParseDesign(s)
 		if err != nil {
 			t.Fatal(err)
 		}
 		designs = append(designs, d)
 	}
-	res, err := simulate.Run(simulate.Config{
+	res, err := genedrop.Run(genedrop.Config{
 		Seed:          11,
-		Chromosomes:   []simulate.Chromosome{{Name: "1", LengthBP: 30_000_000, LengthCM: 30}, {Name: "2", LengthBP: 20_000_000, LengthCM: 20}, {Name: "3", LengthBP: 12_000_000, LengthCM: 12}},
+		Chromosomes:   []genedrop.Chromosome{{Name: "1", LengthBP: 30_000_000, LengthCM: 30}, {Name: "2", LengthBP: 20_000_000, LengthCM: 20}, {Name: "3", LengthBP: 12_000_000, LengthCM: 12}},
 		Designs:       designs,
 		Replicates:    2,
 		SiteSpacing:   15_000,
@@ -213,12 +213,12 @@ func simulatedInputDepth(t *testing.T, dir, name string, depth float64) string {
 		t.Fatal(err)
 	}
 	path := filepath.Join(dir, name)
-	if err := simulate.WriteVCFBGZF(path, res); err != nil {
+	if err := genedrop.WriteVCFBGZF(path, res); err != nil {
 		t.Fatal(err)
 	}
 	// The simulated pedigree beside it, for --pedigree.
 	var ped bytes.Buffer
-	if err := simulate.WritePedigree(&ped, res); err != nil {
+	if err := genedrop.WritePedigree(&ped, res); err != nil {
 		t.Fatal(err)
 	}
 	if err := os.WriteFile(strings.TrimSuffix(path, ".vcf.gz")+"_pedigree.tsv", ped.Bytes(), 0o644); err != nil {
@@ -642,20 +642,20 @@ func TestMergeReport(t *testing.T) {
 // merges to the single pass.
 func TestPlanManyContigs(t *testing.T) {
 	dir := t.TempDir()
-	d, err := simulate.ParseDesign("full_sib")
+	d, err := genedrop.ParseDesign("full_sib")
 	if err != nil {
 		t.Fatal(err)
 	}
-	var chroms []simulate.Chromosome
+	var chroms []genedrop.Chromosome
 	for i := 1; i <= 50; i++ {
-		chroms = append(chroms, simulate.Chromosome{Name: fmt.Sprint(i), LengthBP: 2_000_000, LengthCM: 2})
+		chroms = append(chroms, genedrop.Chromosome{Name: fmt.Sprint(i), LengthBP: 2_000_000, LengthCM: 2})
 	}
-	res, err := simulate.Run(simulate.Config{Seed: 3, Chromosomes: chroms, Designs: []simulate.Design{d}, SiteSpacing: 40_000})
+	res, err := genedrop.Run(genedrop.Config{Seed: 3, Chromosomes: chroms, Designs: []genedrop.Design{d}, SiteSpacing: 40_000})
 	if err != nil {
 		t.Fatal(err)
 	}
 	input := filepath.Join(dir, "scaffolds.vcf.gz")
-	if err := simulate.WriteVCFBGZF(input, res); err != nil {
+	if err := genedrop.WriteVCFBGZF(input, res); err != nil {
 		t.Fatal(err)
 	}
 	planDir := filepath.Join(dir, "plan")

@@ -10,7 +10,8 @@ import (
 	"sort"
 	"strings"
 
-	"fgauge/roh/simulate"
+	"fgauge/genedrop"
+	"fgauge/genmap"
 )
 
 func simulateHelp() string {
@@ -30,13 +31,13 @@ The same --seed gives byte-identical files.
 
 Built-in designs (--design, comma-separated or repeated; kind[:generations[:herd_size[:sires]]]):
 `)
-	kinds := make([]string, 0, len(simulate.DesignKinds))
-	for k := range simulate.DesignKinds {
+	kinds := make([]string, 0, len(genedrop.DesignKinds))
+	for k := range genedrop.DesignKinds {
 		kinds = append(kinds, k)
 	}
 	sort.Strings(kinds)
 	for _, k := range kinds {
-		fmt.Fprintf(&b, "  %-17s %s\n", k, simulate.DesignKinds[k])
+		fmt.Fprintf(&b, "  %-17s %s\n", k, genedrop.DesignKinds[k])
 	}
 	return b.String()
 }
@@ -69,7 +70,7 @@ func runSimulate(ctx context.Context, env *runEnv, args []string) error {
 	if len(pos) != 0 {
 		return usagef("simulate: unexpected argument %q (run 'fgauge simulate --help')", pos[0])
 	}
-	cfg := simulate.Config{
+	cfg := genedrop.Config{
 		Seed: *seed, SiteSpacing: *spacing, MinMAF: *minMAF,
 		AncestralHaplotypes: *pool, AncestralSegmentCM: *pieceCM,
 		Replicates: *reps, GenotypeError: *gErr, MissingRate: *miss,
@@ -83,18 +84,18 @@ func runSimulate(ctx context.Context, env *runEnv, args []string) error {
 	}
 	switch *spectrum {
 	case "u_shaped":
-		cfg.Spectrum = simulate.SpectrumUShaped
+		cfg.Spectrum = genedrop.SpectrumUShaped
 	case "neutral":
-		cfg.Spectrum = simulate.SpectrumNeutral
+		cfg.Spectrum = genedrop.SpectrumNeutral
 	default:
 		return usagef("simulate: --spectrum %q: want u_shaped or neutral", *spectrum)
 	}
-	if cfg.Chromosomes, err = simulate.ParseChromosomes(*chroms); err != nil {
+	if cfg.Chromosomes, err = genedrop.ParseChromosomes(*chroms); err != nil {
 		return usagef("simulate: --chromosomes: %v", err)
 	}
 	for _, list := range designs {
 		for _, s := range strings.Split(list, ",") {
-			d, err := simulate.ParseDesign(s)
+			d, err := genedrop.ParseDesign(s)
 			if err != nil {
 				return usagef("simulate: --design: %v", err)
 			}
@@ -110,18 +111,13 @@ func runSimulate(ctx context.Context, env *runEnv, args []string) error {
 		return usagef("simulate: give --pedigree FILE or at least one --design (run 'fgauge simulate --help')")
 	}
 	if *mapFile != "" {
-		f, err := os.Open(*mapFile)
-		if err != nil {
-			return usagef("simulate: %v", err)
-		}
-		cfg.Map, err = simulate.ReadGeneticMap(f, *mapFile)
-		f.Close()
-		if err != nil {
+		var err error
+		if cfg.Map, err = genmap.ReadFile(*mapFile); err != nil {
 			return usagef("simulate: %v", err)
 		}
 	}
-	res, err := simulate.Run(cfg)
-	if errors.Is(err, simulate.ErrConfig) {
+	res, err := genedrop.Run(cfg)
+	if errors.Is(err, genedrop.ErrConfig) {
 		return usagef("simulate: %v", err)
 	}
 	if err != nil {
@@ -147,25 +143,25 @@ func runSimulate(ctx context.Context, env *runEnv, args []string) error {
 
 // writeSimulation writes the VCF (unless the run has no sites), the truth
 // tables and the pedigree into dir and returns the paths written.
-func writeSimulation(dir string, res *simulate.Result) ([]string, error) {
+func writeSimulation(dir string, res *genedrop.Result) ([]string, error) {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, err
 	}
 	var paths []string
 	if !res.Config.NoSites {
 		p := filepath.Join(dir, "simulated.vcf.gz")
-		if err := simulate.WriteVCFBGZF(p, res); err != nil {
+		if err := genedrop.WriteVCFBGZF(p, res); err != nil {
 			return nil, fmt.Errorf("writing %s: %w", p, err)
 		}
 		paths = append(paths, p)
 	}
 	for _, t := range []struct {
 		name string
-		fn   func(io.Writer, *simulate.Result) error
+		fn   func(io.Writer, *genedrop.Result) error
 	}{
-		{"truth_samples.tsv", simulate.WriteSamplesTruth},
-		{"truth_segments.tsv", simulate.WriteSegmentsTruth},
-		{"pedigree.tsv", simulate.WritePedigree},
+		{"truth_samples.tsv", genedrop.WriteSamplesTruth},
+		{"truth_segments.tsv", genedrop.WriteSegmentsTruth},
+		{"pedigree.tsv", genedrop.WritePedigree},
 	} {
 		p := filepath.Join(dir, t.name)
 		if err := writeFileOrStdout(nil, p, func(w io.Writer) error { return t.fn(w, res) }); err != nil {

@@ -29,6 +29,8 @@ import (
 	"path/filepath"
 	"sort"
 	"strings"
+
+	"fgauge/vcfscan"
 )
 
 // header is the valid header shared by the text cases.
@@ -252,12 +254,8 @@ func corpus(bcfPath string) ([]file, error) {
 }
 
 // bgzfEOFBlock is the empty block that ends a BGZF file (SAM/BAM format
-// specification, section 4.1.2).
-var bgzfEOFBlock = []byte{
-	0x1f, 0x8b, 0x08, 0x04, 0x00, 0x00, 0x00, 0x00, 0x00, 0xff, 0x06, 0x00,
-	0x42, 0x43, 0x02, 0x00, 0x1b, 0x00, 0x03, 0x00, 0x00, 0x00, 0x00, 0x00,
-	0x00, 0x00, 0x00, 0x00,
-}
+// specification, section 4.1.2), as vcfscan defines it.
+var bgzfEOFBlock = []byte(vcfscan.BGZFEOF)
 
 // bgzfBlocks compresses data into BGZF blocks of at most size input bytes
 // each (SAM/BAM format specification, section 4.1), without the EOF block.

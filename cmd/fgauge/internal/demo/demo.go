@@ -20,9 +20,9 @@ import (
 
 	"fgauge/cmd/fgauge/htmlreport"
 	"fgauge/cmd/fgauge/internal/scanrun"
+	"fgauge/genedrop"
 	"fgauge/internal/numfmt"
 	"fgauge/roh"
-	"fgauge/roh/simulate"
 	"fgauge/stats"
 	"fgauge/stats/pedigree"
 	"fgauge/vcfscan"
@@ -55,9 +55,9 @@ func Run(ctx context.Context, cfg Config) error {
 	if err != nil {
 		return fmt.Errorf("demo: %w", err)
 	}
-	res, err := simulate.Run(simulate.Config{
+	res, err := genedrop.Run(genedrop.Config{
 		Seed: demoSeed,
-		Chromosomes: []simulate.Chromosome{
+		Chromosomes: []genedrop.Chromosome{
 			{Name: "1", LengthBP: 150_000_000, LengthCM: 140},
 			{Name: "2", LengthBP: 135_000_000, LengthCM: 125},
 			{Name: "3", LengthBP: 120_000_000, LengthCM: 112},
@@ -81,16 +81,16 @@ func Run(ctx context.Context, cfg Config) error {
 	vcfPath := filepath.Join(*dir, "cohort.vcf.gz")
 	pedPath := filepath.Join(*dir, "pedigree.tsv")
 	popPath := filepath.Join(*dir, "herds.tsv")
-	if err := simulate.WriteVCFBGZF(vcfPath, res); err != nil {
+	if err := genedrop.WriteVCFBGZF(vcfPath, res); err != nil {
 		return fmt.Errorf("demo: writing %s: %w", vcfPath, err)
 	}
 	files := []struct {
 		name string
 		fn   func(io.Writer) error
 	}{
-		{"pedigree.tsv", func(w io.Writer) error { return simulate.WritePedigree(w, res) }},
-		{"truth_samples.tsv", func(w io.Writer) error { return simulate.WriteSamplesTruth(w, res) }},
-		{"truth_segments.tsv", func(w io.Writer) error { return simulate.WriteSegmentsTruth(w, res) }},
+		{"pedigree.tsv", func(w io.Writer) error { return genedrop.WritePedigree(w, res) }},
+		{"truth_samples.tsv", func(w io.Writer) error { return genedrop.WriteSamplesTruth(w, res) }},
+		{"truth_segments.tsv", func(w io.Writer) error { return genedrop.WriteSegmentsTruth(w, res) }},
 		{"herds.tsv", func(w io.Writer) error {
 			bw := bufio.NewWriter(w)
 			bw.WriteString("sample\tpopulation\n")
@@ -137,7 +137,7 @@ func Run(ctx context.Context, cfg Config) error {
 	return nil
 }
 
-func countSites(res *simulate.Result) int {
+func countSites(res *genedrop.Result) int {
 	n := 0
 	for c := range res.Chromosomes {
 		n += res.NumSites(c)

@@ -17,7 +17,7 @@ import (
 // Names are the files a scan or merge may write into OUTDIR; an
 // OUTDIR holding any of them is not overwritten without --force.
 var Names = []string{
-	"sites.tsv.gz", "sites_by_population.tsv.gz", "samples.tsv", "runs.tsv",
+	"sites.tsv.gz", "sites.tsv.gz.tbi", "sites_by_population.tsv.gz", "samples.tsv", "runs.tsv",
 	"populations.tsv", "populations_pairwise.tsv", "run.json", "report.html", "samples",
 }
 

@@ -4,23 +4,15 @@
 package plan
 
 import (
-	"bufio"
 	"bytes"
-	"compress/gzip"
 	"embed"
-	"encoding/binary"
 	"fmt"
-	"io"
 	"math"
 	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
 	"text/template"
-
-	"github.com/biogo/hts/bgzf"
-	"github.com/biogo/hts/csi"
-	"github.com/biogo/hts/tabix"
 
 	"fgauge/cmd/fgauge/internal/badinput"
 	"fgauge/cmd/fgauge/internal/shard"
@@ -231,85 +223,41 @@ func planScanArgs(args []string) ([]string, error) {
 	return out, nil
 }
 
-// ReadIndexRefs reads the tabix or CSI index of path and returns its
-// references in index order (the order of the file) with their offsets.
+// ReadIndexRefs reads the tabix or CSI index of path (vcfscan.OpenIndex:
+// checked, and refused when older than the data) and returns its
+// references with records, in index order (the order of the file), with
+// their offsets.
 func ReadIndexRefs(path string, hdr *vcfscan.Header) ([]IndexRef, error) {
-	var idxPath string
-	for _, c := range []string{path + ".tbi", path + ".csi"} {
-		if _, err := os.Stat(c); err == nil {
-			idxPath = c
-			break
-		}
-	}
-	if idxPath == "" {
-		return nil, usagef("plan: %s has no .tbi or .csi index next to it (plan splits by the index)", path)
-	}
-	raw, err := readMaybeGzip(idxPath)
+	idx, err := vcfscan.OpenIndex(path, hdr)
 	if err != nil {
 		return nil, err
 	}
-	bad := func(why string, err error) error {
-		return usagef("plan: %s: %s: %v", idxPath, why, err)
-	}
-	var refs []IndexRef
+	maxPos := min(idx.MaxPos, 1<<40)
 	// One compression ratio for the file, from the first data block met.
 	cratio := -1.0
-	ratio := func(span bgzf.Chunk, haveStats bool, cs []bgzf.Chunk) float64 {
+	var refs []IndexRef
+	for id, ref := range idx.Refs {
+		chunks := func(beg, end int64) []vcfscan.Chunk {
+			cs, _ := idx.Chunks(id, beg, end)
+			return cs
+		}
 		if cratio < 0 {
-			off := span.Begin.File
-			if !haveStats && len(cs) > 0 {
-				off = cs[0].Begin.File
+			off := ref.Span.Begin.File
+			if !ref.HasStats {
+				if cs := chunks(0, maxPos); len(cs) > 0 {
+					off = cs[0].Begin.File
+				}
 			}
-			cratio = compressionRatio(path, off)
-		}
-		return cratio
-	}
-	switch {
-	case bytes.HasPrefix(raw, []byte("TBI\x01")):
-		idx, err := tabix.ReadFrom(bytes.NewReader(raw))
-		if err != nil {
-			return nil, bad("cannot read tabix index", err)
-		}
-		for id, name := range idx.Names() {
-			r := IndexRef{Name: name}
-			st, ok := idx.ReferenceStats(id)
-			chunks := func(beg, end int) []bgzf.Chunk {
-				cs, _ := idx.Chunks(name, beg, end)
-				return cs
-			}
-			if !fillRef(&r, st.Chunk, ok, float64(st.Mapped+st.Unmapped), chunks, 1<<29, ratio(st.Chunk, ok, chunks(0, 1<<29))) {
-				continue
-			}
-			refs = append(refs, r)
-		}
-	case bytes.HasPrefix(raw, []byte("CSI\x01")) || bytes.HasPrefix(raw, []byte("CSI\x02")):
-		if len(raw) < 12 {
-			return nil, bad("cannot read CSI index", io.ErrUnexpectedEOF)
-		}
-		minShift := binary.LittleEndian.Uint32(raw[4:8])
-		depth := binary.LittleEndian.Uint32(raw[8:12])
-		idx, err := csi.ReadFrom(bytes.NewReader(raw))
-		if err != nil {
-			return nil, bad("cannot read CSI index", err)
-		}
-		names := planCSINames(idx.Auxilliary)
-		if names == nil {
-			for _, c := range hdr.Contigs {
-				names = append(names, c.Name)
+			var ok bool
+			if cratio, ok = vcfscan.BGZFRatio(path, off); !ok {
+				cratio = 0.25
 			}
 		}
-		maxPos := int(math.Min(float64(int64(1)<<(minShift+3*depth)), 1<<40))
-		for id := 0; id < idx.NumRefs() && id < len(names); id++ {
-			r := IndexRef{Name: names[id]}
-			st, ok := idx.ReferenceStats(id)
-			chunks := func(beg, end int) []bgzf.Chunk { return idx.Chunks(id, beg, end) }
-			if !fillRef(&r, st.Chunk, ok, float64(st.Mapped+st.Unmapped), chunks, maxPos, ratio(st.Chunk, ok, chunks(0, maxPos))) {
-				continue
-			}
-			refs = append(refs, r)
+		r := IndexRef{Name: ref.Name}
+		if !fillRef(&r, ref, chunks, maxPos, cratio) {
+			continue
 		}
-	default:
-		return nil, usagef("plan: %s is not a tabix or CSI index", idxPath)
+		refs = append(refs, r)
 	}
 	return refs, nil
 }
@@ -320,9 +268,9 @@ func ReadIndexRefs(path string, hdr *vcfscan.Header) ([]IndexRef, error) {
 // the block's file offset plus the offset inside the uncompressed block
 // scaled by the compression ratio ratio (so that records sharing a block
 // still differ). It reports false for references without records.
-func fillRef(r *IndexRef, span bgzf.Chunk, haveStats bool, records float64, chunks func(beg, end int) []bgzf.Chunk, maxPos int, ratio float64) bool {
-	vpos := func(o bgzf.Offset) int64 { return o.File + int64(float64(o.Block)*ratio) }
-	first := func(beg int) (int64, bool) {
+func fillRef(r *IndexRef, ref vcfscan.IndexRef, chunks func(beg, end int64) []vcfscan.Chunk, maxPos int64, ratio float64) bool {
+	vpos := func(o vcfscan.Offset) int64 { return o.File + int64(float64(o.Block)*ratio) }
+	first := func(beg int64) (int64, bool) {
 		cs := chunks(beg, maxPos)
 		if len(cs) == 0 {
 			return 0, false
@@ -333,8 +281,8 @@ func fillRef(r *IndexRef, span bgzf.Chunk, haveStats bool, records float64, chun
 		}
 		return m, true
 	}
-	if haveStats {
-		r.begin, r.end = vpos(span.Begin), vpos(span.End)
+	if ref.HasStats {
+		r.begin, r.end = vpos(ref.Span.Begin), vpos(ref.Span.End)
 	} else {
 		cs := chunks(0, maxPos)
 		if len(cs) == 0 {
@@ -348,70 +296,9 @@ func fillRef(r *IndexRef, span bgzf.Chunk, haveStats bool, records float64, chun
 	if r.end <= r.begin {
 		r.end = r.begin + 1
 	}
-	r.records = records
-	r.offsetAt = func(pos int64) (int64, bool) { return first(int(pos - 1)) }
+	r.records = float64(ref.Records)
+	r.offsetAt = func(pos int64) (int64, bool) { return first(pos - 1) }
 	return true
-}
-
-// compressionRatio estimates compressed/uncompressed bytes of the data
-// from one BGZF block (BSIZE and ISIZE, SAM spec 4.1) at file offset off;
-// 0.25 when the block cannot be read.
-func compressionRatio(path string, off int64) float64 {
-	const fallback = 0.25
-	f, err := os.Open(path)
-	if err != nil {
-		return fallback
-	}
-	defer f.Close()
-	head := make([]byte, 64)
-	n, _ := f.ReadAt(head, off)
-	size, ok := shard.BGZFBlockSize(head[:n])
-	if !ok || size < 28 {
-		return fallback
-	}
-	var isize [4]byte
-	if _, err := f.ReadAt(isize[:], off+int64(size)-4); err != nil {
-		return fallback
-	}
-	u := binary.LittleEndian.Uint32(isize[:])
-	if u == 0 {
-		return fallback
-	}
-	return float64(size) / float64(u)
-}
-
-// planCSINames returns the names kept in a CSI auxiliary field laid out
-// like a tabix header, or nil (BCF: the header's contig dictionary).
-func planCSINames(aux []byte) []string {
-	if len(aux) < 28 {
-		return nil
-	}
-	n := int(binary.LittleEndian.Uint32(aux[24:28]))
-	if n <= 0 || 28+n > len(aux) {
-		return nil
-	}
-	var names []string
-	for _, b := range bytes.Split(bytes.TrimRight(aux[28:28+n], "\x00"), []byte{0}) {
-		names = append(names, string(b))
-	}
-	return names
-}
-
-func readMaybeGzip(path string) ([]byte, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, err
-	}
-	defer f.Close()
-	br := bufio.NewReader(f)
-	if m, _ := br.Peek(2); len(m) == 2 && m[0] == 0x1f && m[1] == 0x8b {
-		zr, err := gzip.NewReader(br)
-		if err != nil {
-			return nil, fmt.Errorf("%s: %w", path, err)
-		}
-		return io.ReadAll(io.LimitReader(zr, 1<<30))
-	}
-	return io.ReadAll(io.LimitReader(br, 1<<30))
 }
 
 // makeShards groups whole references into shards of about target bytes

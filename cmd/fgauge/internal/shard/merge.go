@@ -1,9 +1,7 @@
 package shard
 
 import (
-	"bytes"
 	"context"
-	"encoding/binary"
 	"errors"
 	"fmt"
 	"io"
@@ -380,39 +378,9 @@ func mergeRunInfo(cfg *MergeConfig, ls []loadedState, m *merged, start time.Time
 	return info
 }
 
-// bgzfEOFBlock is the empty block that ends a BGZF file (SAM spec 4.1.2).
-var bgzfEOFBlock = []byte{
-	0x1f, 0x8b, 0x08, 0x04, 0x00, 0x00, 0x00, 0x00, 0x00, 0xff, 0x06, 0x00, 0x42, 0x43,
-	0x02, 0x00, 0x1b, 0x00, 0x03, 0x00, 0x00, 0x00, 0x00, 0x00, 0x00, 0x00, 0x00, 0x00,
-}
-
 // errBGZFShape is wrapped when a shard's site table is not laid out as
 // scan --state-out writes it.
 var errBGZFShape = errors.New("site table is not a BGZF file with its header in the first block")
-
-// BGZFBlockSize returns the total size of the BGZF block starting at b
-// (SAM spec 4.1: BSIZE in the BC extra subfield is the block size minus 1).
-func BGZFBlockSize(b []byte) (int, bool) {
-	if len(b) < 18 || b[0] != 0x1f || b[1] != 0x8b || b[2] != 8 || b[3]&4 == 0 {
-		return 0, false
-	}
-	xlen := int(binary.LittleEndian.Uint16(b[10:]))
-	if 12+xlen > len(b) {
-		return 0, false
-	}
-	x := b[12 : 12+xlen]
-	for len(x) >= 4 {
-		slen := int(binary.LittleEndian.Uint16(x[2:]))
-		if x[0] == 'B' && x[1] == 'C' && slen == 2 && len(x) >= 6 {
-			return int(binary.LittleEndian.Uint16(x[4:])) + 1, true
-		}
-		if 4+slen > len(x) {
-			break
-		}
-		x = x[4+slen:]
-	}
-	return 0, false
-}
 
 // joinSiteTables writes the first shard's header block, then every
 // shard's data blocks (all blocks but the header block and the EOF
@@ -437,12 +405,12 @@ func joinSiteTables(out *outdir.Dir, name string, ls []loadedState, file func(*S
 		}
 		head := make([]byte, 64)
 		n, _ := io.ReadFull(f, head)
-		hsize, ok := BGZFBlockSize(head[:n])
-		tail := make([]byte, len(bgzfEOFBlock))
+		hsize, ok := vcfscan.BGZFBlockSize(head[:n])
+		tail := make([]byte, len(vcfscan.BGZFEOF))
 		if ok && st.Size() >= int64(hsize+len(tail)) {
 			_, err = f.ReadAt(tail, st.Size()-int64(len(tail)))
 		}
-		if !ok || err != nil || st.Size() < int64(hsize+len(tail)) || !bytes.Equal(tail, bgzfEOFBlock) {
+		if !ok || err != nil || st.Size() < int64(hsize+len(tail)) || string(tail) != vcfscan.BGZFEOF {
 			f.Close()
 			return fmt.Errorf("%s: %w", p, errBGZFShape)
 		}
@@ -456,7 +424,7 @@ func joinSiteTables(out *outdir.Dir, name string, ls []loadedState, file func(*S
 			return fmt.Errorf("joining %s: %w", p, err)
 		}
 	}
-	if _, err := dst.Write(bgzfEOFBlock); err != nil {
+	if _, err := io.WriteString(dst, vcfscan.BGZFEOF); err != nil {
 		return err
 	}
 	return dst.Close()

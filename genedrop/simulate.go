@@ -1,11 +1,15 @@
-package simulate
+package genedrop
 
 import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"sort"
 
+	"gonum.org/v1/gonum/stat/distuv"
+
+	"fgauge/genmap"
 	"fgauge/stats/pedigree"
 )
 
@@ -210,17 +214,21 @@ func (r *Result) geneDrop(rng *rand.Rand) {
 
 // Crossovers returns the crossover positions (cM, increasing) of one
 // meiosis on a chromosome of lengthCM: a Poisson process with rate one per
-// Morgan, i.e. no interference (Haldane 1919).
+// Morgan, i.e. no interference (Haldane 1919, J Genet 8:299-309). The
+// count is drawn from a Poisson distribution of mean lengthCM/100
+// (gonum distuv.Poisson) and the positions uniformly on [0, lengthCM),
+// which given the count is the same process.
 func Crossovers(rng *rand.Rand, lengthCM float64, buf []float64) []float64 {
 	buf = buf[:0]
-	x := 0.0
-	for {
-		x += rng.ExpFloat64() * 100
-		if x >= lengthCM {
-			return buf
-		}
-		buf = append(buf, x)
+	if !(lengthCM > 0) {
+		return buf
 	}
+	n := int(distuv.Poisson{Lambda: lengthCM / 100, Src: rng}.Rand())
+	for range n {
+		buf = append(buf, rng.Float64()*lengthCM)
+	}
+	slices.Sort(buf)
+	return buf
 }
 
 // HaldaneR is the recombination fraction between loci d Morgans apart
@@ -271,20 +279,38 @@ func gamete(rng *rand.Rand, a, b []seg, lengthCM float64) []seg {
 }
 
 // cmToBP converts a genetic position on chromosome c to bp (fractional).
+// With a map, genetic positions count from the map's value at position 0
+// (see mapLengthCM).
 func (r *Result) cmToBP(c int, cm float64) float64 {
 	ch := r.Chromosomes[c]
-	if pts := r.Config.Map[ch.Name]; len(pts) > 0 {
-		return mapBP(pts, cm)
+	if m := r.Config.Map.Chrom(ch.Name); m != nil {
+		fb := mapFallback(ch)
+		return m.PosAt(cm+m.At(0, fb), fb)
 	}
 	return cm / ch.LengthCM * float64(ch.LengthBP)
 }
 
 func (r *Result) bpToCM(c int, pos int64) float64 {
 	ch := r.Chromosomes[c]
-	if pts := r.Config.Map[ch.Name]; len(pts) > 0 {
-		return mapCM(pts, pos)
+	if m := r.Config.Map.Chrom(ch.Name); m != nil {
+		fb := mapFallback(ch)
+		return m.At(pos, fb) - m.At(0, fb)
 	}
 	return float64(pos) / float64(ch.LengthBP) * ch.LengthCM
+}
+
+// mapLengthCM is the genetic length of chromosome ch under map m: the
+// genetic distance from position 0 to its last base, by the rules of
+// package genmap (a single-point map extrapolates at ch's own mean rate).
+func mapLengthCM(m *genmap.Chrom, ch *Chromosome) float64 {
+	fb := mapFallback(*ch)
+	return m.At(ch.LengthBP, fb) - m.At(0, fb)
+}
+
+// mapFallback is the cM per Mb of chromosome ch's given lengths, used
+// where its map has a single point.
+func mapFallback(ch Chromosome) float64 {
+	return ch.LengthCM / float64(ch.LengthBP) * 1e6
 }
 
 // autozygous returns the merged stretches of chromosome c where the two

@@ -1,4 +1,4 @@
-package simulate
+package genedrop
 
 import (
 	"bytes"
@@ -11,6 +11,7 @@ import (
 	"strings"
 	"testing"
 
+	"fgauge/genmap"
 	"fgauge/stats/pedigree"
 	"fgauge/vcfscan"
 )
@@ -387,38 +388,42 @@ func TestPedigreeInputAndReplicates(t *testing.T) {
 	}
 }
 
+// A genetic map applies by the rules of package genmap, the same reader
+// the scan uses: its chromosome names match with or without "chr", and
+// genetic positions count from the map's value at position 0 (values
+// worked by hand from the three points: before the first point and after
+// the last the nearest slope, 9.5 cM / 4 Mb and 2 cM / 5 Mb).
 func TestGeneticMap(t *testing.T) {
-	m, err := ReadGeneticMap(strings.NewReader("chrom\tpos\tcm\n1\t1000000\t0.5\n1\t5000000\t10\n1\t10000000\t12\n"), "map.tsv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	pts := m["1"]
-	for _, tc := range []struct {
-		pos int64
-		cm  float64
-	}{{500000, 0.25}, {1000000, 0.5}, {3000000, 5.25}, {7500000, 11}, {12000000, 14.4}} {
-		if got := mapCM(pts, tc.pos); math.Abs(got-tc.cm) > 1e-9 {
-			t.Errorf("mapCM(%d) = %v, want %v", tc.pos, got, tc.cm)
+	for _, name := range []string{"1", "chr1"} {
+		m, err := genmap.Read(strings.NewReader("chrom\tpos\tcm\n"+name+"\t1000000\t0.5\n"+name+"\t5000000\t10\n"+name+"\t10000000\t12\n"), "map.tsv")
+		if err != nil {
+			t.Fatal(err)
 		}
-		if back := mapBP(pts, tc.cm); math.Abs(back-float64(tc.pos)) > 1e-3 {
-			t.Errorf("mapBP(%v) = %v, want %d", tc.cm, back, tc.pos)
+		// A chromosome with a map takes its genetic length from the map
+		// (0.5 + 2.375 at the start, 12 + 0.8 at the end: 14.675 cM), and
+		// the caller's settings stay as they were.
+		chroms := []Chromosome{{"1", 12000000, 99}}
+		res, err := Run(Config{Seed: 1, Chromosomes: chroms, Map: m, Designs: []Design{{Kind: "full_sib"}}, NoSites: true})
+		if err != nil {
+			t.Fatal(err)
 		}
-	}
-	if _, err := ReadGeneticMap(strings.NewReader("1\t100\t1\n1\t50\t2\n"), "bad.tsv"); err == nil || !strings.HasPrefix(err.Error(), "bad.tsv:2:") {
-		t.Errorf("unsorted map error = %v", err)
-	}
-	// A chromosome with a map takes its genetic length from the map, and
-	// the caller's settings stay as they were.
-	chroms := []Chromosome{{"1", 12000000, 99}}
-	res, err := Run(Config{Seed: 1, Chromosomes: chroms, Map: m, Designs: []Design{{Kind: "full_sib"}}, NoSites: true})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if got := res.Chromosomes[0].LengthCM; math.Abs(got-14.4) > 1e-9 {
-		t.Errorf("length from map %v cM, want 14.4", got)
-	}
-	if chroms[0].LengthCM != 99 {
-		t.Errorf("Run changed the caller's chromosome to %v cM", chroms[0].LengthCM)
+		if got := res.Chromosomes[0].LengthCM; math.Abs(got-14.675) > 1e-9 {
+			t.Errorf("map naming %s: length from map %v cM, want 14.675", name, got)
+		}
+		if chroms[0].LengthCM != 99 {
+			t.Errorf("Run changed the caller's chromosome to %v cM", chroms[0].LengthCM)
+		}
+		for _, tc := range []struct {
+			pos int64
+			cm  float64
+		}{{0, 0}, {1000000, 2.375}, {3000000, 7.125}, {7500000, 12.875}, {12000000, 14.675}} {
+			if got := res.bpToCM(0, tc.pos); math.Abs(got-tc.cm) > 1e-9 {
+				t.Errorf("bpToCM(%d) = %v, want %v", tc.pos, got, tc.cm)
+			}
+			if back := res.cmToBP(0, tc.cm); math.Abs(back-float64(tc.pos)) > 1e-3 {
+				t.Errorf("cmToBP(%v) = %v, want %d", tc.cm, back, tc.pos)
+			}
+		}
 	}
 }
 

@@ -1,4 +1,4 @@
-// Package simulate drops genomes through a pedigree (gene dropping) and
+// Package genedrop drops genomes through a pedigree (gene dropping) and
 // records the truth: which stretches of each animal's two genome copies
 // descend from the same founder chromosome (autozygous, identical by
 // descent within the individual), next to the genotypes an array or a
@@ -24,4 +24,4 @@
 // (Result) and are written by WriteVCF, WriteVCFBGZF and the truth writers.
 // The package is for testing and demonstrating estimators whose truth we
 // control; it is not a population-genetic history simulator.
-package simulate
+package genedrop

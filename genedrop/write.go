@@ -1,4 +1,4 @@
-package simulate
+package genedrop
 
 import (
 	"bufio"
@@ -94,9 +94,9 @@ func WriteVCF(w io.Writer, r *Result) error {
 }
 
 // WriteVCFBGZF writes the calls as BGZF-compressed VCF to path and a
-// tabix index to path + ".tbi" (SAMtools hts-specs, "The Tabix index
-// file format"; see tabixIndex). Output is byte-identical for the same
-// Config.
+// tabix index to path + ".tbi" (hts-specs, "The Tabix index file
+// format"), both through vcfscan (BGZFWriter, TabixWriter). Output is
+// byte-identical for the same Config.
 func WriteVCFBGZF(path string, r *Result) (err error) {
 	f, err := os.Create(path)
 	if err != nil {
@@ -108,60 +108,47 @@ func WriteVCFBGZF(path string, r *Result) (err error) {
 		}
 	}()
 	bw := bufio.NewWriterSize(f, 1<<20)
-	bg := newBGZFWriter(bw)
+	bg := vcfscan.NewBGZFWriter(bw, 6)
+	defer bg.Close()
 	bg.Write(r.header())
-	if err := bg.flush(); err != nil {
+	if err := bg.Flush(); err != nil {
 		return err
 	}
-	idx := &tabixIndex{}
+	idx := vcfscan.NewTabixWriter(vcfscan.TabixVCFColumns)
 	var line []byte
-	var prevChrom string
-	var prevPos int64
-	var prevBegin uint64
-	havePrev := false
 	err = r.ForEachSite(func(s *Site) error {
-		begin := bg.voffset()
-		if havePrev {
-			idx.add(prevChrom, prevPos-1, prevPos, prevBegin, begin)
+		begin, err := bg.Offset()
+		if err != nil {
+			return err
 		}
 		line = r.appendRecord(line[:0], s)
-		_, err := bg.Write(line)
-		prevChrom, prevPos, prevBegin, havePrev = r.Chromosomes[s.Chrom].Name, s.Pos, begin, true
-		return err
+		if _, err := bg.Write(line); err != nil {
+			return err
+		}
+		end, err := bg.Offset()
+		if err != nil {
+			return err
+		}
+		return idx.Add(r.Chromosomes[s.Chrom].Name, s.Pos-1, s.Pos, vcfscan.Chunk{Begin: begin, End: end})
 	})
 	if err != nil {
 		return err
 	}
-	if err := bg.flush(); err != nil {
-		return err
-	}
-	if havePrev {
-		idx.add(prevChrom, prevPos-1, prevPos, prevBegin, bg.voffset())
-	}
-	if err := bg.close(); err != nil {
+	if err := bg.Close(); err != nil {
 		return err
 	}
 	if err := bw.Flush(); err != nil {
 		return err
 	}
-	return writeTabix(path+".tbi", idx)
-}
-
-func writeTabix(path string, idx *tabixIndex) (err error) {
-	f, err := os.Create(path)
+	tf, err := os.Create(path + ".tbi")
 	if err != nil {
 		return err
 	}
-	defer func() {
-		if cerr := f.Close(); err == nil {
-			err = cerr
-		}
-	}()
-	bg := newBGZFWriter(f)
-	if err := idx.writeTo(bg); err != nil {
+	if _, err := idx.WriteTo(tf); err != nil {
+		tf.Close()
 		return err
 	}
-	return bg.close()
+	return tf.Close()
 }
 
 // WriteSamplesTruth writes one line per sample: sample replicate design

@@ -1,8 +1,7 @@
-package simulate
+package genedrop
 
 import (
 	"path/filepath"
-	"strings"
 	"testing"
 )
 
@@ -61,33 +60,6 @@ func BenchmarkGeneDrop(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
-}
-
-func FuzzReadGeneticMap(f *testing.F) {
-	f.Add("chrom\tpos\tcm\n1\t1000\t0.1\n1\t5000\t2\n")
-	f.Add("1 10 0\n1 20 0\n2 5 1\n")
-	f.Fuzz(func(t *testing.T, text string) {
-		m, err := ReadGeneticMap(strings.NewReader(text), "fuzz")
-		if err != nil {
-			return
-		}
-		for _, pts := range m {
-			for k := 1; k < len(pts); k++ {
-				if pts[k].Pos <= pts[k-1].Pos || pts[k].CM < pts[k-1].CM {
-					t.Fatalf("map not sorted: %v", pts)
-				}
-			}
-			// Interpolation stays monotone and inverts.
-			prev := -1.0
-			for _, p := range []int64{1, pts[0].Pos, pts[len(pts)-1].Pos, pts[len(pts)-1].Pos + 1000} {
-				cm := mapCM(pts, p)
-				if cm < prev {
-					t.Fatalf("mapCM not monotone at %d", p)
-				}
-				prev = cm
-			}
-		}
-	})
 }
 
 func FuzzParseDesignAndChromosomes(f *testing.F) {

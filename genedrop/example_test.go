@@ -1,19 +1,19 @@
-package simulate_test
+package genedrop_test
 
 import (
 	"fmt"
 	"strings"
 
-	"fgauge/roh/simulate"
+	"fgauge/genedrop"
 	"fgauge/vcfscan"
 )
 
 func ExampleRun() {
-	d, _ := simulate.ParseDesign("full_sib")
-	res, err := simulate.Run(simulate.Config{
+	d, _ := genedrop.ParseDesign("full_sib")
+	res, err := genedrop.Run(genedrop.Config{
 		Seed:        42,
-		Chromosomes: []simulate.Chromosome{{Name: "1", LengthBP: 50_000_000, LengthCM: 50}},
-		Designs:     []simulate.Design{d},
+		Chromosomes: []genedrop.Chromosome{{Name: "1", LengthBP: 50_000_000, LengthCM: 50}},
+		Designs:     []genedrop.Design{d},
 		SiteSpacing: 25_000,
 	})
 	if err != nil {
@@ -29,18 +29,18 @@ func ExampleRun() {
 }
 
 func ExampleHaldaneR() {
-	fmt.Printf("%.4f\n", simulate.HaldaneR(0.5))
+	fmt.Printf("%.4f\n", genedrop.HaldaneR(0.5))
 	// Output: 0.3161
 }
 
 // ForEachSite hands over every site with the true and observed calls of all
 // samples; autozygous stretches are in Result.Segments.
 func ExampleResult_ForEachSite() {
-	d, _ := simulate.ParseDesign("selfing:4")
-	res, err := simulate.Run(simulate.Config{
+	d, _ := genedrop.ParseDesign("selfing:4")
+	res, err := genedrop.Run(genedrop.Config{
 		Seed:        7,
-		Chromosomes: []simulate.Chromosome{{Name: "1", LengthBP: 20_000_000, LengthCM: 20}},
-		Designs:     []simulate.Design{d},
+		Chromosomes: []genedrop.Chromosome{{Name: "1", LengthBP: 20_000_000, LengthCM: 20}},
+		Designs:     []genedrop.Design{d},
 		SiteSpacing: 50_000,
 	})
 	if err != nil {
@@ -49,7 +49,7 @@ func ExampleResult_ForEachSite() {
 	}
 	focal := len(res.Samples) - 1 // parents come first; the last selfed plant
 	hets, sites := 0, 0
-	res.ForEachSite(func(s *simulate.Site) error {
+	res.ForEachSite(func(s *genedrop.Site) error {
 		sites++
 		if s.GT[focal] == vcfscan.Heterozygous {
 			hets++
@@ -61,7 +61,7 @@ func ExampleResult_ForEachSite() {
 }
 
 func ExampleParseDesign() {
-	d, err := simulate.ParseDesign("closed_herd:10:40")
+	d, err := genedrop.ParseDesign("closed_herd:10:40")
 	if err != nil {
 		fmt.Println(err)
 		return
@@ -71,10 +71,10 @@ func ExampleParseDesign() {
 }
 
 func ExampleWriteSamplesTruth() {
-	d, _ := simulate.ParseDesign("half_sib")
-	res, _ := simulate.Run(simulate.Config{Seed: 1, Designs: []simulate.Design{d}, NoSites: true})
+	d, _ := genedrop.ParseDesign("half_sib")
+	res, _ := genedrop.Run(genedrop.Config{Seed: 1, Designs: []genedrop.Design{d}, NoSites: true})
 	var b strings.Builder
-	simulate.WriteSamplesTruth(&b, res)
+	genedrop.WriteSamplesTruth(&b, res)
 	lines := strings.Split(b.String(), "\n")
 	fmt.Println(lines[0])
 	for _, l := range lines {

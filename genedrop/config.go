@@ -1,15 +1,12 @@
-package simulate
+package genedrop
 
 import (
-	"bufio"
-	"bytes"
 	"errors"
 	"fmt"
-	"io"
-	"sort"
 	"strconv"
 	"strings"
 
+	"fgauge/genmap"
 	"fgauge/stats/pedigree"
 )
 
@@ -77,7 +74,7 @@ const (
 type Config struct {
 	Seed        uint64
 	Chromosomes []Chromosome // default DefaultChromosomes()
-	Map         GeneticMap   // optional per-chromosome genetic map
+	Map         *genmap.Map  // optional genetic map (rules in package genmap)
 	// SiteSpacing is the mean distance between sites in bp (default
 	// 30,000, array-like; use ~1,000 or less for sequence-like data).
 	SiteSpacing float64
@@ -171,106 +168,12 @@ func (c *Config) normalize() error {
 		if ch.LengthBP < 1 {
 			return fmt.Errorf("%w: chromosome %q has length %d bp", ErrConfig, ch.Name, ch.LengthBP)
 		}
-		if pts := c.Map[ch.Name]; len(pts) > 0 {
-			ch.LengthCM = mapCM(pts, ch.LengthBP)
+		if m := c.Map.Chrom(ch.Name); m != nil {
+			ch.LengthCM = mapLengthCM(m, ch)
 		}
 		if !(ch.LengthCM > 0) {
 			return fmt.Errorf("%w: chromosome %q has genetic length %v cM", ErrConfig, ch.Name, ch.LengthCM)
 		}
 	}
 	return nil
-}
-
-// MapPoint is one marker of a genetic map.
-type MapPoint struct {
-	Pos int64   // bp, 1-based
-	CM  float64 // cumulative centiMorgans
-}
-
-// GeneticMap holds sorted map points per chromosome name. Positions
-// between points are interpolated linearly; before the first point the
-// map runs linearly from (0, 0), after the last at the chromosome's mean
-// rate (last.CM / last.Pos).
-type GeneticMap map[string][]MapPoint
-
-// ReadGeneticMap reads a map table with columns chrom, pos (bp), cM; a
-// header line and '#' comments are skipped. cM must not decrease along a
-// chromosome. name is used in error messages.
-func ReadGeneticMap(r io.Reader, name string) (GeneticMap, error) {
-	m := GeneticMap{}
-	sc := bufio.NewScanner(r)
-	line := 0
-	for sc.Scan() {
-		line++
-		b := bytes.TrimSpace(sc.Bytes())
-		if line == 1 {
-			b = bytes.TrimPrefix(b, []byte("\xef\xbb\xbf")) // UTF-8 byte order mark
-		}
-		if len(b) == 0 || b[0] == '#' {
-			continue
-		}
-		f := bytes.Fields(b)
-		if len(f) < 3 {
-			return nil, fmt.Errorf("%s:%d: %w: want chrom, pos, cM", name, line, ErrConfig)
-		}
-		pos, err1 := strconv.ParseInt(string(f[1]), 10, 64)
-		cm, err2 := strconv.ParseFloat(string(f[2]), 64)
-		if err1 != nil || err2 != nil {
-			if line == 1 || len(m) == 0 {
-				continue // header
-			}
-			return nil, fmt.Errorf("%s:%d: %w: pos %q or cM %q is not a number", name, line, ErrConfig, f[1], f[2])
-		}
-		if pos < 1 || cm < 0 {
-			return nil, fmt.Errorf("%s:%d: %w: pos must be >= 1 and cM >= 0", name, line, ErrConfig)
-		}
-		ch := string(f[0])
-		pts := m[ch]
-		if n := len(pts); n > 0 && (pos <= pts[n-1].Pos || cm < pts[n-1].CM) {
-			return nil, fmt.Errorf("%s:%d: %w: map positions must increase and cM must not decrease", name, line, ErrConfig)
-		}
-		m[ch] = append(pts, MapPoint{pos, cm})
-	}
-	if err := sc.Err(); err != nil {
-		return nil, fmt.Errorf("%s:%d: %w", name, line+1, err)
-	}
-	return m, nil
-}
-
-// mapCM interpolates the genetic position of pos.
-func mapCM(pts []MapPoint, pos int64) float64 {
-	first, last := pts[0], pts[len(pts)-1]
-	if pos <= first.Pos {
-		return first.CM * float64(pos) / float64(first.Pos)
-	}
-	if pos >= last.Pos {
-		return last.CM + float64(pos-last.Pos)*last.CM/float64(last.Pos)
-	}
-	k := sort.Search(len(pts), func(i int) bool { return pts[i].Pos >= pos })
-	a, b := pts[k-1], pts[k]
-	return a.CM + (b.CM-a.CM)*float64(pos-a.Pos)/float64(b.Pos-a.Pos)
-}
-
-// mapBP inverts mapCM (the smallest position at or past cm).
-func mapBP(pts []MapPoint, cm float64) float64 {
-	first, last := pts[0], pts[len(pts)-1]
-	if cm <= first.CM {
-		if first.CM == 0 {
-			return 0
-		}
-		return cm / first.CM * float64(first.Pos)
-	}
-	if cm >= last.CM {
-		rate := last.CM / float64(last.Pos)
-		if rate == 0 {
-			return float64(last.Pos)
-		}
-		return float64(last.Pos) + (cm-last.CM)/rate
-	}
-	k := sort.Search(len(pts), func(i int) bool { return pts[i].CM >= cm })
-	a, b := pts[k-1], pts[k]
-	if b.CM == a.CM {
-		return float64(a.Pos)
-	}
-	return float64(a.Pos) + (cm-a.CM)/(b.CM-a.CM)*float64(b.Pos-a.Pos)
 }
