@@ -311,6 +311,10 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	if err := sitesZ.Close(); err != nil {
 		return nil, err
 	}
+	// Its tabix index, so standard tools slice it by region (none when unsorted or past 2^29).
+	if err := vcfscan.IndexBGZFTable(out.Path("sites.tsv.gz"), vcfscan.TabixSitesColumns); err != nil && !errors.Is(err, vcfscan.ErrLimit) && !errors.Is(err, vcfscan.ErrUnsorted) {
+		return nil, err
+	}
 	if popZ != nil {
 		if err := popZ.Close(); err != nil {
 			return nil, err
