@@ -121,7 +121,7 @@ func (t *Totals) WritePopulations(w io.Writer) error {
 			if he > 0 {
 				fis = 1 - ho/he
 			}
-			row = append(row, ftoa(fis), ftoa(ratio(float64(g.BelowE6), float64(g.Tested))), "NA", "NA", "NA", "NA", "NA")
+			row = append(row, ftoa(fis), ftoa(ratio(float64(g.BelowE6), float64(g.Tested))), numfmt.NA, numfmt.NA, numfmt.NA, numfmt.NA, numfmt.NA)
 		} else {
 			all := func(b *BlockAcc) *WCSums { return &b.All }
 			fis, fisSE, _, _ := t.wcJackknife(all, (*WCSums).fis)

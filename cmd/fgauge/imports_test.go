@@ -29,6 +29,7 @@ func TestMainImports(t *testing.T) {
 		"fgauge/stats/pedigree":             true, // the pedigree command, error sentinels
 		"fgauge/roh":                        true, // detection options, error sentinels
 		"fgauge/roh/simulate":               true, // the simulate command's options
+		"fgauge/internal/numfmt":            true, // NA in the pedigree command's table
 		"github.com/schollz/progressbar/v3": true,
 		"golang.org/x/term":                 true,
 	}
