@@ -137,7 +137,7 @@ func fmtF(x float64) string { return numfmt.Float(x) }
 // by sample (in sample order), then chromosome (input order), then start.
 func (r *Result) WriteRuns(w io.Writer) error {
 	bw := bufio.NewWriterSize(w, 64*1024)
-	bw.WriteString("sample\tchrom\tstart\tend\tlength_bp\tlength_cm\tn_sites\tn_het\tn_missing\tquality\tgenerations_back\n")
+	bw.WriteString(strings.Join(columnNames("runs.tsv"), "\t") + "\n")
 	// index runs by sample
 	type ref struct{ c, i int }
 	bySample := make([][]ref, len(r.Samples))
@@ -248,7 +248,7 @@ func (r *Result) SampleStats() []SampleStats {
 // SampleTable returns the columns appended to samples.tsv and one row per
 // sample in sample order.
 func (r *Result) SampleTable() (header []string, rows [][]string) {
-	header = []string{"n_runs", "roh_total_bp", "f_roh"}
+	header = columnNames("samples.tsv")
 	for _, mb := range r.Classes {
 		header = append(header, ClassColumn(mb))
 	}
@@ -370,28 +370,50 @@ type ColumnDoc struct {
 	File, Column, Meaning string
 }
 
-// ColumnDocs documents the columns this package writes, for the default
-// length classes; other classes follow the f_roh_gt_1mb pattern.
-func ColumnDocs() []ColumnDoc {
-	d := []ColumnDoc{
-		{"runs.tsv", "sample", "sample name"},
-		{"runs.tsv", "chrom", "chromosome (autosomes only)"},
-		{"runs.tsv", "start", "position of the run's first site (1-based)"},
-		{"runs.tsv", "end", "position of the run's last site (inclusive)"},
-		{"runs.tsv", "length_bp", "end - start + 1"},
-		{"runs.tsv", "length_cm", "genetic length from the map or --cm-per-mb"},
-		{"runs.tsv", "n_sites", "sites in the run, heterozygous and missing calls included"},
-		{"runs.tsv", "n_het", "heterozygous calls inside the run (tolerated as errors)"},
-		{"runs.tsv", "n_missing", "missing calls inside the run"},
-		{"runs.tsv", "quality", "HMM: mean posterior probability of autozygosity over the run's sites; NA for the rule-based detector"},
-		{"runs.tsv", "generations_back", "rough age of the common ancestor, 100/(2*length_cm) generations (common practice; a wide-spread expectation, not an estimate for this run)"},
-		{"samples.tsv", "n_runs", "runs at least as long as the smallest length class (default 1 Mb)"},
-		{"samples.tsv", "roh_total_bp", "total length of those runs"},
-		{"samples.tsv", "f_roh", "F_ROH (McQuillan et al. 2008): roh_total_bp over the autosomal length covered (see run.json roh.covered_source)"},
+// columns are the columns this package writes, each with its
+// explanation; the header lines are built from them. The f_roh_gt_*
+// columns follow, one per length class (ClassColumnDoc).
+var columns = []ColumnDoc{
+	{"runs.tsv", "sample", "sample name"},
+	{"runs.tsv", "chrom", "chromosome (autosomes only)"},
+	{"runs.tsv", "start", "position of the run's first site (1-based)"},
+	{"runs.tsv", "end", "position of the run's last site (inclusive)"},
+	{"runs.tsv", "length_bp", "end - start + 1"},
+	{"runs.tsv", "length_cm", "genetic length from the map or --cm-per-mb"},
+	{"runs.tsv", "n_sites", "sites in the run, heterozygous and missing calls included"},
+	{"runs.tsv", "n_het", "heterozygous calls inside the run (tolerated as errors)"},
+	{"runs.tsv", "n_missing", "missing calls inside the run"},
+	{"runs.tsv", "quality", "HMM: mean posterior probability of autozygosity over the run's sites; NA for the rule-based detector"},
+	{"runs.tsv", "generations_back", "rough age of the common ancestor, 100/(2*length_cm) generations (common practice; a wide-spread expectation, not an estimate for this run)"},
+	{"samples.tsv", "n_runs", "runs at least as long as the smallest length class (default 1 Mb)"},
+	{"samples.tsv", "roh_total_bp", "total length of those runs"},
+	{"samples.tsv", "f_roh", "F_ROH (McQuillan et al. 2008): roh_total_bp over the autosomal length covered (see run.json roh.covered_source)"},
+}
+
+// columnNames returns the names of file's columns in order.
+func columnNames(file string) []string {
+	var out []string
+	for _, d := range columns {
+		if d.File == file {
+			out = append(out, d.Column)
+		}
 	}
-	for _, mb := range []float64{1, 2, 4, 8, 16} {
-		d = append(d, ColumnDoc{"samples.tsv", ClassColumn(mb),
-			fmt.Sprintf("share of the covered autosomal length in runs at least %g Mb long", mb)})
+	return out
+}
+
+// ClassColumnDoc explains the f_roh_gt_* column of a length class.
+func ClassColumnDoc(mb float64) ColumnDoc {
+	return ColumnDoc{"samples.tsv", ClassColumn(mb),
+		fmt.Sprintf("share of the covered autosomal length in runs at least %g Mb long", mb)}
+}
+
+// ColumnDocs documents the columns this package writes, for the default
+// length classes; other classes follow the f_roh_gt_1mb pattern
+// (ClassColumnDoc).
+func ColumnDocs() []ColumnDoc {
+	d := append([]ColumnDoc(nil), columns...)
+	for _, mb := range DefaultConfig().Classes {
+		d = append(d, ClassColumnDoc(mb))
 	}
 	return d
 }

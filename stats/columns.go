@@ -1,14 +1,43 @@
 package stats
 
+import (
+	"slices"
+	"strings"
+)
+
 // ColumnDoc explains one output column in one line.
 type ColumnDoc struct {
 	File, Column, Meaning string
 }
 
+// The output files of this package.
+const (
+	FileSites       = "sites.tsv.gz"
+	FilePopSites    = "sites_by_population.tsv.gz"
+	FileSamples     = "samples.tsv"
+	FilePopulations = "populations.tsv"
+	FilePairwise    = "populations_pairwise.tsv"
+)
+
 // ColumnDocs lists every column this package produces, in file order,
-// with the estimator's citation where one applies.
-func ColumnDocs() []ColumnDoc {
-	const s, ps, sm, po, pw = "sites.tsv.gz", "sites_by_population.tsv.gz", "samples.tsv", "populations.tsv", "populations_pairwise.tsv"
+// with the estimator's citation where one applies. The tables' header
+// lines are built from the same list, so a column and its explanation
+// are declared once.
+func ColumnDocs() []ColumnDoc { return append([]ColumnDoc(nil), columns...) }
+
+// headerLine returns the tab-joined names of file's columns, leaving out skip.
+func headerLine(file string, skip ...string) string {
+	var names []string
+	for _, d := range columns {
+		if d.File == file && !slices.Contains(skip, d.Column) {
+			names = append(names, d.Column)
+		}
+	}
+	return strings.Join(names, "\t")
+}
+
+var columns = func() []ColumnDoc {
+	const s, ps, sm, po, pw = FileSites, FilePopSites, FileSamples, FilePopulations, FilePairwise
 	return []ColumnDoc{
 		{s, "chrom", "chromosome name"},
 		{s, "pos", "1-based position"},
@@ -77,4 +106,4 @@ func ColumnDocs() []ColumnDoc {
 		{pw, "f_st_se", "delete-one block jackknife SE over genomic windows of --jackknife-block-mb"},
 		{pw, "n_sites", "sites where both populations have calls and the pair is polymorphic"},
 	}
-}
+}()

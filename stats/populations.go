@@ -72,7 +72,7 @@ func (t *Totals) wcJackknife(get func(*BlockAcc) *WCSums, est func(*WCSums) floa
 
 // PopulationsHeader is the header of populations.tsv.
 func PopulationsHeader() string {
-	return "population\tn_samples\tmean_het_observed\tmean_het_expected\tf_is\tshare_hwe_p_below_1e6\tf_is_se\tf_st\tf_st_se\tf_it\tf_it_se"
+	return headerLine(FilePopulations)
 }
 
 // popSampleCounts returns the number of samples per population and pooled.
@@ -122,7 +122,7 @@ func (t *Totals) WritePopulations(w io.Writer) error {
 			if he > 0 {
 				fis = 1 - ho/he
 			}
-			row = append(row, ftoa(fis), ftoa(ratio(float64(g.BelowE6), float64(g.Tested))), "NA", "NA", "NA", "NA", "NA")
+			row = append(row, ftoa(fis), ftoa(ratio(float64(g.BelowE6), float64(g.Tested))), numfmt.NA, numfmt.NA, numfmt.NA, numfmt.NA, numfmt.NA)
 		} else {
 			all := func(b *BlockAcc) *WCSums { return &b.All }
 			fis, fisSE, _, _ := t.wcJackknife(all, (*WCSums).fis)
@@ -138,7 +138,7 @@ func (t *Totals) WritePopulations(w io.Writer) error {
 
 // PairwiseHeader is the header of populations_pairwise.tsv.
 func PairwiseHeader() string {
-	return "population_a\tpopulation_b\tf_st\tf_st_se\tn_sites"
+	return headerLine(FilePairwise)
 }
 
 // WritePairwise writes populations_pairwise.tsv: Weir & Cockerham (1984)

@@ -427,13 +427,11 @@ func (t *Totals) CallRate(i int) float64 { return t.estimates(i).callRate }
 // one row per selected sample, in order. The population column is present
 // only with populations ("NA" for unlisted samples).
 func (t *Totals) SampleTable() (header []string, rows [][]string) {
-	header = []string{"sample"}
 	if t.PopOf != nil {
-		header = append(header, "population")
+		header = strings.Split(headerLine(FileSamples), "\t")
+	} else {
+		header = strings.Split(headerLine(FileSamples, "population"), "\t")
 	}
-	header = append(header, "sites_called", "n_hom_ref", "n_het", "n_hom_alt", "n_missing", "n_haploid",
-		"call_rate", "het_rate", "hom_observed", "hom_expected", "sites_informative",
-		"f_hom", "f_grm", "f_excess_hom", "f_uniting_gametes", "f_vanraden", "flags")
 	v := t.view()
 	for i := range t.PerSample {
 		a := &t.PerSample[i]

@@ -511,10 +511,10 @@ func appendFloat(b []byte, x float64) []byte {
 
 // SitesHeader is the header line of sites.tsv (no trailing newline).
 func SitesHeader() string {
-	return "chrom\tpos\tref\talt\tn_hom_ref\tn_het\tn_hom_alt\tn_missing\tn_haploid\talt_freq\tmaf\tcall_rate\thet_observed\thet_expected\tf_site\thwe_p\thwe_midp\thwe_p_deficit\thwe_p_excess"
+	return headerLine(FileSites)
 }
 
 // PopSitesHeader is the header line of sites_by_population.tsv.
 func PopSitesHeader() string {
-	return "chrom\tpos\tpopulation\tn_called\thet_observed\thet_expected\tf_site\thwe_p"
+	return headerLine(FilePopSites)
 }

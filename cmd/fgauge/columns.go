@@ -5,27 +5,8 @@ import (
 	"fmt"
 	"text/tabwriter"
 
-	"fgauge/roh"
-	"fgauge/stats"
+	"fgauge/cmd/fgauge/internal/outdir"
 )
-
-// columnDoc explains one output column.
-type columnDoc struct{ file, column, meaning string }
-
-// allColumnDocs gathers the column explanations of every package, in the
-// order the files and columns are written.
-func allColumnDocs() []columnDoc {
-	var docs []columnDoc
-	for _, d := range stats.ColumnDocs() {
-		docs = append(docs, columnDoc{d.File, d.Column, d.Meaning})
-	}
-	for _, d := range roh.ColumnDocs() {
-		docs = append(docs, columnDoc{d.File, d.Column, d.Meaning})
-	}
-	docs = append(docs, columnDoc{"samples.tsv", "f_pedigree",
-		"pedigree inbreeding coefficient (Meuwissen & Luo 1992, Genet Sel Evol 24:305) from --pedigree; NA when the sample is not in the pedigree"})
-	return docs
-}
 
 const columnsHelp = `Prints one line per output column: the file, the column name and what it
 means, with the citation of each published estimator. --file limits the list
@@ -45,11 +26,11 @@ func runColumns(ctx context.Context, env *runEnv, args []string) error {
 	}
 	tw := tabwriter.NewWriter(env.stdout, 0, 4, 2, ' ', 0)
 	n := 0
-	for _, d := range allColumnDocs() {
-		if *only != "" && d.file != *only {
+	for _, d := range outdir.Columns() {
+		if *only != "" && d.File != *only {
 			continue
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\n", d.file, d.column, d.meaning)
+		fmt.Fprintf(tw, "%s\t%s\t%s\n", d.File, d.Name, d.Doc)
 		n++
 	}
 	if n == 0 {

@@ -30,6 +30,7 @@ func TestMainImports(t *testing.T) {
 		"fgauge/roh":                        true, // detection options, error sentinels
 		"fgauge/genedrop":                   true, // the simulate command's options
 		"fgauge/genmap":                     true, // the --recombination-map option
+		"fgauge/internal/numfmt":            true, // NA in the pedigree command's table
 		"github.com/schollz/progressbar/v3": true,
 		"golang.org/x/term":                 true,
 	}

@@ -1,6 +1,11 @@
 // Command fgauge measures inbreeding in genotyped cohorts from VCF or BCF
 // files: per-sample genomic F, runs of homozygosity, per-site
 // Hardy-Weinberg tests and population F-statistics.
+//
+// This package is the shell only: it parses flags into the config structs
+// of the packages under cmd/fgauge/internal (scanrun, shard, plan, demo),
+// prints help, draws the progress bar and maps errors to exit codes. The
+// work itself is in those packages and in vcfscan, stats and roh.
 package main
 
 import (

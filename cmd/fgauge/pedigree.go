@@ -11,6 +11,7 @@ import (
 	"strconv"
 	"strings"
 
+	"fgauge/internal/numfmt"
 	"fgauge/stats/pedigree"
 	"fgauge/vcfscan"
 )
@@ -166,7 +167,7 @@ func writeInbreeding(w io.Writer, ped *pedigree.Pedigree, f []float64) error {
 
 func appendParent(b []byte, ped *pedigree.Pedigree, j int) []byte {
 	if j < 0 {
-		return append(b, "NA"...)
+		return append(b, numfmt.NA...)
 	}
 	return append(b, ped.ID(j)...)
 }

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"context"
+	"fgauge/cmd/fgauge/internal/outdir"
 	"os"
 	"path/filepath"
 	"strings"
@@ -84,6 +85,10 @@ func TestReportROHClasses(t *testing.T) {
 	}
 	if bytes.Contains(html, []byte("&lt; 1 Mb")) {
 		t.Error("report.html still starts the bands at 1 Mb")
+	}
+	// The sample table explains its columns with their declarations.
+	if want := `<th title="` + outdir.ColumnDoc("samples.tsv", "call_rate") + `">call_rate</th>`; !bytes.Contains(html, []byte(want)) {
+		t.Errorf("report.html lacks %s", want)
 	}
 	if code, msg := reportRun("report", out, "--per-sample"); code != exitOK {
 		t.Fatalf("report: exit %d: %s", code, msg)

@@ -3,6 +3,7 @@ package htmlreport
 import (
 	"bytes"
 	"embed"
+	"fgauge/cmd/fgauge/internal/outdir"
 	"fmt"
 	"html/template"
 	"math"
@@ -47,6 +48,9 @@ func pageTemplates() (*template.Template, error) {
 		"exact":  fmtExact,
 		"pct":    fmtPct,
 		"fmtInt": func(v any) string { return fmtInt(toInt64(v)) },
+		// coldoc is the explanation of a samples.tsv column, declared
+		// beside the column by the package that writes it.
+		"coldoc": func(col string) string { return outdir.ColumnDoc("samples.tsv", col) },
 	}
 	return template.New("pages").Funcs(funcs).ParseFS(assets, "assets/*.tmpl")
 }

@@ -22,7 +22,7 @@ func WriteTables(out *Dir, totals *stats.Totals, rres *roh.Result, ped []string)
 		}
 	}
 	if ped != nil {
-		header = append(header, "f_pedigree")
+		header = append(header, PedigreeColumn.Name)
 		for i := range rows {
 			rows[i] = append(rows[i], ped[i])
 		}
