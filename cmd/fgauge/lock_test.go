@@ -96,7 +96,7 @@ func TestSecondRunRefused(t *testing.T) {
 	for _, e := range ents {
 		names = append(names, e.Name())
 	}
-	if strings.Join(names, " ") != "run.json samples.tsv sites.tsv.gz" {
+	if strings.Join(names, " ") != "run.json samples.tsv sites.tsv.gz sites.tsv.gz.tbi" {
 		t.Errorf("OUTDIR holds %v", names)
 	}
 	// The lock is released: a later run may use the folder.

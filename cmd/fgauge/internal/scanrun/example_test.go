@@ -46,4 +46,5 @@ func ExampleRun() {
 	// runs.tsv
 	// samples.tsv
 	// sites.tsv.gz
+	// sites.tsv.gz.tbi
 }
