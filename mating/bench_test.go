@@ -3,6 +3,7 @@ package mating
 import (
 	"context"
 	"fmt"
+	"math"
 	"math/rand/v2"
 	"testing"
 )
@@ -41,4 +42,30 @@ func BenchmarkPack(b *testing.B) {
 		p.Add(batch)
 	}
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(nInd*nSites), "ns/genotype")
+}
+
+// BenchmarkAllocate times the solver on 200 sires x 20,000 dams of
+// invented costs: no limit, a limit of 120 (capacity 1.2 times the dams)
+// and a limit of 100 (capacity equal to the dams, the tightest case).
+func BenchmarkAllocate(b *testing.B) {
+	const nS, nD = 200, 20000
+	for _, limit := range []int{nD, 120, 100} {
+		b.Run(fmt.Sprintf("limit=%d", limit), func(b *testing.B) {
+			rng := rand.New(rand.NewPCG(9, 10))
+			cost := randomCosts(rng, nS, nD)
+			limits := make([]int, nS)
+			for s := range limits {
+				limits[s] = limit
+			}
+			var moves int64
+			for b.Loop() {
+				a, err := Allocate(context.Background(), cost, AllocOptions{Limits: limits, Ceiling: math.Inf(1)})
+				if err != nil {
+					b.Fatal(err)
+				}
+				moves = a.Moves
+			}
+			b.ReportMetric(float64(moves), "moves")
+		})
+	}
 }

@@ -218,7 +218,7 @@ func (p *Packer) Genomic(ctx context.Context, threads int) (*Matrix, error) {
 	if nS == 0 || nD == 0 {
 		return out, nil
 	}
-	g := &genomicRun{p: p, out: out, nS: nS, scale: 1 / (4 * p.het)} // G/2 = S / (2 * 2 sum p(1-p))
+	g := &genomicRun{p: p, out: out, nS: nS, scale: 1 / (2 * p.het)} // p.het = sum 2p(1-p); G/2 = S / (2 * p.het)
 	g.prepare()
 	nTasks := (nD + damBlock - 1) / damBlock
 	var next atomic.Int64
@@ -498,7 +498,7 @@ func Reference(x []vcfscan.Geno, nSires, nDams int, q []float64) (*Matrix, error
 			for k := range zs {
 				sum += zs[k] * zd[k]
 			}
-			out.V[s*nDams+d] = sum / (4 * het)
+			out.V[s*nDams+d] = sum / (2 * het)
 		}
 	}
 	return out, nil
