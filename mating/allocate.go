@@ -187,14 +187,14 @@ type allocator struct {
 	capacity []int
 	load     []int
 	sireOf   []int32
-	pos      []int32     // dam-major: position of dam d in heap (sireOf[d], b)
-	heaps    []moveHeap  // (a,b) -> dams on a keyed by c(d,b) - c(d,a)
-	pi       []float64   // sire potentials
-	piT      float64     // sink potential
-	dist     []float64   // Dijkstra scratch
-	seen     []bool      // settled in the last search
-	prev     []int32     // previous sire on the path, -1 from the new dam
-	prevDam  []int32     // dam moved along the edge into this sire
+	pos      []int32    // dam-major: position of dam d in heap (sireOf[d], b)
+	heaps    []moveHeap // (a,b) -> dams on a keyed by c(d,b) - c(d,a)
+	pi       []float64  // sire potentials
+	piT      float64    // sink potential
+	dist     []float64  // Dijkstra scratch
+	seen     []bool     // settled in the last search
+	prev     []int32    // previous sire on the path, -1 from the new dam
+	prevDam  []int32    // dam moved along the edge into this sire
 	moves    int64
 }
 
