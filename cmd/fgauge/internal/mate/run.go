@@ -184,6 +184,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		r.Release(b)
 	}
 	sitesUsed, missing := pk.Sites(), pk.Missing()
+	tRead := time.Now()
 	gen, err := pk.Genomic(ctx, cfg.Threads)
 	if errors.Is(err, mating.ErrNoSites) {
 		return nil, &InputError{File: cfg.Input, Msg: fmt.Sprintf("no site usable for genomic coancestry (%d SNP records kept, %d without a frequency, or all monomorphic)", kept, pk.Skipped()), Err: err}
@@ -192,6 +193,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		return nil, err
 	}
 	pk = nil // release the planes before the allocation
+	tGenomic := time.Now()
 
 	res = &Result{Sires: sires.ids, Dams: dams.ids, Genomic: gen}
 	var absent []string
@@ -215,6 +217,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		return nil, err
 	}
 	res.Allocation = alloc
+	tAlloc := time.Now()
 
 	info := RunInfo{
 		Version: cfg.Version, CommandLine: cfg.CommandLine,
@@ -262,6 +265,10 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		return nil, err
 	}
 	info.WallSeconds = time.Since(start).Seconds()
+	info.PhaseSeconds = PhaseSeconds{
+		ReadAndPack: tRead.Sub(start).Seconds(), Genomic: tGenomic.Sub(tRead).Seconds(),
+		Allocation: tAlloc.Sub(tGenomic).Seconds(), Write: time.Since(tAlloc).Seconds(),
+	}
 	if err := writeRunInfo(sd, &info); err != nil {
 		return nil, err
 	}

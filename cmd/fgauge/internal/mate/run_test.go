@@ -211,3 +211,59 @@ func TestBadInput(t *testing.T) {
 		})
 	}
 }
+
+// TestRunWithPedigree: an invented pedigree over some of the cohort's
+// samples (sire 1 and dam 1 full sibs, sire 2 and dam 2 half sibs; common
+// practice: kinship 1/4 and 1/8); coancestry_pedigree, the blend and the
+// pedigree-only plan in run.json.
+func TestRunWithPedigree(t *testing.T) {
+	ids := cohortSamples(t)
+	dir := t.TempDir()
+	ped := "id\tsire\tdam\nfounder_m\t0\t0\nfounder_f\t0\t0\nfounder_g\t0\t0\n" +
+		ids[0] + "\tfounder_m\tfounder_f\n" + ids[10] + "\tfounder_m\tfounder_f\n" +
+		ids[1] + "\tfounder_m\tfounder_g\n" + ids[11] + "\tfounder_m\tfounder_f\n"
+	pedPath := filepath.Join(dir, "ped.tsv")
+	if err := os.WriteFile(pedPath, []byte(ped), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	cfg := baseConfig(t, dir)
+	cfg.PedigreeFile = pedPath
+	cfg.PlanOn, cfg.BlendWeight = PlanBlend, 0.25
+	var stderr bytes.Buffer
+	cfg.Stderr = &stderr
+	res, err := Run(context.Background(), cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	nD := len(res.Dams)
+	for _, c := range []struct {
+		s, d int
+		want float64
+	}{{0, 0, 0.25}, {1, 1, 0.125}, {0, 1, 0.25}, {1, 0, 0.125}, {2, 0, 0}} {
+		got := res.Pedigree.V[c.s*nD+c.d]
+		if got != c.want {
+			t.Errorf("coancestry_pedigree(%d,%d) = %v, want %v", c.s, c.d, got, c.want)
+		}
+		i := c.s*nD + c.d
+		if blend := 0.25*res.Genomic.V[i] + 0.75*got; res.ProgenyF.V[i] != blend {
+			t.Errorf("progeny_f(%d,%d) = %v, blend %v", c.s, c.d, res.ProgenyF.V[i], blend)
+		}
+	}
+	ri, err := ReadRunInfo(filepath.Join(cfg.OutDir, "run.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if ri.PedigreePlan == nil || ri.PedigreePlan.MeanCoancestryGenomic == nil || ri.Plan.MeanCoancestryPedigree == nil {
+		t.Fatalf("run.json lacks the pedigree-only plan: %+v", ri.PedigreePlan)
+	}
+	if len(ri.PedigreeAbsent) != 66 || !strings.Contains(stderr.String(), "66 candidates are not in the pedigree") {
+		t.Errorf("absent %d, stderr %q", len(ri.PedigreeAbsent), stderr.String())
+	}
+	if *ri.BlendWeight != 0.25 {
+		t.Errorf("blend weight %v", *ri.BlendWeight)
+	}
+	got := readColumn(t, filepath.Join(cfg.OutDir, "pairs.tsv"), "coancestry_pedigree")
+	if got[0] != 0.25 || got[nD+1] != 0.125 {
+		t.Errorf("pairs.tsv coancestry_pedigree %v %v", got[0], got[nD+1])
+	}
+}

@@ -50,7 +50,18 @@ type RunInfo struct {
 	PedigreeAbsent  []string      `json:"candidates_not_in_pedigree,omitempty"`
 	AllocationMoves int64         `json:"allocation_moves"`
 	WallSeconds     float64       `json:"wall_seconds"`
+	PhaseSeconds    PhaseSeconds  `json:"phase_seconds"`
 	Cautions        []string      `json:"cautions"`
+}
+
+// PhaseSeconds splits the wall time: reading the input and packing the
+// genotypes, the pair coancestries, the allocation(s) with the summaries,
+// and writing the outputs.
+type PhaseSeconds struct {
+	ReadAndPack float64 `json:"read_and_pack"`
+	Genomic     float64 `json:"genomic"`
+	Allocation  float64 `json:"allocation"`
+	Write       float64 `json:"write"`
 }
 
 // InputInfo describes the genotype input.
