@@ -45,6 +45,9 @@ type Config struct {
 	MaxProgenyF    float64 // pairs with progeny_f above it are never used; NaN: none
 
 	PedigreeFile string
+	// Pedigree is used when PedigreeFile is empty (callers such as the
+	// demo that hold the pedigree in memory).
+	Pedigree *pedigree.Pedigree
 	PlanOn       string  // PlanGenomic (default), PlanPedigree or PlanBlend
 	BlendWeight  float64 // weight of the genomic coancestry in PlanBlend (0..1)
 
@@ -102,7 +105,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 			limits[s] = n
 		}
 	}
-	var ped *pedigree.Pedigree
+	ped := cfg.Pedigree
 	if cfg.PedigreeFile != "" {
 		f, err := os.Open(cfg.PedigreeFile)
 		if err != nil {
@@ -296,7 +299,7 @@ func (c *Config) check() error {
 	switch c.PlanOn {
 	case PlanGenomic:
 	case PlanPedigree, PlanBlend:
-		if c.PedigreeFile == "" {
+		if c.PedigreeFile == "" && c.Pedigree == nil {
 			return inputErrorf("", 0, "mate: --plan-on %s needs --pedigree", c.PlanOn)
 		}
 	default:
