@@ -47,9 +47,9 @@ type Config struct {
 	PedigreeFile string
 	// Pedigree is used when PedigreeFile is empty (callers such as the
 	// demo that hold the pedigree in memory).
-	Pedigree *pedigree.Pedigree
-	PlanOn       string  // PlanGenomic (default), PlanPedigree or PlanBlend
-	BlendWeight  float64 // weight of the genomic coancestry in PlanBlend (0..1)
+	Pedigree    *pedigree.Pedigree
+	PlanOn      string  // PlanGenomic (default), PlanPedigree or PlanBlend
+	BlendWeight float64 // weight of the genomic coancestry in PlanBlend (0..1)
 
 	FreqsFile       string // allele-frequency panel as for the scan's --freqs
 	FreqsFromInfo   string // INFO key holding the frequency
