@@ -13,8 +13,18 @@ import (
 // missing shares, packing excluded; ns/pair-site is the figure to compare.
 func BenchmarkGenomic(b *testing.B) {
 	const nS, nD, nSites = 200, 1000, 50000
-	for _, missing := range []float64{0, 0.01, 0.05} {
-		b.Run(fmt.Sprintf("missing=%g", missing), func(b *testing.B) {
+	asm := popDot2x2
+	defer func() { popDot2x2 = asm }()
+	for _, tc := range []struct {
+		missing float64
+		kernel  string
+	}{{0, "go"}, {0, "default"}, {0.01, "default"}, {0.05, "default"}} {
+		missing := tc.missing
+		popDot2x2 = asm
+		if tc.kernel == "go" {
+			popDot2x2 = popDot2x2Go // the portable kernel, for the ratio
+		}
+		b.Run(fmt.Sprintf("missing=%g/kernel=%s", missing, tc.kernel), func(b *testing.B) {
 			rng := rand.New(rand.NewPCG(3, 4))
 			batch, _ := randomCohort(rng, nS+nD, nSites, missing)
 			p := NewPacker(seq(0, nS), seq(nS, nD), nil)

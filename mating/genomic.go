@@ -444,9 +444,11 @@ func popDot(u, v []uint64) int64 {
 	return int64(n)
 }
 
-// popDot2x2 is popDot for the four pairs of sires u0, u1 with dams v0, v1
-// (u0v0, u0v1, u1v0, u1v1).
-func popDot2x2(u0, u1, v0, v1 []uint64) (n00, n01, n10, n11 int64) {
+// popDot2x2Go is popDot for the four pairs of sires u0, u1 with dams v0, v1
+// (u0v0, u0v1, u1v0, u1v1). popDot2x2 is this function, or on amd64 with
+// POPCNT an assembly twin (popdot_amd64.s) that skips the per-call CPU
+// feature check Go adds to bits.OnesCount64 below GOAMD64=v2.
+func popDot2x2Go(u0, u1, v0, v1 []uint64) (n00, n01, n10, n11 int64) {
 	u1 = u1[:len(u0)]
 	v0 = v0[:len(u0)]
 	v1 = v1[:len(u0)]
