@@ -90,3 +90,37 @@ func TestGenomicMatchesReference(t *testing.T) {
 type fixedFreqs []float64
 
 func (f fixedFreqs) Fill(b *vcfscan.Batch, p []float64) { copy(p, f[:len(b.Records)]) }
+
+// TestGenomicBatchSplits: the result does not depend on how the records
+// are cut into batches (words of 64 sites straddle batches).
+func TestGenomicBatchSplits(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 6))
+	const nS, nD, nSites = 3, 11, 300
+	b, x := randomCohort(rng, nS+nD, nSites, 0.05)
+	q := make([]float64, nSites)
+	CohortFreqs{}.Fill(b, q)
+	q[7], q[64] = math.NaN(), math.NaN()
+	want, err := Reference(x, nS, nD, q)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, cuts := range [][]int{{1, 63, 64, 65, 200}, {5, 6, 7, 8, 9, 130, 299}, {150}} {
+		p := NewPacker(seq(0, nS), seq(nS, nD), fixedFreqs(q))
+		from := 0
+		for _, to := range append(cuts, nSites) {
+			sub := &vcfscan.Batch{NSamples: nS + nD, Records: b.Records[from:to], GT: b.GT[from*(nS+nD) : to*(nS+nD)]}
+			p.Add(sub)
+			p.src = fixedFreqs(q[to:]) // the next batch's frequencies
+			from = to
+		}
+		got, err := p.Genomic(context.Background(), 2)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i := range want.V {
+			if math.Abs(got.V[i]-want.V[i]) > 1e-12 {
+				t.Fatalf("cuts %v: pair %d: %v, reference %v", cuts, i, got.V[i], want.V[i])
+			}
+		}
+	}
+}
