@@ -50,7 +50,7 @@ func runMate(ctx context.Context, env *runEnv, args []string) error {
 	c.Input, c.Stdout, c.Stderr, c.CommandLine, c.Version = pos[0], env.stdout, env.stderr, env.argv, version
 	_, err = mate.Run(ctx, c)
 	if errors.Is(err, mate.ErrInput) {
-		return &usageError{err.Error()}
+		return &usageError{Msg: err.Error(), Err: err}
 	}
 	return err
 }

@@ -16,6 +16,8 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgsvg"
+
+	"fgauge/cmd/fgauge/internal/outdir"
 )
 
 //go:embed assets/mate.tmpl
@@ -62,7 +64,7 @@ type pageData struct {
 // plan's), the use of each sire and the cautions. Self-contained: inline
 // SVG drawn with gonum/plot, html/template escaping, and a
 // Content-Security-Policy that forbids scripts and outside loads.
-func writePage(sd *stagedDir, res *Result, ri *RunInfo) error {
+func writePage(sd *outdir.Dir, res *Result, ri *RunInfo) error {
 	pd := pageData{Title: "Mating plan", Info: ri, Cautions: cautions, PlanOnText: planOnText(ri)}
 	add := func(key string, x float64, note string) {
 		pd.Tiles = append(pd.Tiles, tile{key, fmtG(x), fmtExact(x), note})

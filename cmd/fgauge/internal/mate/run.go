@@ -9,6 +9,7 @@ import (
 	"os"
 	"time"
 
+	"fgauge/cmd/fgauge/internal/outdir"
 	"fgauge/mating"
 	"fgauge/stats"
 	"fgauge/stats/pedigree"
@@ -249,13 +250,15 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		info.PedigreePlan = pedigreePlan(ctx, res.Pedigree, gen, limits, cfg.MaxProgenyF)
 	}
 
-	sd, err := newStagedDir(cfg.OutDir, cfg.Force)
+	sd, err := outdir.NewFor(cfg.OutDir, cfg.Force, outdir.MateNames)
 	if err != nil {
 		return nil, err
 	}
 	defer func() {
 		if err != nil {
 			sd.Abort()
+		} else {
+			sd.Close()
 		}
 	}()
 	if err := writePairs(sd, res, cfg.MaxProgenyF); err != nil {

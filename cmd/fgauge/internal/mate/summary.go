@@ -8,6 +8,7 @@ import (
 	"math"
 	"os"
 
+	"fgauge/cmd/fgauge/internal/outdir"
 	"fgauge/mating"
 )
 
@@ -104,7 +105,7 @@ func ReadRunInfo(path string) (*RunInfo, error) {
 	return &ri, nil
 }
 
-func writeRunInfo(sd *stagedDir, ri *RunInfo) error {
+func writeRunInfo(sd *outdir.Dir, ri *RunInfo) error {
 	f, err := sd.Create("run.json")
 	if err != nil {
 		return err

@@ -4,6 +4,8 @@ import (
 	"bufio"
 	"math"
 	"strconv"
+
+	"fgauge/cmd/fgauge/internal/outdir"
 )
 
 // ColumnDoc explains one output column in one line.
@@ -60,7 +62,7 @@ func appendNum(b []byte, x float64) []byte {
 	return strconv.AppendFloat(b, x, 'g', -1, 64)
 }
 
-func writePairs(sd *stagedDir, res *Result, ceiling float64) error {
+func writePairs(sd *outdir.Dir, res *Result, ceiling float64) error {
 	f, err := sd.Create("pairs.tsv")
 	if err != nil {
 		return err
@@ -108,7 +110,7 @@ func writePairs(sd *stagedDir, res *Result, ceiling float64) error {
 	return f.Close()
 }
 
-func writeAllocation(sd *stagedDir, res *Result) error {
+func writeAllocation(sd *outdir.Dir, res *Result) error {
 	f, err := sd.Create("allocation.tsv")
 	if err != nil {
 		return err
