@@ -297,7 +297,9 @@ func histogram(res *Result) (pageFigure, error) {
 	p := plot.New()
 	p.X.Label.Text = "progeny F"
 	p.Y.Label.Text = "share of pairs"
-	hp := mk(&cPlan, float64(len(res.Allocation.SireOf)), color.RGBA{0x2a, 0x7d, 0x86, 0xb0})
+	// NRGBA: the teal at 69% opacity (color.RGBA is alpha-premultiplied,
+	// and 0x2a7d86 under alpha 0xb0 would be drawn as a paler #3CB5C2).
+	hp := mk(&cPlan, float64(len(res.Allocation.SireOf)), color.NRGBA{0x2a, 0x7d, 0x86, 0xb0})
 	ha := mk(&cAll, float64(n), nil)
 	ha.LineStyle.Color = color.RGBA{0xa9, 0x43, 0x3a, 0xff}
 	p.Add(hp, ha)
