@@ -12,7 +12,7 @@ func TestColumnsMate(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, out)
 	}
-	for _, want := range []string{"coancestry_genomic", "coancestry_pedigree", "progeny_f", "VanRaden (2008", "base population: the pedigree's founders", "base population: the one whose allele frequencies"} {
+	for _, want := range []string{"coancestry_genomic", "coancestry_pedigree", "progeny_f", "VanRaden (2008", "base population: the pedigree's founders", "base population: the one whose allele frequencies", "coancestry_segments", "base population: ancestors recent enough"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("columns --file pairs.tsv lacks %q:\n%s", want, out)
 		}

@@ -24,6 +24,8 @@ func runMate(ctx context.Context, env *runEnv, args []string) error {
 	fs.StringVar(&c.PedigreeFile, "pedigree", "", "pedigree `FILE` (id sire dam [sex]) for coancestry_pedigree")
 	fs.StringVar(&c.PlanOn, "plan-on", mate.PlanGenomic, "what progeny_f is: genomic, pedigree or blend")
 	fs.Float64Var(&c.BlendWeight, "blend-weight", 0.5, "weight `W` of the genomic coancestry in --plan-on blend")
+	fs.BoolVar(&c.Segments, "segments", false, "add coancestry_segments, the shared-segment coancestry (one pass over the sites per pair: for up to a few hundred thousand pairs)")
+	fs.Float64Var(&c.SegmentMinMB, "segment-min-mb", 3, "shortest shared stretch `MB` counted by --segments")
 	fs.StringVar(&c.FreqsFile, "freqs", "", "`FILE` of allele frequencies 'chrom pos ref alt alt_freq' (sites absent from it are left out)")
 	fs.StringVar(&c.FreqsFromInfo, "freqs-from-info", "", "INFO `KEY` (e.g. AF) holding the alternate-allele frequency")
 	fs.BoolVar(&c.IncludeFiltered, "include-filtered", false, "keep records whatever their FILTER (default keeps PASS and '.')")

@@ -118,6 +118,9 @@ func TestRunMating(t *testing.T) {
 	if pp == nil || pp.MeanCoancestryGenomic == nil {
 		t.Fatalf("no pedigree-only plan in run.json: %+v", ri)
 	}
+	if m := ri.Plan.MeanCoancestrySegments; m == nil || !(*m >= 0 && *m < 0.25) {
+		t.Errorf("plan's shared-segment coancestry %v: want a probability below 1/4 (no close kin left)", m)
+	}
 	if ri.Sires != 16 || ri.Dams != 16 || ri.SitesUsed < 10000 {
 		t.Errorf("%d sires, %d dams, %d sites", ri.Sires, ri.Dams, ri.SitesUsed)
 	}
@@ -142,7 +145,7 @@ func TestRunMating(t *testing.T) {
 		t.Errorf("allocation.tsv: %d lines, want a header and 16 does", len(lines))
 	}
 	for _, want := range []string{"Mating plan for next season: 16 young bucks x 16 young does", "random allocation (expected):",
-		"plan made on the herd book alone:", "Caution: a mating plan is advice"} {
+		"plan made on the herd book alone:", "shared-segment coancestry of the plan:", "Caution: a mating plan is advice"} {
 		if !strings.Contains(out.String(), want) {
 			t.Errorf("summary lacks %q:\n%s", want, out.String())
 		}

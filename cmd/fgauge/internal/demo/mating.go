@@ -58,7 +58,7 @@ func matingStep(ctx context.Context, cfg *Config, vcfPath, dir string, ped *pedi
 	return mate.Run(ctx, mate.Config{
 		Input: vcfPath, Sires: bucks, Dams: does, OutDir: dir, Force: true,
 		SireLimit: demoSireLimit, MaxProgenyF: math.NaN(),
-		Pedigree: ped, PlanOn: mate.PlanGenomic,
+		Pedigree: ped, PlanOn: mate.PlanGenomic, Segments: true,
 		Threads: max(cfg.Threads, 1), Stderr: cfg.Stderr,
 		CommandLine: cfg.CommandLine, Version: cfg.Version,
 	})
@@ -77,6 +77,10 @@ func writeMatingSummary(w io.Writer, res *mate.Result, dir string) {
 	fmt.Fprintf(w, "  %-44s mean %7.4f\n", "random allocation (expected):", ri.Random.MeanProgenyF)
 	if pp := ri.PedigreePlan; pp != nil && pp.MeanCoancestryGenomic != nil {
 		fmt.Fprintf(w, "  %-44s mean %7.4f   highest %7.4f\n", "plan made on the herd book alone:", *pp.MeanCoancestryGenomic, deref(pp.MaxCoancestryGenomic))
+	}
+	if m := ri.Plan.MeanCoancestrySegments; m != nil {
+		fmt.Fprintf(w, "  %-44s mean %7.4f   (chance that random alleles of the two parents lie in a\n", "shared-segment coancestry of the plan:", *m)
+		fmt.Fprintln(w, "  shared stretch of 3 Mb or more: probability scale, recent ancestry only)")
 	}
 	fmt.Fprintf(w, "  %s lists the pairs; %s shows the pair map.\n",
 		filepath.Join(dir, "allocation.tsv"), filepath.Join(dir, "mate.html"))

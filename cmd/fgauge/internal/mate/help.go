@@ -22,6 +22,17 @@ Measures (one row per pair in OUTDIR/pairs.tsv):
                        Base population: the pedigree's founders, taken as
                        unrelated and not inbred; candidates not in the
                        pedigree count as founders.
+  coancestry_segments  with --segments: shared-segment coancestry on the
+                       probability scale (0 to 1): the chance that a random
+                       allele of each parent lies in a long stretch the two
+                       share identical by descent. Stretches: no opposite
+                       homozygote over at least --segment-min-mb (default 3)
+                       and 50 sites; inside, windows of 32 sites count 1/4
+                       (one copy shared), 1/2 (both copies, or one parent
+                       autozygous) or 1 (both autozygous). Base population:
+                       ancestors recent enough to leave such stretches
+                       (roughly the last 15 generations at 3 Mb); older
+                       relatedness counts 0. Needs input sorted by position.
   progeny_f            the value the plan minimises: the expected F of a
                        progeny of the pair, which equals its parents'
                        coancestry. --plan-on genomic (default), pedigree, or
@@ -32,7 +43,9 @@ Measures (one row per pair in OUTDIR/pairs.tsv):
 Checked against simulated truth: in a simulated closed herd the genomic
 coancestry follows the realized coancestry (share of the genome identical by
 descent from the founders) more closely than the pedigree does (correlation
-about 0.99 against 0.88), because it sees Mendelian sampling.
+about 0.99 against 0.88), because it sees Mendelian sampling; the
+shared-segment coancestry correlates 0.998 and lies on the truth's scale
+(mean absolute difference below 0.01).
 
 The plan is optimal, not greedy: a transportation problem solved exactly by
 successive shortest paths. A request that cannot be met (too few places, a

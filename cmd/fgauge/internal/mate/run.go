@@ -52,6 +52,11 @@ type Config struct {
 	PlanOn      string  // PlanGenomic (default), PlanPedigree or PlanBlend
 	BlendWeight float64 // weight of the genomic coancestry in PlanBlend (0..1)
 
+	// Segments adds coancestry_segments (mating.SharedSegments), with
+	// stretches of at least SegmentMinMB megabases (0: the default 3).
+	Segments     bool
+	SegmentMinMB float64
+
 	FreqsFile       string // allele-frequency panel as for the scan's --freqs
 	FreqsFromInfo   string // INFO key holding the frequency
 	IncludeFiltered bool   // keep records whatever their FILTER
@@ -70,6 +75,7 @@ type Result struct {
 	Dams       []string
 	Genomic    *mating.Matrix
 	Pedigree   *mating.Matrix // nil without a pedigree
+	Segments   *mating.Matrix // nil without Config.Segments
 	ProgenyF   *mating.Matrix
 	Allocation *mating.Allocation
 }
@@ -170,6 +176,10 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		src = sf
 	}
 	pk := mating.NewPacker(sireCols, damCols, src)
+	var spk *mating.SegmentPacker
+	if cfg.Segments {
+		spk = mating.NewSegmentPacker(sireCols, damCols)
+	}
 	read, kept := int64(0), int64(0)
 	for {
 		if err := ctx.Err(); err != nil {
@@ -185,6 +195,12 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		read += b.Read
 		kept += int64(len(b.Records))
 		pk.Add(b)
+		if spk != nil {
+			spk.Add(b)
+			if spk.Bytes() > mating.MaxSegmentBytes {
+				return nil, inputErrorf(cfg.Input, 0, "--segments keeps one byte per candidate and site and would need more than %d MB here; use fewer candidates or sites", mating.MaxSegmentBytes>>20)
+			}
+		}
 		r.Release(b)
 	}
 	sitesUsed, missing := pk.Sites(), pk.Missing()
@@ -200,6 +216,17 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	tGenomic := time.Now()
 
 	res = &Result{Sires: sires.ids, Dams: dams.ids, Genomic: gen}
+	var segOpt mating.SegmentOptions
+	if spk != nil {
+		segOpt.MinBP = int64(math.Round(cfg.SegmentMinMB * 1e6))
+		if res.Segments, err = spk.SharedSegments(ctx, cfg.Threads, segOpt); err != nil {
+			if ctx.Err() != nil {
+				return nil, ctx.Err()
+			}
+			return nil, &InputError{File: cfg.Input, Msg: "--segments: " + err.Error(), Err: err}
+		}
+		spk = nil
+	}
 	var absent []string
 	if ped != nil {
 		if res.Pedigree, absent, err = mating.PedigreeCoancestry(ped, sires.ids, dams.ids); err != nil {
@@ -236,12 +263,19 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		SireLimit:         cfg.SireLimit,
 		SireLimitsFile:    cfg.SireLimitsFile,
 		MaxProgenyF:       jsonFloat(cfg.MaxProgenyF),
-		Plan:              summarize(alloc, gen, res.Pedigree, res.ProgenyF),
+		Plan:              summarize(alloc, gen, res.Pedigree, res.ProgenyF, res.Segments),
 		Random:            randomExpectation(limits, res.ProgenyF, gen, res.Pedigree),
 		PedigreeAbsent:    absent,
 		AllocationMoves:   alloc.Moves,
 		Cautions:          cautions,
 		PairsAboveCeiling: aboveCeiling(res.ProgenyF, cfg.MaxProgenyF),
+	}
+	if res.Segments != nil {
+		mb := 3.0
+		if cfg.SegmentMinMB > 0 {
+			mb = cfg.SegmentMinMB
+		}
+		info.SegmentMinMB = &mb
 	}
 	if cfg.PlanOn == PlanBlend {
 		info.BlendWeight = jsonFloat(cfg.BlendWeight)
@@ -316,6 +350,9 @@ func (c *Config) check() error {
 	}
 	if math.IsInf(c.MaxProgenyF, 0) {
 		return inputErrorf("", 0, "mate: --max-progeny-f must be a finite number")
+	}
+	if !(c.SegmentMinMB >= 0) || math.IsInf(c.SegmentMinMB, 0) {
+		return inputErrorf("", 0, "mate: --segment-min-mb %v: want a positive number of megabases", c.SegmentMinMB)
 	}
 	if c.FreqsFile != "" && c.FreqsFromInfo != "" {
 		return inputErrorf("", 0, "mate: --freqs and --freqs-from-info exclude each other")

@@ -32,10 +32,13 @@ type RunInfo struct {
 	MissingCalls     int64     `json:"missing_calls_of_candidates"`
 	Frequencies      string    `json:"frequencies"`
 	PlanOn           string    `json:"plan_on"`
-	BlendWeight      *float64  `json:"blend_weight,omitempty"`
-	SireLimit        int       `json:"sire_limit"` // 0: none
-	SireLimitsFile   string    `json:"sire_limits_file,omitempty"`
-	MaxProgenyF      *float64  `json:"max_progeny_f"` // null: none
+	// SegmentMinMB is the shortest stretch coancestry_segments counted;
+	// absent without --segments.
+	SegmentMinMB   *float64 `json:"segment_min_mb,omitempty"`
+	BlendWeight    *float64 `json:"blend_weight,omitempty"`
+	SireLimit      int      `json:"sire_limit"` // 0: none
+	SireLimitsFile string   `json:"sire_limits_file,omitempty"`
+	MaxProgenyF    *float64 `json:"max_progeny_f"` // null: none
 	// PairsAboveCeiling counts the pairs never to be used.
 	PairsAboveCeiling int64 `json:"pairs_above_ceiling"`
 	// Plan is the chosen allocation.
@@ -82,6 +85,7 @@ type PlanSummary struct {
 	MaxProgenyF            *float64 `json:"max_progeny_f"`
 	MeanCoancestryGenomic  float64  `json:"mean_coancestry_genomic"`
 	MeanCoancestryPedigree *float64 `json:"mean_coancestry_pedigree"`
+	MeanCoancestrySegments *float64 `json:"mean_coancestry_segments,omitempty"`
 }
 
 // PedigreePlan is the pedigree-only plan, or why there is none.
@@ -139,12 +143,16 @@ func meanOf(m *mating.Matrix, sireOf []int) (mean, mx float64) {
 	return t / float64(len(sireOf)), mx
 }
 
-func summarize(a *mating.Allocation, gen, ped, pf *mating.Matrix) PlanSummary {
+func summarize(a *mating.Allocation, gen, ped, pf, seg *mating.Matrix) PlanSummary {
 	ps := PlanSummary{MeanProgenyF: a.Mean, MaxProgenyF: jsonFloat(a.Max)}
 	ps.MeanCoancestryGenomic, _ = meanOf(gen, a.SireOf)
 	if ped != nil {
 		m, _ := meanOf(ped, a.SireOf)
 		ps.MeanCoancestryPedigree = &m
+	}
+	if seg != nil {
+		m, _ := meanOf(seg, a.SireOf)
+		ps.MeanCoancestrySegments = &m
 	}
 	return ps
 }

@@ -22,6 +22,7 @@ func ColumnDocs() []ColumnDoc {
 		{p, "dam", "dam id (--dams order)"},
 		{p, colGenomic, "genomic coancestry: VanRaden (2008, J Dairy Sci 91:4414) method-1 G/2 with missing calls mean-imputed; base population: the one whose allele frequencies were used (all samples of the input by default), whose average is 0, so values can be negative"},
 		{p, colPedigree, "pedigree coancestry (kinship) by Meuwissen & Luo (1992, Genet Sel Evol 24:305); base population: the pedigree's founders, unrelated and not inbred; 0 for an animal not in the pedigree; NA without --pedigree"},
+		{p, colSegments, segmentsDoc},
 		{p, colProgenyF, "expected inbreeding of a progeny of the pair, the value the plan minimises: coancestry_genomic (--plan-on genomic), coancestry_pedigree (pedigree) or w*genomic + (1-w)*pedigree (blend, w = --blend-weight)"},
 		{p, "allowed", "1 when progeny_f is at most --max-progeny-f (or no ceiling was given), else 0: the pair is never used"},
 		{p, "chosen", "1 when the plan uses the pair, else 0"},
@@ -30,6 +31,7 @@ func ColumnDocs() []ColumnDoc {
 		{a, colProgenyF, "progeny_f of the pair (as in pairs.tsv)"},
 		{a, colGenomic, "coancestry_genomic of the pair"},
 		{a, colPedigree, "coancestry_pedigree of the pair; NA without --pedigree"},
+		{a, colSegments, "coancestry_segments of the pair; NA without --segments"},
 	}
 }
 
@@ -37,7 +39,12 @@ const (
 	colGenomic  = "coancestry_genomic"
 	colPedigree = "coancestry_pedigree"
 	colProgenyF = "progeny_f"
+	colSegments = "coancestry_segments"
 )
+
+// segmentsDoc explains coancestry_segments (method in package mating,
+// SegmentOptions).
+const segmentsDoc = "shared-segment coancestry, probability scale 0..1: chance that a random allele of each parent lies in a stretch both share identical by descent (no opposite homozygote over at least --segment-min-mb Mb, default 3, and 50 sites), from windows of shared one copy (1/4), both copies or one parent autozygous (1/2), both autozygous (1); base population: ancestors recent enough to leave such stretches (roughly the last 15 generations at 3 Mb), older relatedness counts 0; NA without --segments"
 
 func header(file string) string {
 	var b []byte
@@ -85,6 +92,11 @@ func writePairs(sd *outdir.Dir, res *Result, ceiling float64) error {
 			} else {
 				b = append(b, "\tNA"...)
 			}
+			if res.Segments != nil {
+				b = appendNum(b, res.Segments.V[i])
+			} else {
+				b = append(b, "\tNA"...)
+			}
 			pf := res.ProgenyF.V[i]
 			b = appendNum(b, pf)
 			if pf > ceiling { // false for a NaN ceiling
@@ -127,6 +139,11 @@ func writeAllocation(sd *outdir.Dir, res *Result) error {
 		b = appendNum(b, res.Genomic.At(s, d))
 		if res.Pedigree != nil {
 			b = appendNum(b, res.Pedigree.At(s, d))
+		} else {
+			b = append(b, "\tNA"...)
+		}
+		if res.Segments != nil {
+			b = appendNum(b, res.Segments.At(s, d))
 		} else {
 			b = append(b, "\tNA"...)
 		}
