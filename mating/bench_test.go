@@ -79,3 +79,25 @@ func BenchmarkAllocate(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkSharedSegments times the shared-segment coancestry per pair
+// and site on random (unrelated) genotypes, where opposite homozygotes
+// cut the genome into many short stretches, against the genomic kernel's
+// figure in BenchmarkGenomic.
+func BenchmarkSharedSegments(b *testing.B) {
+	const nS, nD, nSites = 20, 100, 50000
+	rng := rand.New(rand.NewPCG(7, 8))
+	batch, _ := randomCohort(rng, nS+nD, nSites, 0.01)
+	for k := range batch.Records {
+		batch.Records[k].Pos = int64(k)*50_000 + 1 // 2,500 Mb: chance stretches stay below 3 Mb
+	}
+	p := NewSegmentPacker(seq(0, nS), seq(nS, nD))
+	p.Add(batch)
+	b.ResetTimer()
+	for b.Loop() {
+		if _, err := p.SharedSegments(context.Background(), 1, SegmentOptions{}); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(nS*nD)/nSites, "ns/pair-site")
+}

@@ -70,3 +70,38 @@ func ExampleAllocate() {
 	fmt.Println(a.SireOf, a.Total)
 	// Output: [0 1 0] 0.15000000000000002
 }
+
+func ExampleSegmentPacker() {
+	// A buck and a doe sharing one genome copy along a whole chromosome:
+	// never opposite homozygotes, both heterozygous here and there.
+	var b strings.Builder
+	b.WriteString("##fileformat=VCFv4.2\n##contig=<ID=1,length=20000000>\n#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT\tbuck\tdoe\n")
+	buck := []string{"0/1", "0/0", "1/1", "0/1", "0/0"}
+	doe := []string{"0/0", "0/0", "0/1", "1/1", "0/1"}
+	for k := 0; k < 200; k++ {
+		fmt.Fprintf(&b, "1\t%d\t.\tA\tG\t.\tPASS\t.\tGT\t%s\t%s\n", k*100_000+1, buck[k%5], doe[k%5])
+	}
+	r, err := vcfscan.NewReader(strings.NewReader(b.String()), "pair.vcf", vcfscan.Options{})
+	if err != nil {
+		log.Fatal(err)
+	}
+	defer r.Close()
+	p := mating.NewSegmentPacker([]int{0}, []int{1})
+	for {
+		batch, err := r.Next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			log.Fatal(err)
+		}
+		p.Add(batch)
+		r.Release(batch)
+	}
+	m, err := p.SharedSegments(context.Background(), 1, mating.SegmentOptions{})
+	if err != nil {
+		log.Fatal(err)
+	}
+	fmt.Printf("shared-segment coancestry %.2f over %d sites\n", m.At(0, 0), p.Sites())
+	// Output: shared-segment coancestry 0.25 over 200 sites
+}

@@ -2,6 +2,7 @@ package mating
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"runtime"
 	"sync"
@@ -47,7 +48,9 @@ import (
 //
 // Checked against simulated truth in cmd/fgauge/internal/mate (the
 // realized coancestry of the gene-drop simulator). Cost: one pass over the
-// sites per pair (about pairs x sites byte comparisons) and one byte per
+// sites per pair (about pairs x sites byte comparisons; BenchmarkSharedSegments:
+// 42.9 ns of wall time per pair-site at load 20 on 2 shared cores, where
+// the genomic kernel needs about 0.03) and one byte per
 // candidate and site of memory, so it is meant for candidate sets up to a
 // few hundred thousand pairs, not the genomic measure's millions.
 
@@ -159,7 +162,7 @@ func (p *SegmentPacker) SharedSegments(ctx context.Context, threads int, opt Seg
 		a = b
 	}
 	if !(span > 0) {
-		return nil, fmt.Errorf("%w: the kept sites span no genome", ErrNoSites)
+		return nil, errors.New("the kept sites span no genome (every chromosome has a single position)")
 	}
 	nS, nD := p.nSires, len(p.cols)-p.nSires
 	m := &Matrix{Sires: nS, Dams: nD, V: make([]float64, nS*nD)}

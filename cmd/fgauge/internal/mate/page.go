@@ -76,6 +76,9 @@ func writePage(sd *outdir.Dir, res *Result, ri *RunInfo) error {
 		add("pedigree-only plan, genomic mean", *pp.MeanCoancestryGenomic, "the plan chosen on pedigree coancestry, measured genomically")
 		add("this plan, genomic mean", ri.Plan.MeanCoancestryGenomic, "")
 	}
+	if m := ri.Plan.MeanCoancestrySegments; m != nil {
+		add("this plan, shared-segment mean", *m, "coancestry_segments: probability scale, recent ancestry only")
+	}
 	hm, err := heatMap(res)
 	if err != nil {
 		return err
