@@ -283,6 +283,28 @@ func TestAgesDeterminism(t *testing.T) {
 	if !bytes.Equal(a, b) {
 		t.Error("two runs with the same seed differ")
 	}
+	// The age truth does not depend on whether sites are drawn.
+	cfg := epochConfig(77, 2, "first_cousin", "closed_herd:3:12:2")
+	cfg.Chromosomes = []Chromosome{{"1", 30e6, 30}, {"2", 20e6, 25}}
+	noSites, err := Run(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cfg.NoSites, cfg.SiteSpacing = false, 20000
+	withSites, err := Run(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(noSites.AgedSegments) != len(withSites.AgedSegments) {
+		t.Fatalf("%d aged stretches without sites, %d with", len(noSites.AgedSegments), len(withSites.AgedSegments))
+	}
+	for k, g := range noSites.AgedSegments {
+		h := withSites.AgedSegments[k]
+		h.NSites = 0
+		if g != h {
+			t.Fatalf("aged stretch %d differs with sites: %+v against %+v", k, g, h)
+		}
+	}
 	if !bytes.Contains(a, []byte("\tancestral\tNA\t")) || !bytes.Contains(a, []byte("\tpedigree\t")) {
 		t.Error("segments table lacks ancestral or pedigree rows")
 	}

@@ -38,7 +38,8 @@ The same --seed gives byte-identical files.
 Ages of autozygosity (--ages, implied by --ancestral-epochs): every autozygous
 stretch is traced to its common ancestor; truth_segments.tsv then lists one
 line per stretch with one common ancestor (a merged segment is split where the
-ancestor changes) and truth_samples.tsv gains the shares by age. The age is
+ancestor changes; n_segments still counts merged segments) and
+truth_samples.tsv gains the shares by age. The age is
 (m_sire + m_dam) / 2, the meioses from the ancestor's copy down to the animal's
 two copies: selfing 1, full sibs 2, first cousins 3, sire x daughter 1.5. A
 stretch of age g has an exponential length of mean 100/(2g) cM. Without these
