@@ -283,6 +283,28 @@ func TestAgesDeterminism(t *testing.T) {
 	if !bytes.Equal(a, b) {
 		t.Error("two runs with the same seed differ")
 	}
+	// The age truth does not depend on whether sites are drawn.
+	cfg := epochConfig(77, 2, "first_cousin", "closed_herd:3:12:2")
+	cfg.Chromosomes = []Chromosome{{"1", 30e6, 30}, {"2", 20e6, 25}}
+	noSites, err := Run(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cfg.NoSites, cfg.SiteSpacing = false, 20000
+	withSites, err := Run(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(noSites.AgedSegments) != len(withSites.AgedSegments) {
+		t.Fatalf("%d aged stretches without sites, %d with", len(noSites.AgedSegments), len(withSites.AgedSegments))
+	}
+	for k, g := range noSites.AgedSegments {
+		h := withSites.AgedSegments[k]
+		h.NSites = 0
+		if g != h {
+			t.Fatalf("aged stretch %d differs with sites: %+v against %+v", k, g, h)
+		}
+	}
 	if !bytes.Contains(a, []byte("\tancestral\tNA\t")) || !bytes.Contains(a, []byte("\tpedigree\t")) {
 		t.Error("segments table lacks ancestral or pedigree rows")
 	}
@@ -322,5 +344,54 @@ func TestAgesLeaveTheSimulationUnchanged(t *testing.T) {
 	}
 	if sumPlain != sumAged || len(aged.AgedSegments) < len(aged.Segments) {
 		t.Errorf("aged stretches cover %d bp in %d rows, merged segments %d bp in %d", sumAged, len(aged.AgedSegments), sumPlain, len(plain.Segments))
+	}
+}
+
+// In a closed herd every pedigree stretch's common ancestor sits exactly
+// Meioses[0] generations above the animal through its sire and Meioses[1]
+// through its dam, and the shares by age grow with the age limit.
+func TestAgesAncestorsInPedigree(t *testing.T) {
+	d, _ := ParseDesign("closed_herd:12:30:3")
+	res, err := Run(Config{Seed: 12, Chromosomes: tenChromosomes()[:4], Designs: []Design{d}, NoSites: true, Ages: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := res.Pedigree
+	// above reports whether anc is an ancestor of i exactly k meioses up.
+	var above func(i, anc, k int) bool
+	above = func(i, anc, k int) bool {
+		if k == 0 {
+			return i == anc
+		}
+		for _, par := range []int{p.Sire(i), p.Dam(i)} {
+			if par >= 0 && above(par, anc, k-1) {
+				return true
+			}
+		}
+		return false
+	}
+	n := 0
+	for _, g := range res.AgedSegments {
+		if g.Source != SourcePedigree {
+			t.Fatalf("ancestral stretch without epochs: %+v", g)
+		}
+		i := g.Sample
+		if g.Meioses[0] < 1 || g.Meioses[1] < 1 || !above(p.Sire(i), g.Ancestor, g.Meioses[0]-1) || !above(p.Dam(i), g.Ancestor, g.Meioses[1]-1) {
+			t.Fatalf("%s: ancestor %s not %v meioses up: %+v", res.Samples[i].ID, res.Samples[g.Ancestor].ID, g.Meioses, g)
+		}
+		n++
+	}
+	for i, a := range res.Ages {
+		for k := 1; k < len(AgeCuts); k++ {
+			if a.Within[k] < a.Within[k-1] {
+				t.Fatalf("%s: shares by age decrease: %v", res.Samples[i].ID, a.Within)
+			}
+		}
+		if a.Within[len(AgeCuts)-1] != a.Total || a.Total != res.Samples[i].FRealized {
+			t.Fatalf("%s: within 256 generations %v, total %v, f_realized %v", res.Samples[i].ID, a.Within[len(AgeCuts)-1], a.Total, res.Samples[i].FRealized)
+		}
+	}
+	if n < 100 {
+		t.Errorf("only %d pedigree stretches in a 12-generation closed herd", n)
 	}
 }
