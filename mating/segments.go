@@ -86,7 +86,7 @@ type SegmentPacker struct {
 	geno   [][]byte // per animal, per site: 0, 1, 2 alternate alleles; 3 missing
 	chrom  []int32
 	pos    []int64
-	order  error          // first record out of order, if any
+	order  *OrderError    // first record out of order, if any
 	done   map[int32]bool // chromosomes finished
 }
 
@@ -114,11 +114,11 @@ func (p *SegmentPacker) Add(b *vcfscan.Batch) {
 			last, c := p.chrom[n-1], int32(r.ChromID)
 			switch {
 			case c == last && r.Pos < p.pos[n-1]:
-				p.order = fmt.Errorf("position %d after position %d on the same chromosome: shared segments need input sorted by position", r.Pos, p.pos[n-1])
+				p.order = &OrderError{Line: r.Line, Msg: fmt.Sprintf("position %d after position %d on the same chromosome: shared segments need input sorted by position", r.Pos, p.pos[n-1])}
 			case c != last:
 				p.done[last] = true
 				if p.done[c] {
-					p.order = fmt.Errorf("a chromosome met again (at position %d) after another one: shared segments need each chromosome in one block", r.Pos)
+					p.order = &OrderError{Line: r.Line, Msg: fmt.Sprintf("a chromosome met again (at position %d) after another one: shared segments need each chromosome in one block", r.Pos)}
 				}
 			}
 		}
@@ -134,6 +134,16 @@ func (p *SegmentPacker) Add(b *vcfscan.Batch) {
 		}
 	}
 }
+
+// OrderError is the first record out of position order that
+// SharedSegments refuses; Line is vcfscan.Record.Line (the VCF line, or
+// the BCF record index; 0 when unknown).
+type OrderError struct {
+	Line int64
+	Msg  string
+}
+
+func (e *OrderError) Error() string { return e.Msg }
 
 // Bytes is the memory the packer holds for genotypes.
 func (p *SegmentPacker) Bytes() int64 { return int64(len(p.pos)) * int64(len(p.cols)) }

@@ -223,6 +223,14 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 			if ctx.Err() != nil {
 				return nil, ctx.Err()
 			}
+			var oe *mating.OrderError
+			if errors.As(err, &oe) {
+				at := fmt.Sprintf("line %d", oe.Line)
+				if f := r.Format(); f == vcfscan.FormatBCF || f == vcfscan.FormatBCFPlain {
+					at = fmt.Sprintf("BCF record %d", oe.Line)
+				}
+				return nil, &InputError{File: cfg.Input, Msg: at + ": --segments: " + oe.Msg, Err: err}
+			}
 			return nil, &InputError{File: cfg.Input, Msg: "--segments: " + err.Error(), Err: err}
 		}
 		spk = nil

@@ -192,6 +192,15 @@ func TestBadInput(t *testing.T) {
 			c.SireLimitsFile = writeList(t, dir, "lim.txt", []string{"sire limit", ids[0] + " 3", ids[20] + " 2"})
 		}, `lim.txt:3: "` + ids[20] + `" is not a listed sire`},
 		{"plan on pedigree", func(c *Config, dir string) { c.PlanOn = PlanPedigree }, "needs --pedigree"},
+		{"segments on unsorted input", func(c *Config, dir string) {
+			vcf := "##fileformat=VCFv4.2\n#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT\tbuck\tdoe\n" +
+				"1\t200\t.\tA\tG\t.\tPASS\t.\tGT\t0/1\t0/0\n1\t100\t.\tA\tG\t.\tPASS\t.\tGT\t0/1\t1/1\n"
+			c.Input = filepath.Join(dir, "unsorted.vcf")
+			os.WriteFile(c.Input, []byte(vcf), 0o644)
+			c.SiresFile = writeList(t, dir, "s.txt", []string{"buck"})
+			c.DamsFile = writeList(t, dir, "d.txt", []string{"doe"})
+			c.Segments = true
+		}, "unsorted.vcf: line 4: --segments: position 100 after position 200"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			dir := t.TempDir()
