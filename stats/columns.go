@@ -76,7 +76,7 @@ var columns = func() []ColumnDoc {
 		{sm, "n_hom_alt", "homozygous-alternate calls"},
 		{sm, "n_missing", "missing or masked calls"},
 		{sm, "n_haploid", "haploid calls"},
-		{sm, "call_rate", "(sites_called + n_haploid) / kept sites: a haploid call counts as a call here, though only diploid calls enter the statistics"},
+		{sm, "call_rate", "sites_called plus n_haploid, over kept sites: a haploid call counts as a call here, though only diploid calls enter the statistics"},
 		{sm, "het_rate", "n_het / sites_called"},
 		{sm, "f_hom", "method-of-moments F (Li & Horvitz 1953, Am J Hum Genet 5:107): 1 minus the sample's heterozygous calls divided by the heterozygous calls Hardy-Weinberg predicts from the frequencies, both summed over polymorphic_sites_called; the prediction uses the sample-size corrected 2pq*2n/(2n-1)"},
 		{sm, "f_grm", "Yang et al. F-hat-I: mean of (x-2p)^2/(2p(1-p)) - 1, the GRM diagonal minus 1 (Yang, Lee, Goddard & Visscher 2011, Am J Hum Genet 88:76)"},

@@ -303,10 +303,12 @@ func (t *Totals) estimates(i int) sampleEstimates {
 	e.homShare, e.homShareHWE = nan, nan
 	if e.informative > 0 {
 		// f_hom, the method-of-moments F of Li & Horvitz (1953, Am J Hum
-		// Genet 5:107) summed over the sample's sites: with O homozygous
-		// calls, E expected homozygous calls and N sites, (O-E)/(N-E) is
-		// 1 - (heterozygous calls)/(expected heterozygous calls). The
-		// per-sample sum over many sites is common practice.
+		// Genet 5:107) summed over the sample's sites: 1 minus the
+		// heterozygous calls seen over those Hardy-Weinberg predicts.
+		// Written as the homozygous excess over its largest possible
+		// value, (hom seen - hom expected)/(sites - hom expected), the
+		// same number, computed this way since the first version (the
+		// per-sample sum over many sites is common practice).
 		e.fHom = ratio(float64(e.homInformative)-e.homExp, n-e.homExp)
 		e.homShare = float64(e.homInformative) / n
 		e.homShareHWE = e.homExp / n
