@@ -442,7 +442,7 @@ func FuzzParseRegion(f *testing.F) {
 	})
 }
 
-// FuzzReadRegions checks that the region file reader never panics and
+// FuzzReadRegions checks that the region list reader never panics and
 // accepts only valid regions, in both coordinate conventions.
 func FuzzReadRegions(f *testing.F) {
 	f.Add("chr1:10-20\n# c\nchr2:5\nchr3\n", false)

@@ -638,7 +638,7 @@ func TestMergeReport(t *testing.T) {
 }
 
 // TestPlanManyContigs: a shard of more than plan.MaxRegionArgs whole contigs
-// reads them from a regions file; scanning the plan's shards that way
+// reads them from a region list (--region @FILE); scanning the plan's shards that way
 // merges to the single pass.
 func TestPlanManyContigs(t *testing.T) {
 	dir := t.TempDir()
