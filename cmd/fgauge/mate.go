@@ -22,7 +22,7 @@ func runMate(ctx context.Context, env *runEnv, args []string) error {
 	fs.StringVar(&c.SireLimitsFile, "sire-limits", "", "`FILE` of lines 'sire limit' overriding --sire-limit for those sires")
 	maxF := fs.String("max-progeny-f", "", "never use a pair whose progeny_f is above `X` (default: no ceiling)")
 	fs.StringVar(&c.PedigreeFile, "pedigree", "", "pedigree `FILE` (id sire dam [sex]) for coancestry_pedigree")
-	fs.StringVar(&c.PlanOn, "plan-on", mate.PlanGenomic, "what progeny_f is: genomic, pedigree or blend")
+	fs.StringVar(&c.PlanOn, "plan-on", mate.PlanGenomic, "what progeny_f is: genomic, pedigree, blend or segments")
 	fs.Float64Var(&c.BlendWeight, "blend-weight", 0.5, "weight `W` of the genomic coancestry in --plan-on blend")
 	fs.BoolVar(&c.Segments, "segments", false, "add coancestry_segments, the shared-segment coancestry (one pass over the sites per pair: for up to a few hundred thousand pairs)")
 	fs.Float64Var(&c.SegmentMinMB, "segment-min-mb", 3, "shortest shared stretch `MB` counted by --segments")

@@ -39,6 +39,9 @@ Measures (one row per pair in OUTDIR/pairs.tsv):
                        blend: w * genomic + (1 - w) * pedigree with
                        w = --blend-weight. The two measures have different
                        bases, so a blend is a pragmatic compromise.
+                       --plan-on segments (with --segments) plans on
+                       coancestry_segments: it avoids recent shared
+                       stretches only.
 
 Checked against simulated truth: in a simulated closed herd the genomic
 coancestry follows the realized coancestry (share of the genome identical by

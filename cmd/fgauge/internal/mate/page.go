@@ -113,6 +113,8 @@ func planOnText(ri *RunInfo) string {
 	switch ri.PlanOn {
 	case PlanPedigree:
 		return "pedigree coancestry"
+	case PlanSegments:
+		return "shared-segment coancestry"
 	case PlanBlend:
 		return fmt.Sprintf("a blend: %g x genomic + %g x pedigree coancestry", deref(ri.BlendWeight), 1-deref(ri.BlendWeight))
 	}

@@ -27,6 +27,9 @@ const (
 	// either: use it when genotypes miss recent relationships the pedigree
 	// records reliably (or the reverse) and say which weight was used.
 	PlanBlend = "blend"
+	// PlanSegments plans on coancestry_segments (needs Segments): recent
+	// shared stretches only, on the probability scale.
+	PlanSegments = "segments"
 )
 
 // Config is one `fgauge mate` run.
@@ -49,7 +52,7 @@ type Config struct {
 	// Pedigree is used when PedigreeFile is empty (callers such as the
 	// demo that hold the pedigree in memory).
 	Pedigree    *pedigree.Pedigree
-	PlanOn      string  // PlanGenomic (default), PlanPedigree or PlanBlend
+	PlanOn      string  // PlanGenomic (default), PlanPedigree, PlanBlend or PlanSegments
 	BlendWeight float64 // weight of the genomic coancestry in PlanBlend (0..1)
 
 	// Segments adds coancestry_segments (mating.SharedSegments), with
@@ -244,7 +247,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 			fmt.Fprintf(cfg.Stderr, "fgauge mate: warning: %d candidates are not in the pedigree and count as unrelated founders there (listed in run.json)\n", len(absent))
 		}
 	}
-	res.ProgenyF = progenyF(cfg, gen, res.Pedigree)
+	res.ProgenyF = progenyF(cfg, gen, res.Pedigree, res.Segments)
 
 	ao := mating.AllocOptions{Limits: limits, Ceiling: cfg.MaxProgenyF, SireIDs: sires.ids, DamIDs: dams.ids}
 	alloc, err := mating.Allocate(ctx, res.ProgenyF, ao)
@@ -347,8 +350,12 @@ func (c *Config) check() error {
 		if c.PedigreeFile == "" && c.Pedigree == nil {
 			return inputErrorf("", 0, "mate: --plan-on %s needs --pedigree", c.PlanOn)
 		}
+	case PlanSegments:
+		if !c.Segments {
+			return inputErrorf("", 0, "mate: --plan-on segments needs --segments")
+		}
 	default:
-		return inputErrorf("", 0, "mate: --plan-on %q: want genomic, pedigree or blend", c.PlanOn)
+		return inputErrorf("", 0, "mate: --plan-on %q: want genomic, pedigree, blend or segments", c.PlanOn)
 	}
 	if !(c.BlendWeight >= 0 && c.BlendWeight <= 1) {
 		return inputErrorf("", 0, "mate: --blend-weight %v: want a number in [0, 1]", c.BlendWeight)
@@ -422,10 +429,12 @@ func columns(l *idList, col map[string]int, input string) ([]int, error) {
 }
 
 // progenyF builds the planning values.
-func progenyF(cfg Config, gen, ped *mating.Matrix) *mating.Matrix {
+func progenyF(cfg Config, gen, ped, seg *mating.Matrix) *mating.Matrix {
 	switch cfg.PlanOn {
 	case PlanPedigree:
 		return ped
+	case PlanSegments:
+		return seg
 	case PlanBlend:
 		m := &mating.Matrix{Sires: gen.Sires, Dams: gen.Dams, V: make([]float64, len(gen.V))}
 		w := cfg.BlendWeight

@@ -192,6 +192,7 @@ func TestBadInput(t *testing.T) {
 			c.SireLimitsFile = writeList(t, dir, "lim.txt", []string{"sire limit", ids[0] + " 3", ids[20] + " 2"})
 		}, `lim.txt:3: "` + ids[20] + `" is not a listed sire`},
 		{"plan on pedigree", func(c *Config, dir string) { c.PlanOn = PlanPedigree }, "needs --pedigree"},
+		{"plan on segments", func(c *Config, dir string) { c.PlanOn = PlanSegments }, "needs --segments"},
 		{"segments on unsorted input", func(c *Config, dir string) {
 			vcf := "##fileformat=VCFv4.2\n#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT\tbuck\tdoe\n" +
 				"1\t200\t.\tA\tG\t.\tPASS\t.\tGT\t0/1\t0/0\n1\t100\t.\tA\tG\t.\tPASS\t.\tGT\t0/1\t1/1\n"

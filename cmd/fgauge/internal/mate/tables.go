@@ -23,7 +23,7 @@ func ColumnDocs() []ColumnDoc {
 		{p, colGenomic, "genomic coancestry: VanRaden (2008, J Dairy Sci 91:4414) method-1 G/2 with missing calls mean-imputed; base population: the one whose allele frequencies were used (all samples of the input by default), whose average is 0, so values can be negative"},
 		{p, colPedigree, "pedigree coancestry (kinship) by Meuwissen & Luo (1992, Genet Sel Evol 24:305); base population: the pedigree's founders, unrelated and not inbred; 0 for an animal not in the pedigree; NA without --pedigree"},
 		{p, colSegments, segmentsDoc},
-		{p, colProgenyF, "expected inbreeding of a progeny of the pair, the value the plan minimises: coancestry_genomic (--plan-on genomic), coancestry_pedigree (pedigree) or w*genomic + (1-w)*pedigree (blend, w = --blend-weight)"},
+		{p, colProgenyF, "expected inbreeding of a progeny of the pair, the value the plan minimises: coancestry_genomic (--plan-on genomic), coancestry_pedigree (pedigree) w*genomic + (1-w)*pedigree (blend, w = --blend-weight) or coancestry_segments (segments)"},
 		{p, "allowed", "1 when progeny_f is at most --max-progeny-f (or no ceiling was given), else 0: the pair is never used"},
 		{p, "chosen", "1 when the plan uses the pair, else 0"},
 		{a, "dam", "dam id, in --dams order; every dam exactly once"},

@@ -126,5 +126,23 @@ func TestSimulatedTruth(t *testing.T) {
 	if !(rS > rP) || rS < 0.95 || math.Abs(mS-mR)/n > 0.02 || mae/n > 0.02 {
 		t.Errorf("segments: correlation %.3f (pedigree %.3f), mean %.4f against %.4f, mean absolute difference %.4f", rS, rP, mS/n, mR/n, mae/n)
 	}
+	// Planned on coancestry_segments: progeny_f is that column, and the
+	// plan's mean of it is no higher than the genomic plan's (both are
+	// optimal for their own measure under the same limits).
+	seg, err := Run(context.Background(), Config{
+		Input: vcf, Sires: ids(si), Dams: ids(di), OutDir: filepath.Join(dir, "out_segments"),
+		MaxProgenyF: math.NaN(), Threads: 2, Version: "test", Segments: true, PlanOn: PlanSegments,
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k := range seg.ProgenyF.V {
+		if seg.ProgenyF.V[k] != seg.Segments.V[k] || seg.Segments.V[k] != res.Segments.V[k] {
+			t.Fatalf("pair %d: progeny_f %v, coancestry_segments %v (first run %v)", k, seg.ProgenyF.V[k], seg.Segments.V[k], res.Segments.V[k])
+		}
+	}
+	if a, b := *seg.Info.Plan.MeanCoancestrySegments, *res.Info.Plan.MeanCoancestrySegments; !(a <= b+1e-12) || a != seg.Info.Plan.MeanProgenyF {
+		t.Errorf("plan on segments: mean %v, genomic plan's segment mean %v, progeny_f mean %v", a, b, seg.Info.Plan.MeanProgenyF)
+	}
 	os.RemoveAll(dir)
 }
