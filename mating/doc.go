@@ -3,7 +3,7 @@
 // matings, which is the expected inbreeding coefficient (F) of their
 // progeny.
 //
-// Three pieces, each usable on its own:
+// Four pieces, each usable on its own:
 //
 //   - Genomic coancestry (Packer, Genomic): VanRaden (2008, Journal of Dairy
 //     Science 91:4414-4423) method-1 genomic relationship divided by two,
@@ -16,6 +16,10 @@
 //   - Pedigree coancestry (PedigreeCoancestry): the kinship of Meuwissen &
 //     Luo (1992) as computed by stats/pedigree; its base population is the
 //     pedigree's founders, taken as unrelated and not inbred.
+//   - Shared-segment coancestry (SegmentPacker, SharedSegments): the
+//     coancestry counted over long stretches without opposite homozygotes,
+//     on the probability scale; its base population is the recent
+//     ancestry that leaves such stretches (see SegmentOptions).
 //   - Optimal allocation (Allocate): every dam exactly once, no sire above
 //     its limit, pairs above a ceiling never used, minimum total (hence
 //     mean) cost, solved exactly as a transportation problem by successive
