@@ -8,13 +8,28 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"runtime/pprof"
 
 	"fgauge/vcfscan"
 )
 
 func main() {
 	threads := flag.Int("threads", 0, "worker threads (0: all cores)")
+	cpuProfile := flag.String("cpu-profile", "", "write a Go CPU profile to this file")
 	flag.Parse()
+	if *cpuProfile != "" {
+		f, err := os.Create(*cpuProfile)
+		if err != nil {
+			fmt.Fprintln(os.Stderr, err)
+			os.Exit(2)
+		}
+		if err := pprof.StartCPUProfile(f); err != nil {
+			fmt.Fprintln(os.Stderr, err)
+			os.Exit(2)
+		}
+		defer f.Close()
+		defer pprof.StopCPUProfile()
+	}
 	rd, err := vcfscan.Open(flag.Arg(0), vcfscan.Options{Threads: *threads})
 	if err != nil {
 		fmt.Fprintln(os.Stderr, err)
@@ -30,6 +45,7 @@ func main() {
 		}
 		if err != nil {
 			fmt.Fprintln(os.Stderr, err)
+			pprof.StopCPUProfile()
 			os.Exit(2)
 		}
 		for _, g := range b.GT {
