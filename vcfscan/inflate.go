@@ -64,6 +64,28 @@ var (
 	clenOrder = [19]uint8{16, 17, 18, 0, 8, 7, 9, 6, 10, 5, 11, 4, 12, 3, 13, 2, 14, 1, 15}
 )
 
+// Table entries of every symbol, without the code length.
+var (
+	litEntries = func() (t [numLitCodes]uint32) {
+		for i := range t {
+			t[i] = litEntry(i)
+		}
+		return t
+	}()
+	distEntries = func() (t [numDistCodes]uint32) {
+		for i := range t {
+			t[i] = distEntry(i)
+		}
+		return t
+	}()
+	clenEntries = func() (t [19]uint32) {
+		for i := range t {
+			t[i] = uint32(i) << 16
+		}
+		return t
+	}()
+)
+
 func litEntry(sym int) uint32 {
 	switch {
 	case sym < 256:
@@ -112,31 +134,37 @@ var fixedLit, fixedDist = func() (*[litTabSize]uint32, *[distTabSize]uint32) {
 	for i := range d {
 		d[i] = 5
 	}
-	if !buildTable(f.lit[:], l[:], litBits, litEntry) || !buildTable(f.dist[:], d[:], distBits, distEntry) {
+	if !buildTable(f.lit[:], l[:], litBits, litEntries[:]) || !buildTable(f.dist[:], d[:], distBits, distEntries[:]) {
 		panic("vcfscan: fixed Huffman tables do not build")
 	}
 	return &f.lit, &f.dist
 }()
 
 // buildTable fills table for the canonical Huffman code with the given
-// code lengths (RFC 1951 section 3.2.2). It reports false for a code that
+// code lengths (RFC 1951 section 3.2.2); entries[sym] is the entry of a
+// symbol without its length. It reports false for a code that
 // compress/flate rejects: over-subscribed, or incomplete unless it is
 // empty or a single code of length 1 (the unused bit patterns then decode
 // as invalid).
-func buildTable(table []uint32, lens []uint8, first uint, entry func(int) uint32) bool {
+//
+// Codes up to the first-level width are written in canonical order, one
+// length at a time: the table for codes up to length l is its first 2^l
+// entries, and doubling it with one copy replicates every entry for the
+// next length, so each code is stored once instead of once per unused
+// high bit pattern.
+func buildTable(table []uint32, lens []uint8, first uint, entries []uint32) bool {
 	var count [16]int
 	maxLen := 0
 	for _, l := range lens {
-		count[l]++
-		if int(l) > maxLen {
-			maxLen = int(l)
-		}
+		count[l&15]++
+		maxLen = max(maxLen, int(l))
 	}
 	count[0] = 0
 	kraft := 0
 	for l := 1; l <= 15; l++ {
 		kraft += count[l] << (15 - l)
 	}
+	table = table[:len(table):len(table)]
 	if kraft != 1<<15 {
 		if kraft > 1<<15 {
 			return false
@@ -145,68 +173,67 @@ func buildTable(table []uint32, lens []uint8, first uint, entry func(int) uint32
 			return false
 		}
 		// Empty or a single one-bit code: every pattern starts invalid.
-		for i := 0; i < 1<<first; i++ {
+		for i := range table[:1<<first] {
 			table[i] = entSpecial | entInvalid | uint32(first)
 		}
 	}
-	// First code of each length (RFC 1951 section 3.2.2, step 2).
-	var next [16]int
-	code := 0
+	// Symbols in canonical order: by length, then by value.
+	var start [17]int
 	for l := 1; l <= 15; l++ {
-		code = (code + count[l-1]) << 1
-		next[l] = code
+		start[l+1] = start[l] + count[l]
 	}
-	// Short codes: replicate each entry over the unused high bits.
+	var order [numLitCodes]uint16
 	for sym, l := range lens {
-		if l == 0 || uint(l) > first {
-			continue
+		if l != 0 {
+			order[start[l]] = uint16(sym)
+			start[l]++
 		}
-		c := next[l]
-		next[l]++
-		rev := int(bits.Reverse16(uint16(c)) >> (16 - l))
-		e := entry(sym) | uint32(l)
-		for i := rev; i < 1<<first; i += 1 << l {
-			table[i] = e
+	}
+	// start[l] is now the end of length l in order.
+	k, code := 0, 0
+	short := min(int(first), maxLen)
+	for l := 1; l <= int(first); l++ {
+		for ; k < start[l]; k++ {
+			sym := order[k]
+			rev := int(bits.Reverse16(uint16(code)) >> (16 - l))
+			table[rev&(1<<first-1)] = entries[sym] | uint32(l)
+			code++
+		}
+		code <<= 1
+		if l < short {
+			copy(table[1<<l:2<<l], table[:1<<l])
 		}
 	}
 	if maxLen <= int(first) {
+		for w := 1 << short; w < 1<<first; w <<= 1 {
+			copy(table[w:2*w], table[:w])
+		}
 		return true
 	}
 	// Long codes, in canonical order, so that codes sharing their first
 	// `first` bits are consecutive and share one second-level table.
 	subBits := uint(maxLen) - first
-	var order [numLitCodes]uint16
-	var start [17]int
-	for l := int(first) + 1; l <= 15; l++ {
-		start[l+1] = start[l] + count[l]
-	}
-	for sym, l := range lens {
-		if uint(l) > first {
-			order[start[l]] = uint16(sym)
-			start[l]++
-		}
-	}
-	n := start[15]
 	prefix, off := -1, 1<<first
-	for _, s := range order[:n] {
-		sym := int(s)
-		l := uint(lens[sym])
-		c := next[l]
-		next[l]++
-		rev := int(bits.Reverse16(uint16(c)) >> (16 - l))
-		p := rev & (1<<first - 1)
-		if p != prefix {
-			if prefix >= 0 {
-				off += 1 << subBits
+	for l := int(first) + 1; l <= maxLen; l++ {
+		for ; k < start[l]; k++ {
+			sym := order[k]
+			rev := int(bits.Reverse16(uint16(code)) >> (16 - l))
+			code++
+			p := rev & (1<<first - 1)
+			if p != prefix {
+				if prefix >= 0 {
+					off += 1 << subBits
+				}
+				prefix = p
+				table[p] = entSpecial | entLink | uint32(subBits)<<4 | uint32(off)<<16 | uint32(first)
 			}
-			prefix = p
-			table[p] = entSpecial | entLink | uint32(subBits)<<4 | uint32(off)<<16 | uint32(first)
+			rem := uint(l) - first
+			e := entries[sym] | uint32(rem)
+			for i := rev >> first; i < 1<<subBits; i += 1 << rem {
+				table[off+i] = e
+			}
 		}
-		rem := l - first
-		e := entry(sym) | uint32(rem)
-		for i := rev >> first; i < 1<<subBits; i += 1 << rem {
-			table[off+i] = e
-		}
+		code <<= 1
 	}
 	return true
 }
@@ -345,7 +372,7 @@ func (f *inflater) readTables(src []byte, pbb *uint64, pnb *uint, pin *int) erro
 		bb >>= 3
 		nb -= 3
 	}
-	if !buildTable(f.clen[:], cl[:], 7, func(sym int) uint32 { return uint32(sym) << 16 }) {
+	if !buildTable(f.clen[:], cl[:], 7, clenEntries[:]) {
 		return errInflateCorrupt
 	}
 	lens := f.lens[:nlit+ndist]
@@ -396,8 +423,8 @@ func (f *inflater) readTables(src []byte, pbb *uint64, pnb *uint, pin *int) erro
 	if in*8-int(nb) > len(src)*8 {
 		return errInflateTruncated
 	}
-	if !buildTable(f.lit[:], lens[:nlit], litBits, litEntry) ||
-		!buildTable(f.dist[:], lens[nlit:], distBits, distEntry) {
+	if !buildTable(f.lit[:], lens[:nlit], litBits, litEntries[:]) ||
+		!buildTable(f.dist[:], lens[nlit:], distBits, distEntries[:]) {
 		return errInflateCorrupt
 	}
 	return nil
