@@ -6,15 +6,15 @@
 //
 // The source VCF text comes on standard input (bench/run decompresses
 // testdata/cohort189.vcf.gz, 189 samples and 115 records). The output has
-// -samples columns: copy c of the source's samples (c = 0, 1, ...) is a
-// fixed shuffle of them, cut to the requested number. Its -sites records
-// take REF, ALT, QUAL and FILTER from the source rows in turn; every copy
-// reads its genotypes from the source rows in the same order but with its
-// own offset, redrawn every time the rows wrap around, so that a sample is
-// always one source individual, site counts vary from site to site and the
-// text does not repeat within the compressor's window. Only the GT text
-// (the part before the first ':') is kept, as in an array cohort. The
-// data are for timing only.
+// -samples columns in groups of -group: each group is a random draw of
+// that many source individuals, so a sample is always one source
+// individual. The -sites records take REF, ALT, QUAL and FILTER from the
+// source rows in turn; every group reads its genotypes from the source
+// rows in the same order but with its own offset, redrawn every time the
+// rows wrap around, so that site counts (sums over the groups) vary from
+// site to site at any cohort size and the text does not repeat within the
+// compressor's window. Only the GT text (the part before the first ':')
+// is kept, as in an array cohort. The data are for timing only.
 package main
 
 import (
@@ -38,6 +38,7 @@ func main() {
 	sites := flag.Int("sites", 100000, "number of records")
 	chroms := flag.Int("chroms", 2, "number of chromosomes the records are spread over")
 	spacing := flag.Int("spacing", 1000, "bp between records")
+	group := flag.Int("group", 20, "samples per group of source individuals sharing a row offset")
 	seed := flag.Uint64("seed", 1, "random seed")
 	flag.Parse()
 	rows, nSrc, err := readSource(os.Stdin)
@@ -46,12 +47,13 @@ func main() {
 		os.Exit(2)
 	}
 	rng := rand.New(rand.NewPCG(*seed, 11))
-	nCopies := (*samples + nSrc - 1) / nSrc
-	perm := make([][]int, nCopies)
+	g := min(max(*group, 1), nSrc)
+	nGroups := (*samples + g - 1) / g
+	perm := make([][]int, nGroups)
 	for c := range perm {
-		perm[c] = rng.Perm(nSrc)
+		perm[c] = rng.Perm(nSrc)[:g]
 	}
-	off := make([]int, nCopies)
+	off := make([]int, nGroups)
 
 	w := bufio.NewWriterSize(os.Stdout, 1<<20)
 	defer w.Flush()
@@ -90,8 +92,8 @@ func main() {
 		line = append(line, src.filter...)
 		line = append(line, "\t.\tGT"...)
 		for s := 0; s < *samples; s++ {
-			c := s / nSrc
-			gt := rows[(r+off[c])%len(rows)].gt[perm[c][s%nSrc]]
+			c := s / g
+			gt := rows[(r+off[c])%len(rows)].gt[perm[c][s%g]]
 			line = append(line, '\t')
 			line = append(line, gt...)
 		}
