@@ -61,6 +61,7 @@ func (r *Reader) chunkLoopDirect(z *bgzfReader, carry []byte) {
 					r.order <- b
 					return
 				}
+				carry = growCarry(carry, len(data), maxLine)
 				carry = append(carry, data...)
 				spare = buf
 				continue
@@ -82,4 +83,22 @@ func (r *Reader) chunkLoopDirect(z *bgzfReader, carry []byte) {
 		r.order <- b
 		r.work <- b
 	}
+}
+
+// growCarry makes room for n more bytes in carry as chunkLoop grows its
+// buffer: doubling, but stepping straight to the line limit when the next
+// doubling would pass it, so that a hostile line costs about 1.5 times the
+// limit at most. The caller has checked len(carry)+n <= maxLine.
+func growCarry(carry []byte, n, maxLine int) []byte {
+	need := len(carry) + n
+	if need <= cap(carry) {
+		return carry
+	}
+	nc := max(2*cap(carry), need)
+	if 2*nc > maxLine+1 {
+		nc = max(need, maxLine+1)
+	}
+	nb := make([]byte, len(carry), nc)
+	copy(nb, carry)
+	return nb
 }
