@@ -50,7 +50,8 @@ type handSite struct {
 // (d) 3 het + 1 sure 0/0 at p = 1/2: U(0) = -3 + 1 < 0, so F = 0.
 // (e) 4 sure 0/0 at p = 1/2: U(1) = 4 (r-1)/r = 2 > 0, so F = 1.
 // (f) row (a) plus calls without information (no reads, haploid, sites
-// with p = 0): unchanged. (g) nothing informative: NaN.
+// with p = 0): unchanged. (g) nothing informative: NaN. (h) row (a) with
+// unnormalised PL (a constant added to a triple): unchanged.
 func TestFLikHandDerived(t *testing.T) {
 	for _, tc := range []struct {
 		name   string
@@ -65,6 +66,7 @@ func TestFLikHandDerived(t *testing.T) {
 		{"e", []handSite{{0.5, plHomRef, 4}}, 1, math.NaN(), 4},
 		{"f", []handSite{{0.5, plHet, 1}, {0.5, plNone, 5}, {0.5, plHapl, 2}, {0.5, plHomRef, 3}, {0, plHomRef, 9}}, 0.5, math.Sqrt(3.0 / 16), 4},
 		{"g", []handSite{{0.5, plNone, 5}, {1, plHet, 2}}, math.NaN(), math.NaN(), 0},
+		{"h", []handSite{{0.5, [3]uint16{5010, 10, 5010}, 1}, {0.5, [3]uint16{7, 5007, 5007}, 3}}, 0.5, math.Sqrt(3.0 / 16), 4},
 	} {
 		var sum FLikSummary
 		var ratios []float64
