@@ -51,3 +51,38 @@ func ExampleDepthAcc() {
 		mean, src, stats.LowDepth(mean), stats.HetOneAlleleRate(mean))
 	// Output: mean depth 2.50 from dp, low: true, heterozygotes read as homozygous: 0.45
 }
+
+// How a scan uses LikAcc: one per worker, AddRecord per record that
+// carries likelihoods, Merge of the workers' (or shards') states, then
+// per sample Estimate and Mean after the pass.
+func ExampleLikAcc() {
+	// Two invented goats, four records; PL per goat: 0/0, 0/1, 1/1.
+	records := [][]uint16{
+		{5000, 0, 5000, 0, 5000, 5000},
+		{0, 5000, 5000, 5000, 0, 5000},
+		{0, 5000, 5000, 0, 5000, 5000},
+		{0, 5000, 5000, 5000, 0, 5000},
+	}
+	workers := []*stats.LikAcc{stats.NewLikAcc(2), stats.NewLikAcc(2)}
+	for i, pl := range records {
+		fr := workers[i%2].AddRecord(pl, nil, nil) // frequencies by EM
+		fmt.Printf("record %d: alt freq %.2f\n", i, fr.AltFreq)
+	}
+	total := stats.NewLikAcc(2)
+	for _, w := range workers {
+		if err := total.Merge(w); err != nil {
+			panic(err)
+		}
+	}
+	for i := range total.FLik {
+		e := total.FLik[i].Estimate()
+		fmt.Printf("goat %d: f_lik %.3f from %d sites\n", i, e.F, e.Sites)
+	}
+	// Output:
+	// record 0: alt freq 0.25
+	// record 1: alt freq 0.25
+	// record 2: alt freq 0.00
+	// record 3: alt freq 0.25
+	// goat 0: f_lik 0.000 from 3 sites
+	// goat 1: f_lik 0.000 from 3 sites
+}
