@@ -140,8 +140,9 @@ func near(a, b, tol float64) bool {
 // standard error within 1% (the curvature is approximated less well).
 func TestFLikSummaryVersusExact(t *testing.T) {
 	var worst float64
-	for k, depth := range []float64{0.5, 1, 2, 3, 5, 20} {
-		c := simulateLowcov(uint64(100+k), 2000, depth, 0.01)
+	for k, depth := range []float64{0.5, 1, 2, 3, 5, 20, 2, 5, 30} {
+		// The last three: a neutral spectrum, mostly rare alleles (large r).
+		c := simulateLowcovSpectrum(uint64(100+k), 2000, depth, 0.01, k >= 6)
 		lik, _ := c.likF()
 		for i, rs := range c.ratios() {
 			ex := FLikExact(rs)
@@ -372,5 +373,26 @@ func TestHetOneAlleleRate(t *testing.T) {
 func TestFLikSummarySize(t *testing.T) {
 	if got := fmt.Sprint(flikMoments*8 + 16); got != "440" {
 		t.Errorf("FLikSummary is %s bytes; update the doc comments", got)
+	}
+}
+
+// TestFLikSummaryLargeRatios: sites with very large r (homozygous for an
+// allele at frequency 1e-4 to 1.2e-7, as an external panel can give) are
+// in the summary's upper bins; the estimate stays within 1e-4 of the exact
+// one when they are added to simulated samples (depth 3, truth we control).
+func TestFLikSummaryLargeRatios(t *testing.T) {
+	c := simulateLowcov(3, 2000, 3, 0.01)
+	rs := c.ratios()
+	for _, extra := range [][]float64{{1e4}, {1e5}, {1e6}, {1e4, 3e5, 8e6}, {60, 200, 2000, 8000}} {
+		for i := 0; i < 40; i++ {
+			r := append(append([]float64{}, rs[i]...), extra...)
+			var s FLikSummary
+			for _, v := range r {
+				s.AddRatio(v)
+			}
+			if a, b := s.Estimate(), FLikExact(r); math.Abs(a.F-b.F) > 1e-4 {
+				t.Errorf("sample %d with ratios %v: summary %.8f, exact %.8f", i, extra, a.F, b.F)
+			}
+		}
 	}
 }

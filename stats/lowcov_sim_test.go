@@ -65,6 +65,13 @@ func goatPedigree() (parents [][2]int, fped []float64) {
 // alleles from a U-shaped spectrum with minor frequency >= 0.05) and
 // observes them at the given mean depth and read error.
 func simulateLowcov(seed uint64, nSites int, depth, readErr float64) *lowcovCohort {
+	return simulateLowcovSpectrum(seed, nSites, depth, readErr, false)
+}
+
+// simulateLowcovSpectrum is simulateLowcov with, when rare is set, founder
+// allele frequencies from a neutral 1/x spectrum on [0.001, 0.5] (most
+// sites rare, many fixed or singletons in the cohort).
+func simulateLowcovSpectrum(seed uint64, nSites int, depth, readErr float64, rare bool) *lowcovCohort {
 	rng := rand.New(rand.NewPCG(seed, 19))
 	parents, fped := goatPedigree()
 	n := len(parents)
@@ -72,6 +79,9 @@ func simulateLowcov(seed uint64, nSites int, depth, readErr float64) *lowcovCoho
 	hap := make([][2]uint8, n)
 	for s := 0; s < nSites; s++ {
 		q := 0.05 + 0.9*betaHalf(rng)
+		if rare {
+			q = 0.001 * math.Pow(500, rng.Float64()) // density proportional to 1/q
+		}
 		for i, p := range parents {
 			if p[0] < 0 {
 				hap[i] = [2]uint8{b2u(rng.Float64() < q), b2u(rng.Float64() < q)}
