@@ -102,6 +102,7 @@ type Worker struct {
 	chromBytes []byte
 	lastBlock  BlockKey
 	block      *BlockAcc
+	lik        likWorker
 }
 
 // NewWorker returns a Worker for cfg; contigName maps vcfscan chromosome
@@ -113,6 +114,7 @@ func NewWorker(cfg *Config, contigName func(id int) string) *Worker {
 	if cfg.PopOf == nil {
 		w.nPop = 0
 	}
+	w.initLik()
 	w.tabOf = w.t.GroupOf
 	nt := len(w.t.Base)
 	w.tabs = make([]siteTab, nt)
@@ -131,8 +133,15 @@ func NewWorker(cfg *Config, contigName func(id int) string) *Worker {
 }
 
 // Totals returns the worker's accumulated state (not a copy: stop calling
-// ProcessBatch before using it).
-func (w *Worker) Totals() *Totals { return w.t }
+// ProcessBatch before using it). Its likelihood state (Lik) is the
+// worker's own unless ShareLikelihoods was called: then the caller puts
+// the shared state in the merged totals.
+func (w *Worker) Totals() *Totals {
+	if w.lik.private {
+		w.t.Lik = w.lik.shared.Acc()
+	}
+	return w.t
+}
 
 // ProcessBatch computes the statistics of every record of b in order. For
 // each record it appends its sites.tsv row to sites and its
@@ -143,7 +152,9 @@ func (w *Worker) Totals() *Totals { return w.t }
 // room for len(b.Records) values.
 func (w *Worker) ProcessBatch(b *vcfscan.Batch, sites, popSites *bytes.Buffer, freqs []float64) {
 	for i := range b.Records {
-		freqs[i] = w.record(&b.Records[i], b.Calls(i), sites, popSites)
+		lf := w.likSite(b, i)
+		freqs[i] = w.record(&b.Records[i], b.Calls(i), lf, sites, popSites)
+		w.likAdd(b, i, freqs[i])
 	}
 }
 
@@ -155,7 +166,7 @@ func (w *Worker) chrom(id int) {
 	}
 }
 
-func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSites *bytes.Buffer) float64 {
+func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, lf SiteFreq, sites, popSites *bytes.Buffer) float64 {
 	t := w.t
 	cfg := w.cfg
 	w.chrom(rec.ChromID)
@@ -189,6 +200,9 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 
 	// Site statistics and row.
 	ho, he, fsite, hwe := siteStats(n0, n1, n2, w.cache)
+	if lf.Samples > 0 { // likelihoods: He (and so f_site) at their frequency
+		he, fsite = likSiteHet(ho, lf)
+	}
 	if hwe.Computed {
 		t.HWETally.add(&hwe)
 	}
@@ -196,7 +210,7 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 		t.HWETally.FSite.Add(fsite)
 		t.HWETally.FSiteN++
 	}
-	w.siteRow(sites, rec, &cnt, len(calls), cohortP, ho, he, fsite, &hwe)
+	w.siteRow(sites, rec, &cnt, len(calls), cohortP, ho, he, fsite, &hwe, lf.AltFreq)
 
 	// Populations: per-population rows and sums, WC components.
 	if w.nPop > 0 {
@@ -462,7 +476,7 @@ func (w *Worker) blockFor(pos int64) *BlockAcc {
 	return b
 }
 
-func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64, nSel int, p, ho, he, fsite float64, hwe *HWEResult) {
+func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64, nSel int, p, ho, he, fsite float64, hwe *HWEResult, pLik float64) {
 	if sites == nil {
 		return
 	}
@@ -499,6 +513,7 @@ func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64
 	b = appendFloat(b, hwe.MidP)
 	b = appendFloat(b, hwe.Deficit)
 	b = appendFloat(b, hwe.Excess)
+	b = appendFloat(b, pLik)
 	b = append(b, '\n')
 	sites.Write(b)
 	w.scratch = b
