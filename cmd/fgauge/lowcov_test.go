@@ -128,6 +128,15 @@ func TestLowDepthFLik(t *testing.T) {
 			if run.Depth == nil || !run.Depth.Low || run.Depth.Source != "dp" || math.Abs(run.Depth.Mean-depth) > 0.1 || run.Warnings["low_depth"] != 1 {
 				t.Errorf("run.json depth %+v, warnings %v: want low depth %g from dp and a low_depth warning", run.Depth, run.Warnings, depth)
 			}
+			if depth == 3 {
+				if code, _, errText := runCmdline(t, "report", outC); code != exitOK {
+					t.Fatalf("report: exit %d: %s", code, errText)
+				}
+				html, _ := os.ReadFile(filepath.Join(outC, "report.html"))
+				if !bytes.Contains(html, []byte(`id="low_depth"`)) || !bytes.Contains(html, []byte(`id="how_to_read_depth"`)) {
+					t.Error("report.html lacks the low-depth note or its explanation")
+				}
+			}
 			if b, _ := os.ReadFile(filepath.Join(outT, "run.json")); bytes.Contains(b, []byte(`"depth"`)) {
 				t.Errorf("GT-only scan has a depth section")
 			}

@@ -50,7 +50,7 @@ type Depth struct {
 	// HetOneAlleleRate is the expected share of heterozygous calls whose
 	// reads all show one allele at Mean (Poisson depth, no read error).
 	HetOneAlleleRate numfmt.JSONFloat `json:"het_one_allele_rate"`
-	Low              bool             `json:"low"`           // Mean below LowThreshold
+	Low              bool             `json:"low"`           // Mean above 0 and below LowThreshold
 	LowThreshold     float64          `json:"low_threshold"` // stats.LowDepthThreshold
 	// Mean is the mean depth per call pooled over samples, from Source:
 	// "dp" (FORMAT DP) or "pl" (implied by the likelihoods).
@@ -71,7 +71,7 @@ func depthSummary(t *stats.Totals) *Depth {
 	m, src := t.CohortDepth()
 	d := &Depth{FLikFreqs: t.LikFreqs.String(), LowThreshold: stats.LowDepthThreshold,
 		Mean: numfmt.JSONFloat(m), HetOneAlleleRate: numfmt.JSONFloat(stats.HetOneAlleleRate(m)),
-		Low: stats.LowDepth(m), RecordsWithLikelihoods: t.Lik.Records, RecordsNoFrequency: t.Lik.NoFreq}
+		Low: m > 0 && stats.LowDepth(m), RecordsWithLikelihoods: t.Lik.Records, RecordsNoFrequency: t.Lik.NoFreq}
 	if src != stats.DepthNone {
 		d.Source = src.String()
 	}
