@@ -6,7 +6,9 @@ import (
 	"errors"
 	"io"
 	"math"
+	"math/rand/v2"
 	"reflect"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -199,4 +201,48 @@ func TestDepthDecoding(t *testing.T) {
 	if want := []int32{7, -1, 3}; !reflect.DeepEqual(bb.DP, want) {
 		t.Errorf("BCF DP %v, want %v", bb.DP, want)
 	}
+}
+
+// TestPLTripleFastPath: the integer fast path of decodeLikelihoods stores
+// exactly what the general path stores, for random and edge-case values
+// (the general path is the reference: parseNum, then the checks).
+func TestPLTripleFastPath(t *testing.T) {
+	vals := []string{"0", "7", "007", "65534", "65535", "99999", "100000", "", ".", "-1", "2.5", "1e3", " 3"}
+	rng := rand.New(rand.NewPCG(1, 2))
+	for i := 0; i < 20000; i++ {
+		var parts []string
+		for k := 0; k < 2+rng.IntN(3); k++ {
+			if rng.IntN(3) == 0 {
+				parts = append(parts, vals[rng.IntN(len(vals))])
+			} else {
+				parts = append(parts, strconv.Itoa(rng.IntN(70000)))
+			}
+		}
+		s := []byte(strings.Join(parts, ","))
+		for _, code := range []Geno{HomRef, Heterozygous, HomAlt, Missing, HaploidAlt} {
+			var a, b [3]uint16
+			ma, pa := decodeLikelihoods(a[:], s, false, code)
+			mb, pb := decodeLikelihoodsGeneral(b[:], s, false, code)
+			if a != b || ma != mb || pa != pb {
+				t.Fatalf("%q code %d: fast %v %v %q, general %v %v %q", s, code, a, ma, pa, b, mb, pb)
+			}
+		}
+	}
+}
+
+// BenchmarkDecodeLikelihoods: the integer fast path against the general
+// path on typical PL values.
+func BenchmarkDecodeLikelihoods(b *testing.B) {
+	vals := [][]byte{[]byte("0,36,400"), []byte("120,0,110"), []byte("300,27,0"), []byte("0,3,6")}
+	var dst [3]uint16
+	b.Run("fast", func(b *testing.B) {
+		for i := 0; i < b.N; i++ {
+			decodeLikelihoods(dst[:], vals[i&3], false, HomRef)
+		}
+	})
+	b.Run("general", func(b *testing.B) {
+		for i := 0; i < b.N; i++ {
+			decodeLikelihoodsGeneral(dst[:], vals[i&3], false, HomRef)
+		}
+	})
 }

@@ -775,6 +775,46 @@ func (p *vcfParser) likelihoods(dst []uint16, s []byte, code Geno, lineNo int64,
 // at 65534: beyond phred 3240 the likelihood is below the smallest
 // float64, so the cap loses nothing.
 func decodeLikelihoods(dst []uint16, s []byte, gl bool, code Geno) (missing bool, problem string) {
+	if !gl && (code <= HomAlt || code == Missing) {
+		if v, ok := plTriple(s); ok {
+			dst[0], dst[1], dst[2] = v[0], v[1], v[2]
+			return false, ""
+		}
+	}
+	return decodeLikelihoodsGeneral(dst, s, gl, code)
+}
+
+// plTriple is the fast path of decodeLikelihoods: three PL integers of at
+// most five digits and at most maxPhred each (what callers write), which
+// the general path would store unchanged. ok is false for anything else.
+func plTriple(s []byte) (v [3]uint16, ok bool) {
+	k, digits := 0, 0
+	x := uint32(0)
+	for _, c := range s {
+		switch {
+		case c >= '0' && c <= '9':
+			x = x*10 + uint32(c-'0')
+			digits++
+			if digits > 5 {
+				return v, false
+			}
+		case c == ',' && digits > 0 && k < 2 && x <= maxPhred:
+			v[k] = uint16(x)
+			k++
+			x, digits = 0, 0
+		default:
+			return v, false
+		}
+	}
+	if k != 2 || digits == 0 || x > maxPhred {
+		return v, false
+	}
+	v[2] = uint16(x)
+	return v, true
+}
+
+// decodeLikelihoodsGeneral is decodeLikelihoods for any value.
+func decodeLikelihoodsGeneral(dst []uint16, s []byte, gl bool, code Geno) (missing bool, problem string) {
 	dst[0], dst[1], dst[2] = 0, 0, 0
 	if len(s) == 0 || (len(s) == 1 && s[0] == '.') {
 		return false, ""
