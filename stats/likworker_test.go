@@ -120,3 +120,54 @@ func TestWorkerLikelihoods(t *testing.T) {
 		t.Fatal("NoLikelihoods: likelihood state allocated")
 	}
 }
+
+// TestWorkerLikelihoodFreqSources: with --freqs-from-info frequencies
+// (auto) and with the hard-call cohort frequency (estimators), f_lik's
+// summaries are those of LikAcc.AddRecord at that frequency; with
+// "likelihood" they ignore the INFO value.
+func TestWorkerLikelihoodFreqSources(t *testing.T) {
+	c := simulateLowcov(9, 400, 3, 0.01)
+	batches := lowcovBatches(c, 50)
+	for _, b := range batches {
+		for i := range b.Records {
+			b.Records[i].InfoValue = 0.05 + 0.9*float64(b.Records[i].Pos%17)/17
+		}
+	}
+	names := lowcovNames(c.nSamples)
+	groupOf := make([]int32, c.nSamples)
+	cases := []struct {
+		name string
+		cfg  Config
+		freq func(site int) float64
+	}{
+		{"info_auto", Config{Samples: names, Freqs: FreqInfo}, func(s int) float64 { return 0.05 + 0.9*float64((s+1)%17)/17 }},
+		{"info_likelihood", Config{Samples: names, Freqs: FreqInfo, LikFreqs: LikFreqEM}, nil},
+		{"cohort_estimators", Config{Samples: names, LikFreqs: LikFreqEstimators}, func(s int) float64 {
+			var alt, n float64
+			for _, g := range c.calls[s] {
+				if g <= vcfscan.HomAlt {
+					alt += float64(g)
+					n++
+				}
+			}
+			return alt / (2 * n)
+		}},
+	}
+	for _, tc := range cases {
+		want := NewLikAcc(c.nSamples)
+		for s := range c.pl {
+			if tc.freq == nil {
+				want.AddRecord(c.pl[s], nil, nil)
+			} else {
+				want.AddRecord(c.pl[s], groupOf, []float64{tc.freq(s)})
+			}
+		}
+		w := NewWorker(&tc.cfg, func(int) string { return "1" })
+		for _, b := range batches {
+			w.ProcessBatch(b, nil, nil, make([]float64, len(b.Records)))
+		}
+		if got := w.Totals().Lik; got == nil || !reflect.DeepEqual(got.FLik, want.FLik) {
+			t.Errorf("%s: f_lik summaries differ from LikAcc at the chosen frequency", tc.name)
+		}
+	}
+}

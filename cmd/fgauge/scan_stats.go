@@ -72,7 +72,7 @@ func addStatsFlags(fs *flag.FlagSet) *statsFlags {
 	fs.Float64Var(&f.minCallRate, "min-call-rate", 0.9, "flag samples whose call rate is below this (low_call_rate)")
 	fs.Float64Var(&f.blockMB, "jackknife-block-mb", 5, "width in Mb of the genomic windows used as jackknife blocks for F-statistic standard errors")
 	fs.StringVar(&f.likFreqs, "f-lik-freqs", "auto", "site frequencies of f_lik: auto, likelihood or estimators (see Low depth below)")
-	fs.BoolVar(&f.noLik, "no-likelihood-f", false, "ignore PL/GL and DP: no f_lik, alt_freq_lik or depth_mean (hard-call He and f_site)")
+	fs.BoolVar(&f.noLik, "no-likelihood-f", false, "ignore PL/GL and DP for the statistics: no f_lik, alt_freq_lik or depth_mean, hard-call He and f_site (the ROH HMM still uses PL)")
 	return f
 }
 
