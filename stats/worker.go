@@ -103,6 +103,7 @@ type Worker struct {
 	chromBytes []byte
 	lastBlock  BlockKey
 	block      *BlockAcc
+	lik        likWorker
 }
 
 // NewWorker returns a Worker for cfg; contigName maps vcfscan chromosome
@@ -115,6 +116,7 @@ func NewWorker(cfg *Config, contigName func(id int) string) *Worker {
 	if cfg.PopOf == nil {
 		w.nPop = 0
 	}
+	w.initLik()
 	w.tabOf = w.t.GroupOf
 	nt := len(w.t.Base)
 	w.tabs = make([]siteTab, nt)
@@ -133,8 +135,15 @@ func NewWorker(cfg *Config, contigName func(id int) string) *Worker {
 }
 
 // Totals returns the worker's accumulated state (not a copy: stop calling
-// ProcessBatch before using it).
-func (w *Worker) Totals() *Totals { return w.t }
+// ProcessBatch before using it). Its likelihood state (Lik) is the
+// worker's own unless ShareLikelihoods was called: then the caller puts
+// the shared state in the merged totals.
+func (w *Worker) Totals() *Totals {
+	if w.lik.private {
+		w.t.Lik = w.lik.shared.Acc()
+	}
+	return w.t
+}
 
 // ProcessBatch computes the statistics of every record of b in order. For
 // each record it appends its sites.tsv row to sites and its
@@ -145,7 +154,9 @@ func (w *Worker) Totals() *Totals { return w.t }
 // room for len(b.Records) values.
 func (w *Worker) ProcessBatch(b *vcfscan.Batch, sites, popSites *bytes.Buffer, freqs []float64) {
 	for i := range b.Records {
-		freqs[i] = w.record(&b.Records[i], b.Calls(i), sites, popSites)
+		lf := w.likSite(b, i)
+		freqs[i] = w.record(&b.Records[i], b.Calls(i), lf, sites, popSites)
+		w.likAdd(b, i, freqs[i])
 	}
 }
 
@@ -157,7 +168,7 @@ func (w *Worker) chrom(id int) {
 	}
 }
 
-func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSites *bytes.Buffer) float64 {
+func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, lf SiteFreq, sites, popSites *bytes.Buffer) float64 {
 	t := w.t
 	cfg := w.cfg
 	w.chrom(rec.ChromID)
@@ -189,16 +200,25 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 		cohortP = float64(n1+2*n2) / float64(2*nCalled)
 	}
 
-	// Site statistics and row (cached by counts, see siteCache).
+	// Site statistics and row (cached by counts, see siteCache). With
+	// likelihoods, He and so f_site are taken at the likelihood frequency
+	// (not a function of the counts, so not cached).
 	si := w.site(n0, n1, n2, cnt[vcfscan.HaploidRef]+cnt[vcfscan.HaploidAlt], len(calls))
 	if si.hwe.Computed {
 		t.HWETally.addBinned(&si.hwe, si.pBin, si.chiBin)
 	}
-	if !math.IsNaN(si.fsite) {
-		t.HWETally.FSite.AddSum(si.fsiteFixed)
+	he, fsite, fsiteFixed := si.he, si.fsite, si.fsiteFixed
+	if lf.Samples > 0 {
+		he, fsite = likSiteHet(si.ho, lf)
+		if !math.IsNaN(fsite) {
+			fsiteFixed = fixed(fsite)
+		}
+	}
+	if !math.IsNaN(fsite) {
+		t.HWETally.FSite.AddSum(fsiteFixed)
 		t.HWETally.FSiteN++
 	}
-	w.siteRow(sites, rec, &cnt, si)
+	w.siteRow(sites, rec, &cnt, si, lf, len(calls), cohortP, he, fsite)
 
 	// Populations: per-population rows and sums, WC components.
 	if w.nPop > 0 {
@@ -464,7 +484,7 @@ func (w *Worker) blockFor(pos int64) *BlockAcc {
 	return b
 }
 
-func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64, si *siteInfo) {
+func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64, si *siteInfo, lf SiteFreq, nSel int, p, he, fsite float64) {
 	if sites == nil {
 		return
 	}
@@ -483,14 +503,19 @@ func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64
 	haploid := cnt[vcfscan.HaploidRef] + cnt[vcfscan.HaploidAlt]
 	b = append(b, '\t')
 	b = strconv.AppendInt(b, haploid, 10)
-	b = append(b, w.sites.rows[si.rowOff:si.rowEnd]...)
+	if lf.Samples > 0 {
+		b = appendSiteFloats(b, cnt[vcfscan.HomRef]+cnt[vcfscan.Heterozygous]+cnt[vcfscan.HomAlt], haploid, nSel, p, si.ho, he, fsite, &si.hwe)
+	} else {
+		b = append(b, w.sites.rows[si.rowOff:si.rowEnd]...)
+	}
+	b = appendFloat(b, lf.AltFreq)
 	b = append(b, '\n')
 	sites.Write(b)
 	w.scratch = b
 }
 
 // appendSiteFloats appends the float columns of a sites.tsv row, from
-// alt_freq to hwe_p_more_het, each after a tab: all are functions of the
+// alt_freq to hwe_p_more_het (alt_freq_lik follows), each after a tab: all are functions of the
 // site's diploid counts (called of them), its haploid calls (call_rate
 // counts them as calls) and the number of selected samples nSel, so
 // siteCache keeps them formatted under that key.
