@@ -143,3 +143,12 @@ func ExampleHWEChiSq() {
 	fmt.Printf("p=%.4g\n", r.P)
 	// Output: p=0.004678
 }
+
+// Example of the X-chromosomal exact test: 40 females (9 AA, 18 AB,
+// 13 BB) and 30 males (11 A, 19 B). Values as printed by
+// testdata/tools/xhwe_exact.R (base R full enumeration) for these counts.
+func ExampleHWEExactX() {
+	r := stats.HWEExactX(9, 18, 13, 11, 19)
+	fmt.Printf("p=%.4f midp=%.4f deficit=%.4f excess=%.4f\n", r.P, r.MidP, r.Deficit, r.Excess)
+	// Output: p=0.5951 midp=0.5821 deficit=0.3437 excess=0.7649
+}
