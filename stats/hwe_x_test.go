@@ -133,3 +133,105 @@ func TestHWEExactXUndefined(t *testing.T) {
 		}
 	}
 }
+
+// xDefinition enumerates the whole outcome space of HWEExactX directly
+// from the closed form (log-gamma), an obviously-correct slow path.
+func xDefinition(fAA, fAB, fBB, mA, mB int64) (p, midp, low, high float64) {
+	nF, nM := fAA+fAB+fBB, mA+mB
+	nA := 2*fAA + fAB + mA
+	lf := func(x int64) float64 { v, _ := math.Lgamma(float64(x) + 1); return v }
+	logP := func(m, h int64) float64 {
+		hA := (nA - m - h) / 2
+		hB := nF - h - hA
+		return float64(h)*math.Ln2 - lf(hA) - lf(h) - lf(hB) - lf(m) - lf(nM-m)
+	}
+	lobs := logP(mA, fAB)
+	valid := func(m, h int64) bool {
+		k := nA - m - h
+		return k >= 0 && k%2 == 0 && nF-h-k/2 >= 0
+	}
+	lmax := lobs
+	for m := int64(0); m <= nM; m++ {
+		for h := int64(0); h <= 2*nF; h++ {
+			if valid(m, h) {
+				lmax = math.Max(lmax, logP(m, h))
+			}
+		}
+	}
+	var tot, two float64
+	for m := int64(0); m <= nM; m++ {
+		for h := int64(0); h <= 2*nF; h++ {
+			if !valid(m, h) {
+				continue
+			}
+			l := logP(m, h)
+			v := math.Exp(l - lmax)
+			tot += v
+			if l <= lobs+math.Log1p(1e-7) {
+				two += v
+			}
+			if h <= fAB {
+				low += v
+			}
+			if h >= fAB {
+				high += v
+			}
+		}
+	}
+	return two / tot, (two - 0.5*math.Exp(lobs-lmax)) / tot, low / tot, high / tot
+}
+
+// FuzzHWEExactX compares the walk with the full enumeration on small
+// tables (the R grid is the outside check; this explores more shapes).
+func FuzzHWEExactX(f *testing.F) {
+	f.Add(uint8(9), uint8(18), uint8(13), uint8(11), uint8(19))
+	f.Add(uint8(0), uint8(1), uint8(0), uint8(0), uint8(0))
+	f.Add(uint8(40), uint8(0), uint8(0), uint8(0), uint8(40))
+	f.Add(uint8(1), uint8(0), uint8(0), uint8(60), uint8(0))
+	f.Fuzz(func(t *testing.T, a, b, c, d, e uint8) {
+		fAA, fAB, fBB, mA, mB := int64(a%60), int64(b%60), int64(c%60), int64(d%60), int64(e%60)
+		got := HWEExactX(fAA, fAB, fBB, mA, mB)
+		nF := fAA + fAB + fBB
+		nA := 2*fAA + fAB + mA
+		if nF == 0 || nA == 0 || nA == 2*nF+mA+mB {
+			if got.Computed {
+				t.Fatalf("computed an undefined test: %+v", got)
+			}
+			return
+		}
+		p, midp, low, high := xDefinition(fAA, fAB, fBB, mA, mB)
+		for i, pr := range [][2]float64{{got.P, clamp01(p)}, {got.MidP, clamp01(midp)}, {got.Deficit, clamp01(low)}, {got.Excess, clamp01(high)}} {
+			if math.Abs(pr[0]-pr[1]) > 1e-9*pr[1]+1e-300 {
+				t.Fatalf("%v: value %d walk %.17g, enumeration %.17g", []int64{fAA, fAB, fBB, mA, mB}, i, pr[0], pr[1])
+			}
+		}
+	})
+}
+
+// TestHWEExactXLargeTables checks the walk's tail cutting and row
+// stopping against the full enumeration on larger tables, including ones
+// so deviant that their p-values are near the bottom of the float64
+// range.
+func TestHWEExactXLargeTables(t *testing.T) {
+	if testing.Short() {
+		t.Skip("enumerates about a million outcomes per table")
+	}
+	for _, c := range [][5]int64{
+		{110, 260, 230, 180, 420}, // near equilibrium
+		{300, 0, 300, 300, 300},   // no heterozygous females
+		{50, 500, 50, 300, 300},   // heterozygote excess
+		{150, 300, 150, 600, 0},   // males all A
+		{280, 40, 280, 0, 600},    // deficit and males all B
+		{5, 90, 505, 2, 598},      // rare allele
+		{600, 0, 0, 0, 600},       // females AA, males B: extreme
+		{400, 0, 200, 150, 450},   // p near 1e-250
+	} {
+		got := HWEExactX(c[0], c[1], c[2], c[3], c[4])
+		p, midp, low, high := xDefinition(c[0], c[1], c[2], c[3], c[4])
+		for i, pr := range [][2]float64{{got.P, clamp01(p)}, {got.MidP, clamp01(midp)}, {got.Deficit, clamp01(low)}, {got.Excess, clamp01(high)}} {
+			if math.Abs(pr[0]-pr[1]) > 1e-9*pr[1]+1e-290 {
+				t.Errorf("%v: value %d walk %.17g, enumeration %.17g", c, i, pr[0], pr[1])
+			}
+		}
+	}
+}
