@@ -98,3 +98,25 @@ func TestXTestMixedSexCohort(t *testing.T) {
 		t.Errorf("X test rejected %d sites, above %.0f", xReject, lim)
 	}
 }
+
+// BenchmarkXTallyAdd is the per-call step of the X test's tally,
+// reported per genotype.
+func BenchmarkXTallyAdd(b *testing.B) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	const n = 1000
+	sexes := make([]sexcheck.Sex, n)
+	calls := make([]vcfscan.Geno, n)
+	for i := range n {
+		sexes[i] = sexcheck.Sex(rng.IntN(3))
+		calls[i] = vcfscan.Geno(rng.IntN(6))
+	}
+	maleHet := make([]int64, n)
+	var x XTally
+	k := 0
+	for b.Loop() {
+		x.Reset()
+		x.AddCalls(sexes, calls, maleHet)
+		k += n
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(k), "ns/genotype")
+}

@@ -105,3 +105,17 @@ func ExampleDecideAll() {
 	// male x_hemizygous F_X=1.00
 	// false
 }
+
+// Per contig the worker looks up the treatment once; per site it asks
+// for the kind at the position.
+func ExampleContig_KindAt() {
+	p, _ := sexcheck.HumanPAR([]vcfscan.Contig{{Name: "chrX", Length: 156040895}})
+	x := p.Contig("chrX", sexcheck.KindOf("chrX"))
+	fmt.Println(x.KindAt(1000000), x.KindAt(50000000))
+	// Output: autosome X
+}
+
+func ExampleMismatch() {
+	fmt.Println(sexcheck.Mismatch(sexcheck.Female, sexcheck.Male), sexcheck.Mismatch(sexcheck.Unknown, sexcheck.Male))
+	// Output: true false
+}

@@ -195,3 +195,30 @@ func (s Spans) Contains(pos int64) bool {
 	i := sort.Search(len(s), func(i int) bool { return s[i].hi >= pos })
 	return i < len(s) && s[i].lo <= pos
 }
+
+// Contig is how one contig's sites are treated, looked up once per
+// contig by the worker: its kind and its PAR intervals.
+type Contig struct {
+	Kind Kind
+	PAR  Spans
+}
+
+// Contig returns the treatment of contig name, whose kind the caller
+// gives (KindOf(name), or a user's mapping for other assemblies).
+func (p *PAR) Contig(name string, kind Kind) Contig {
+	c := Contig{Kind: kind}
+	if kind == ChromX || kind == ChromY {
+		c.PAR = p.Spans(name)
+	}
+	return c
+}
+
+// KindAt returns the treatment of the site at pos: ChromX or ChromY
+// outside the PARs (hemizygous in males), ChromMT, or Autosome for
+// autosomes and for PAR sites (diploid in both sexes).
+func (c Contig) KindAt(pos int64) Kind {
+	if (c.Kind == ChromX || c.Kind == ChromY) && c.PAR.Contains(pos) {
+		return Autosome
+	}
+	return c.Kind
+}

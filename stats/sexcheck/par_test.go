@@ -72,3 +72,23 @@ func TestParsePAR(t *testing.T) {
 		t.Error("nil PAR contains")
 	}
 }
+
+func TestContigKindAt(t *testing.T) {
+	p, _ := HumanPAR([]vcfscan.Contig{{Name: "X", Length: 155270560}, {Name: "Y"}, {Name: "MT"}})
+	x := p.Contig("X", KindOf("X"))
+	y := p.Contig("Y", KindOf("Y"))
+	mt := p.Contig("MT", KindOf("MT"))
+	a := p.Contig("7", KindOf("7"))
+	for _, tc := range []struct {
+		c    Contig
+		pos  int64
+		want Kind
+	}{
+		{x, 100000, Autosome}, {x, 5000000, ChromX}, {x, 155000000, Autosome},
+		{y, 20000, Autosome}, {y, 20000000, ChromY}, {mt, 100, ChromMT}, {a, 100000, Autosome},
+	} {
+		if got := tc.c.KindAt(tc.pos); got != tc.want {
+			t.Errorf("%+v at %d: %v, want %v", tc.c.Kind, tc.pos, got, tc.want)
+		}
+	}
+}
