@@ -48,6 +48,7 @@ import (
 //     loss) fit neither sex; a sample with too few X sites takes the sex
 //     its Y says.
 type Thresholds struct {
+	MinMAF                  float64 // X sites used for F_X (pass to NewXSite); DefaultMinMAF
 	MaleMinF, FemaleMaxF    float64
 	MinExpectedHet          float64
 	ExcessMaxF, ExcessZ     float64
@@ -60,6 +61,7 @@ type Thresholds struct {
 // DefaultThresholds returns the values documented on Thresholds.
 func DefaultThresholds() Thresholds {
 	return Thresholds{
+		MinMAF:   DefaultMinMAF,
 		MaleMinF: 0.9, FemaleMaxF: 0.5,
 		MinExpectedHet: 50,
 		ExcessMaxF:     -0.25, ExcessZ: 4,
@@ -248,4 +250,18 @@ func Decide(a *Acc, s *Sites, th Thresholds, useY bool) Call {
 		}
 	}
 	return r
+}
+
+// Describe returns the thresholds in a few lines for --help and the
+// report, with their reasons in short.
+func (t Thresholds) Describe() string {
+	return fmt.Sprintf(`Sex is inferred from non-PAR X sites with cohort MAF >= %g: F_X = 1 - observed/expected heterozygous calls
+(heterozygosity-based sex check, Anderson et al. 2010, Nat Protoc 5:1564; thresholds are fgauge's own).
+  male    F_X >= %g  (hemizygous: only spurious heterozygous calls, up to a tenth of the expected rate)
+  female  F_X <= %g  (above the X inbreeding of a daughter of full sibs, 3/8, plus noise)
+  unknown between the two, or when a non-inbred female would show fewer than %g heterozygous calls
+  fits neither sex: F_X < %g and %g standard errors below 0 (heterozygosity excess: contamination?),
+          or, when Y calls separate the sexes (>= %d Y sites), two X with a Y or one X without
+          (Y present: Y call rate >= %g of the X call rate; absent: <= %g).`,
+		t.MinMAF, t.MaleMinF, t.FemaleMaxF, t.MinExpectedHet, t.ExcessMaxF, t.ExcessZ, t.MinYSites, t.YPresentMin, t.YAbsentMax)
 }

@@ -119,3 +119,9 @@ func ExampleMismatch() {
 	fmt.Println(sexcheck.Mismatch(sexcheck.Female, sexcheck.Male), sexcheck.Mismatch(sexcheck.Unknown, sexcheck.Male))
 	// Output: true false
 }
+
+func ExampleThresholds_Describe() {
+	d := sexcheck.DefaultThresholds().Describe()
+	fmt.Println(strings.Split(d, "\n")[2])
+	// Output:   male    F_X >= 0.9  (hemizygous: only spurious heterozygous calls, up to a tenth of the expected rate)
+}
