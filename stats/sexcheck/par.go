@@ -74,29 +74,30 @@ var humanBuilds = []humanBuild{
 type PAR struct {
 	Reason  string
 	regions []vcfscan.Region
-	byChrom map[string][]span
+	byChrom map[string][]Span
 }
 
-type span struct{ lo, hi int64 } // 1-based inclusive
+// Span is one PAR interval, 1-based inclusive.
+type Span struct{ Lo, Hi int64 }
 
 // NewPAR builds a PAR set from regions (End 0 means to the end of the
 // contig) with the given reason.
 func NewPAR(regs []vcfscan.Region, reason string) *PAR {
-	p := &PAR{Reason: reason, regions: append([]vcfscan.Region(nil), regs...), byChrom: map[string][]span{}}
+	p := &PAR{Reason: reason, regions: append([]vcfscan.Region(nil), regs...), byChrom: map[string][]Span{}}
 	for _, r := range regs {
 		lo, hi := max(r.Start, 1), r.End
 		if hi <= 0 {
 			hi = 1<<63 - 1
 		}
-		p.byChrom[r.Chrom] = append(p.byChrom[r.Chrom], span{lo, hi})
+		p.byChrom[r.Chrom] = append(p.byChrom[r.Chrom], Span{lo, hi})
 	}
 	for c, sp := range p.byChrom {
-		sort.Slice(sp, func(i, j int) bool { return sp[i].lo < sp[j].lo })
+		sort.Slice(sp, func(i, j int) bool { return sp[i].Lo < sp[j].Lo })
 		merged := sp[:1]
 		for _, s := range sp[1:] {
 			last := &merged[len(merged)-1]
-			if s.lo <= last.hi || s.lo-1 == last.hi {
-				last.hi = max(last.hi, s.hi)
+			if s.Lo <= last.Hi || s.Lo-1 == last.Hi {
+				last.Hi = max(last.Hi, s.Hi)
 				continue
 			}
 			merged = append(merged, s)
@@ -187,13 +188,13 @@ func (p *PAR) Spans(chrom string) Spans {
 }
 
 // Spans is the sorted, merged PAR intervals of one contig.
-type Spans []span
+type Spans []Span
 
 // Contains reports whether pos lies in one of the intervals (binary
 // search; a contig has at most a handful).
 func (s Spans) Contains(pos int64) bool {
-	i := sort.Search(len(s), func(i int) bool { return s[i].hi >= pos })
-	return i < len(s) && s[i].lo <= pos
+	i := sort.Search(len(s), func(i int) bool { return s[i].Hi >= pos })
+	return i < len(s) && s[i].Lo <= pos
 }
 
 // Contig is how one contig's sites are treated, looked up once per
