@@ -91,70 +91,12 @@ func HWEExactX(fAA, fAB, fBB, mA, mB int64) HWEResult {
 		}
 		logObs = l
 	}
-	floor := math.Max(math.Min(0, logObs)-xTailCut, xFloorMin)
-	linFloor := math.Exp(floor)
-	pObs := math.Exp(logObs)            // relative to the reference; 0 when below e^-745
-	tieObs := math.Exp(logObs + tieTol) // outcomes with v <= tieObs count as at most as probable
-	var sTot, sTwo, sLow, sHigh float64 // all relative to the reference outcome
+	w := xWalk{x: &x, ho: fAB, logObs: logObs}
+	w.floor = math.Max(math.Min(0, logObs)-xTailCut, xFloorMin)
+	w.tieObs = math.Exp(logObs + tieTol)
+	pObs := math.Exp(logObs) // relative to the reference; 0 when below e^-745
+	row := w.row
 
-	// row sums one row, walking from its anchor (mid, value e^l) down and up.
-	row := func(m, mid int64, l float64) float64 {
-		lo, hi := x.hRange(m)
-		best := math.Inf(-1)
-		// Down from mid.
-		v := math.Exp(l)
-		for h := mid; ; {
-			if v > best {
-				best = v
-			}
-			sTot += v
-			if v <= tieObs {
-				sTwo += v
-			}
-			if h <= fAB {
-				sLow += v
-			}
-			if h >= fAB {
-				sHigh += v
-			}
-			if h-2 < lo {
-				break
-			}
-			prev := v
-			v /= x.up2(m, h-2)
-			h -= 2
-			if v < linFloor && v <= prev {
-				break
-			}
-		}
-		// Up from mid.
-		v = math.Exp(l)
-		for h := mid; h+2 <= hi; {
-			prev := v
-			v *= x.up2(m, h)
-			h += 2
-			if v > best {
-				best = v
-			}
-			sTot += v
-			if v <= tieObs {
-				sTwo += v
-			}
-			if h <= fAB {
-				sLow += v
-			}
-			if h >= fAB {
-				sHigh += v
-			}
-			if v < linFloor && v <= prev {
-				break
-			}
-		}
-		if best == 0 {
-			return math.Inf(-1)
-		}
-		return math.Log(best)
-	}
 	// Rows outward from m0 in both directions; stop a direction when a
 	// row's largest term is below the floor and smaller than the previous
 	// row's (the joint log-probability is concave in (mA, fAB) over the
@@ -169,7 +111,7 @@ func HWEExactX(fAA, fAB, fBB, mA, mB int64) HWEResult {
 			}
 			m, h, l = x.nextRow(m, h, l, dir)
 			b := row(m, h, l)
-			if b < floor && b < prev {
+			if b < w.floor && b < prev {
 				break
 			}
 			prev = b
@@ -177,10 +119,10 @@ func HWEExactX(fAA, fAB, fBB, mA, mB int64) HWEResult {
 	}
 	// Results: sums over the total, computed as ratios (the total is at
 	// least the reference term, 1).
-	r.PObs = clamp01(pObs / sTot)
-	r.P = clamp01(sTwo / sTot)
-	r.Deficit = clamp01(sLow / sTot)
-	r.Excess = clamp01(sHigh / sTot)
+	r.PObs = clamp01(pObs / w.sTot)
+	r.P = clamp01(w.sTwo / w.sTot)
+	r.Deficit = clamp01(w.sLow / w.sTot)
+	r.Excess = clamp01(w.sHigh / w.sTot)
 	r.MidP = clamp01(r.P - r.PObs/2)
 	r.Computed = true
 	return r
@@ -276,4 +218,209 @@ func (x *xSpace) nextRow(m, h int64, l float64, dir int64) (int64, int64, float6
 		l -= math.Log(x.up2(m2, h2))
 	}
 	return m2, h2, l
+}
+
+// xWalk sums the rows of HWEExactX. All values are relative to the
+// reference outcome (near the joint mode).
+type xWalk struct {
+	x                       *xSpace
+	ho                      int64   // observed female heterozygote count
+	logObs, floor           float64 // log of the observed outcome; walk floor
+	tieObs                  float64 // linear: terms <= tieObs are at most as probable as the observed
+	sTot, sTwo, sLow, sHigh float64
+	m                       int64 // current row
+	lm, gm                  float64
+	hm                      int64
+}
+
+// add puts one outcome (h, linear value v) into every sum it belongs to.
+func (w *xWalk) add(h int64, v float64) {
+	w.sTot += v
+	if v <= w.tieObs {
+		w.sTwo += v
+	}
+	if h <= w.ho {
+		w.sLow += v
+	}
+	if h >= w.ho {
+		w.sHigh += v
+	}
+}
+
+// g is the h-dependent part of the log-probability of (w.m, h).
+func (w *xWalk) g(h int64) float64 {
+	hA, hB := w.x.homs(w.m, h)
+	a, _ := math.Lgamma(float64(hA) + 1)
+	b, _ := math.Lgamma(float64(h) + 1)
+	c, _ := math.Lgamma(float64(hB) + 1)
+	return float64(h)*math.Ln2 - a - b - c
+}
+
+// lAt is the log-probability of (w.m, h) from the row's mode by
+// log-gamma (used to jump over outcomes no sum needs).
+func (w *xWalk) lAt(h int64) float64 { return w.lm + w.g(h) - w.gm }
+
+// row sums row m whose anchor mid has log-probability l, and returns the
+// row's largest log-probability. In each direction from the row's mode it
+// visits (1) the outcomes within e^xTailCut of the mode (for the total
+// and the tails that contain the mode), (2) when the observed outcome is
+// less probable than those, the outcomes at most as probable as it, from
+// where the row crosses its probability down to e^xTailCut below it,
+// found by bisection on log-gamma values, and (3) when the observed
+// heterozygote count lies beyond the mode's window, the outcomes from it
+// outwards down to e^xTailCut below its probability (the one-sided tail
+// in this row). Everything else is below e^-xTailCut of some term already
+// in each sum it belongs to (or below the floor). Every visited outcome is
+// tested for every sum, and none is visited twice.
+func (w *xWalk) row(m, mid int64, l float64) float64 {
+	x := w.x
+	w.m = m
+	lo, hi := x.hRange(m)
+	// Climb from mid to the row's mode (rows are log-concave in h).
+	hm, lm := mid, l
+	for hm+2 <= hi {
+		r := x.up2(m, hm)
+		if r <= 1 {
+			break
+		}
+		lm += math.Log(r)
+		hm += 2
+	}
+	if hm == mid {
+		for hm-2 >= lo {
+			r := x.up2(m, hm-2)
+			if r >= 1 {
+				break
+			}
+			lm -= math.Log(r)
+			hm -= 2
+		}
+	}
+	w.hm, w.lm, w.gm = hm, lm, 0
+	jumps := lm-xTailCut > w.floor // is anything beyond the mode's window needed?
+	mode := true
+	if jumps {
+		w.gm = w.g(hm)
+		// The mode's window matters to the total only within e^xTailCut
+		// of the reference, to the two-sided sum only when the whole row
+		// is at most as probable as the observed outcome, and to a
+		// one-sided tail containing the mode only within e^xTailCut of
+		// that tail's sum so far (a lower bound of its final value, as
+		// rows are visited from the centre outwards).
+		mode = lm >= -xTailCut || lm <= w.logObs+tieTol ||
+			hm <= w.ho && !(lm < math.Log(w.sLow)-xTailCut) ||
+			hm >= w.ho && !(lm < math.Log(w.sHigh)-xTailCut)
+	}
+	w.side(lo, hi, -1, jumps, mode)
+	w.side(lo, hi, +1, jumps, mode)
+	return lm
+}
+
+// side walks one direction (dir -1: h below the mode, the mode included;
+// +1: above it). jumps: windows beyond the mode's may be needed (and
+// w.gm is set); mode: the mode's own window is needed.
+func (w *xWalk) side(lo, hi, dir int64, jumps, mode bool) {
+	x := w.x
+	m, hm, lm := w.m, w.hm, w.lm
+	type window struct {
+		start int64
+		thr   float64 // stop below this log-probability
+	}
+	var wins [3]window
+	n := 0
+	first := hm
+	if dir > 0 {
+		first = hm + 2
+	}
+	if first < lo || first > hi {
+		return
+	}
+	if mode {
+		wins[n] = window{first, math.Max(w.floor, lm-xTailCut)}
+		n++
+	}
+	inRange := func(h int64) bool { return h >= lo && h <= hi && (dir < 0 && h <= hm || dir > 0 && h > hm) }
+	if jumps {
+		// Crossing of the observed probability.
+		c := w.logObs + tieTol
+		if lm > c {
+			// Outcomes k steps from the mode: h = hm + dir*2k.
+			far := (hm - lo) / 2
+			if dir > 0 {
+				far = (hi - hm) / 2
+			}
+			if far > 0 && w.lAt(hm+dir*2*far) <= c {
+				a, b := int64(0), far // lAt(hm+dir*2a) > c >= lAt(hm+dir*2b)
+				for b-a > 1 {
+					k := (a + b) / 2
+					if w.lAt(hm+dir*2*k) <= c {
+						b = k
+					} else {
+						a = k
+					}
+				}
+				if h := hm + dir*2*b; inRange(h) {
+					wins[n] = window{h, math.Max(w.floor, w.logObs-xTailCut)}
+					n++
+				}
+			}
+		}
+		// The one-sided tail beyond the observed count: its first member
+		// of the row's parity.
+		t := w.ho
+		if (t-lo)%2 != 0 {
+			t -= dir
+		}
+		if inRange(t) && (t-hm)*dir > 0 {
+			wins[n] = window{t, math.Max(w.floor, w.lAt(t)-xTailCut)}
+			n++
+		}
+	}
+	// Visit windows in walking order; a window starting inside ground
+	// already covered continues from where the walk stopped.
+	ws := wins[:n]
+	for i := 1; i < len(ws); i++ { // insertion sort by distance from the mode
+		for j := i; j > 0 && (ws[j].start-ws[j-1].start)*dir < 0; j-- {
+			ws[j], ws[j-1] = ws[j-1], ws[j]
+		}
+	}
+	next := first // first unvisited h in walking order
+	var v float64 // value at next-dir (the last visited)
+	visited := false
+	for _, win := range ws {
+		h := win.start
+		var cur float64
+		if visited && (h-next)*dir <= 0 {
+			h = next // continue the walk
+			if dir < 0 {
+				cur = v / x.up2(m, h)
+			} else {
+				cur = v * x.up2(m, h-2)
+			}
+		} else if h == hm {
+			cur = math.Exp(lm)
+		} else if !visited && h == first {
+			cur = math.Exp(lm) * x.up2(m, hm)
+		} else {
+			cur = math.Exp(w.lAt(h))
+		}
+		linThr := math.Exp(win.thr)
+		for {
+			w.add(h, cur)
+			v, visited = cur, true
+			next = h + 2*dir
+			if next < lo || next > hi || cur < linThr {
+				break
+			}
+			h = next
+			if dir < 0 {
+				cur /= x.up2(m, h)
+			} else {
+				cur *= x.up2(m, h-2)
+			}
+		}
+		if next < lo || next > hi {
+			return
+		}
+	}
 }

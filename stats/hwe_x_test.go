@@ -80,7 +80,7 @@ func TestHWEExactXGrid(t *testing.T) {
 // (testdata/expected/hwe_exact_grid.tsv, Wigginton et al. 2005); rows
 // with tie_in_probability = 1 are checked against the definition instead
 // (HWE.exact counts only the ties that sort first; shared reference
-// README), and every row against HWEExact to 1e-12.
+// README), and every row against HWEExact to 1e-10.
 func TestHWEExactXNoMales(t *testing.T) {
 	f, err := os.Open("../testdata/expected/hwe_exact_grid.tsv")
 	if err != nil {
@@ -114,7 +114,9 @@ func TestHWEExactXNoMales(t *testing.T) {
 		}
 		a := HWEExact(c[0], c[1], c[2])
 		for i, pair := range [][2]float64{{got.P, a.P}, {got.MidP, a.MidP}, {got.Deficit, a.Deficit}, {got.Excess, a.Excess}, {got.PObs, a.PObs}} {
-			if math.Abs(pair[0]-pair[1]) > 1e-12*math.Max(pair[1], 1e-290) {
+			// 1e-10: far tails are reached by log-gamma jumps (rounding
+			// about 1e-12 of the log-probabilities at these sizes).
+			if math.Abs(pair[0]-pair[1]) > 1e-10*math.Max(pair[1], 1e-290) {
 				t.Errorf("%v: value %d X %.17g, autosomal %.17g", c, i, pair[0], pair[1])
 			}
 		}
