@@ -47,11 +47,18 @@ const xFloorMin = -700.0
 // (nothing to test: the male counts alone are the conditioning total) or
 // the site is monomorphic among the tested samples.
 //
-// Cost: the walk starts at the joint mode and visits the outcomes within
-// e^50 of the larger of the mode's and the observed outcome's probability
-// (but none below e^-700 of the mode): about c*sd(mA)*sd(fAB) outcomes, a
-// few multiplications each, with one logarithm per row. Rare variants
-// have tiny outcome spaces; see BenchmarkHWEExactX for common ones.
+// Cost: the walk starts near the joint mode and goes out row by row (male
+// count mA); in each row it visits the outcomes within e^50 of the row's
+// mode that some sum needs, and jumps (log-gamma bisection) to the
+// stretches of tail that the two-sided and one-sided sums need beyond
+// them, never below e^-700 of the mode. That is about 100*sd(mA)*sd(fAB)
+// outcomes near equilibrium, a few multiplications each, and a few
+// log-gamma evaluations per row for deviant sites. Rare variants have
+// tiny outcome spaces. Measured (BenchmarkHWEExactX, CPU time, half of
+// the samples male, machine load ~19 on 2 cores): n = 10^4 about 1 ms at
+// equilibrium and 6 ms for a strongly deviant site; n = 10^5 about 10 ms
+// and 26 ms. Results are exact to about 1e-12 relative (1e-10 where the
+// log-gamma jumps are used at n ~ 10^5); p below ~1e-290 is approximate.
 func HWEExactX(fAA, fAB, fBB, mA, mB int64) HWEResult {
 	r := HWEResult{P: nan, MidP: nan, Deficit: nan, Excess: nan, PObs: nan, ChiSq: nan}
 	if fAA < 0 || fAB < 0 || fBB < 0 || mA < 0 || mB < 0 {
