@@ -2,8 +2,10 @@ package stats
 
 import (
 	"bufio"
+	"bytes"
 	"math"
 	"os"
+	"os/exec"
 	"strconv"
 	"strings"
 	"testing"
@@ -235,5 +237,31 @@ func TestHWEExactXLargeTables(t *testing.T) {
 				t.Errorf("%v: value %d walk %.17g, enumeration %.17g", c, i, pr[0], pr[1])
 			}
 		}
+	}
+}
+
+// TestXHWEGridReproducible re-runs the base-R reference script and checks
+// that it reproduces the committed grid byte for byte (needs Rscript,
+// Debian package r-base-core; skipped without it).
+func TestXHWEGridReproducible(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs R for several seconds")
+	}
+	rs, err := exec.LookPath("Rscript")
+	if err != nil {
+		t.Skip("Rscript not found (install Debian r-base-core); the committed grid is still checked by TestHWEExactXGrid")
+	}
+	cmd := exec.Command(rs, "testdata/tools/xhwe_exact.R")
+	cmd.Dir = ".."
+	out, err := cmd.Output()
+	if err != nil {
+		t.Fatalf("Rscript: %v", err)
+	}
+	want, err := os.ReadFile("../testdata/expected/xhwe_grid.tsv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(out, want) {
+		t.Fatalf("testdata/tools/xhwe_exact.R output (%d bytes) differs from testdata/expected/xhwe_grid.tsv (%d bytes)", len(out), len(want))
 	}
 }
