@@ -142,6 +142,9 @@ type Totals struct {
 	Blocks    map[BlockKey]*BlockAcc
 	HWETally  HWESummary
 	Freq      FreqCounts
+	// Sex holds the sex-check evidence and the count of non-PAR X, Y and
+	// MT sites, which stay out of the per-sample autosomal statistics.
+	Sex SexTotals
 }
 
 func newTotals(cfg *Config) *Totals {
@@ -152,6 +155,7 @@ func newTotals(cfg *Config) *Totals {
 		PerSample:   make([]SampleAcc, len(cfg.Samples)),
 		Blocks:      map[BlockKey]*BlockAcc{},
 		HWETally:    HWESummary{ChiHist: map[int32]int64{}, PHist: map[int32]int64{}},
+		Sex:         newSexTotals(cfg),
 	}
 	if t.HWEMethod == "" {
 		t.HWEMethod = "exact"
@@ -189,6 +193,9 @@ func (t *Totals) Merge(o *Totals) error {
 		return fmt.Errorf("stats: merge: population groups differ: %w", ErrIncompatible)
 	}
 	t.Sites += o.Sites
+	if err := t.Sex.merge(&o.Sex); err != nil {
+		return err
+	}
 	for i := range t.PerSample {
 		a, b := &t.PerSample[i], &o.PerSample[i]
 		for k := range a.Counts {
@@ -284,7 +291,7 @@ func (t *Totals) estimates(i int) sampleEstimates {
 	e.called = a.Counts[0] + a.Counts[1] + a.Counts[2]
 	e.informative = base.Sites - a.Uncalled
 	e.homInformative = e.informative - a.HetInformative
-	e.callRate = ratio(float64(e.called), float64(t.Sites))
+	e.callRate = ratio(float64(e.called), float64(t.Sites-t.Sex.other()))
 	e.hetRate = ratio(float64(a.Counts[1]), float64(e.called))
 	var sums [nSums]float64
 	for k := range sums {
@@ -324,10 +331,14 @@ const (
 	// FlagEstimatorsDisagree: f_hom > 0.1 while f_uniting_gametes < 0,
 	// or the reverse.
 	FlagEstimatorsDisagree
+	// FlagSexMismatch: given and inferred sex both known and different.
+	FlagSexMismatch
+	// FlagSexNeither: the X (and Y) pattern fits neither sex.
+	FlagSexNeither
 	numFlags = iota
 )
 
-var flagNames = [numFlags]string{"no_calls", "low_call_rate", "het_rate_outlier", "estimators_disagree"}
+var flagNames = [numFlags]string{"no_calls", "low_call_rate", "het_rate_outlier", "estimators_disagree", "sex_mismatch", "sex_fits_neither"}
 
 // Has reports whether every flag of g is set in f.
 func (f SampleFlags) Has(g SampleFlags) bool { return f&g == g }
@@ -370,10 +381,14 @@ type sampleView struct {
 	est   []sampleEstimates
 	band  HetRateBand
 	flags []SampleFlags
+	sex   *SexView // nil without non-PAR X or Y sites
 }
 
 func (t *Totals) view() *sampleView {
 	v := &sampleView{est: make([]sampleEstimates, len(t.PerSample)), flags: make([]SampleFlags, len(t.PerSample))}
+	if t.HasSexCheck() {
+		v.sex = t.Sexes()
+	}
 	// Cohort mean and SD of het_rate for het_rate_outlier (fixed order).
 	var sum, sum2, m float64
 	for i := range t.PerSample {
@@ -409,6 +424,9 @@ func (t *Totals) view() *sampleView {
 		if (e.fHom > 0.1 && e.fUniting < 0) || (e.fUniting > 0.1 && e.fHom < 0) {
 			f |= FlagEstimatorsDisagree
 		}
+		if v.sex != nil {
+			f |= t.sexFlags(v.sex, i)
+		}
 		v.flags[i] = f
 	}
 	return v
@@ -427,12 +445,18 @@ func (t *Totals) CallRate(i int) float64 { return t.estimates(i).callRate }
 // one row per selected sample, in order. The population column is present
 // only with populations ("NA" for unlisted samples).
 func (t *Totals) SampleTable() (header []string, rows [][]string) {
-	if t.PopOf != nil {
-		header = strings.Split(headerLine(FileSamples), "\t")
-	} else {
-		header = strings.Split(headerLine(FileSamples, "population"), "\t")
+	var skip []string
+	if t.PopOf == nil {
+		skip = append(skip, "population")
 	}
 	v := t.view()
+	switch {
+	case v.sex == nil:
+		skip = append(skip, sexColumnNames...)
+	case t.Sex.Given == nil:
+		skip = append(skip, "sex_given")
+	}
+	header = strings.Split(headerLine(FileSamples, skip...), "\t")
 	for i := range t.PerSample {
 		a := &t.PerSample[i]
 		e := &v.est[i]
@@ -451,7 +475,11 @@ func (t *Totals) SampleTable() (header []string, rows [][]string) {
 		row = append(row, itoa(e.called), itoa(a.Counts[0]), itoa(a.Counts[1]), itoa(a.Counts[2]),
 			itoa(a.Counts[3]), itoa(a.Counts[4]+a.Counts[5]),
 			ftoa(e.callRate), ftoa(e.hetRate), homObs, ftoa(e.homExp), itoa(e.informative),
-			ftoa(e.fHom), ftoa(e.fGRM), ftoa(e.fExcess), ftoa(e.fUniting), ftoa(e.fVanRad), v.flags[i].String())
+			ftoa(e.fHom), ftoa(e.fGRM), ftoa(e.fExcess), ftoa(e.fUniting), ftoa(e.fVanRad))
+		if v.sex != nil {
+			row = append(row, t.sexColumns(v.sex, i)...)
+		}
+		row = append(row, v.flags[i].String())
 		rows = append(rows, row)
 	}
 	return header, rows

@@ -6,6 +6,7 @@ import (
 	"math"
 	"strconv"
 
+	"fgauge/stats/sexcheck"
 	"fgauge/vcfscan"
 )
 
@@ -102,12 +103,18 @@ type Worker struct {
 	chromBytes []byte
 	lastBlock  BlockKey
 	block      *BlockAcc
+
+	// Sex chromosomes (sexsites.go).
+	contig   sexcheck.Contig
+	deferX   bool
+	deferred []Deferred
+	xcache   *XHWECache
 }
 
 // NewWorker returns a Worker for cfg; contigName maps vcfscan chromosome
 // ids to names. cfg must have been validated and must not change.
 func NewWorker(cfg *Config, contigName func(id int) string) *Worker {
-	w := &Worker{cfg: cfg, contigName: contigName, t: newTotals(cfg), lastChrom: -1}
+	w := &Worker{cfg: cfg, contigName: contigName, t: newTotals(cfg), lastChrom: -1, deferX: cfg.Sex.DeferX()}
 	w.cache = newHWECache(cfg.HWEMethod == "chisq", 1<<14)
 	w.nPop = len(cfg.PopNames)
 	if cfg.PopOf == nil {
@@ -141,9 +148,23 @@ func (w *Worker) Totals() *Totals { return w.t }
 // record i (NaN when none), and adds the record's per-sample and
 // per-population contributions to the worker's totals. freqs must have
 // room for len(b.Records) values.
+//
+// Records on non-PAR X and Y and on the mitochondrion take sexRecord
+// instead (see SexConfig); X rows waiting for the sexes are listed by
+// Deferred.
 func (w *Worker) ProcessBatch(b *vcfscan.Batch, sites, popSites *bytes.Buffer, freqs []float64) {
+	w.deferred = w.deferred[:0]
 	for i := range b.Records {
-		freqs[i] = w.record(&b.Records[i], b.Calls(i), sites, popSites)
+		rec := &b.Records[i]
+		w.chrom(rec.ChromID)
+		if w.contig.Kind != sexcheck.Autosome {
+			if k := w.contig.KindAt(rec.Pos); k != sexcheck.Autosome {
+				w.t.Sites++
+				freqs[i] = w.sexRecord(k, i, rec, b.Calls(i), sites)
+				continue
+			}
+		}
+		freqs[i] = w.record(rec, b.Calls(i), sites, popSites)
 	}
 }
 
@@ -152,6 +173,7 @@ func (w *Worker) chrom(id int) {
 		w.lastChrom = id
 		w.chromName = w.contigName(id)
 		w.chromBytes = append(w.chromBytes[:0], w.chromName...)
+		w.contig = w.cfg.Sex.contig(w.chromName)
 	}
 }
 
@@ -499,6 +521,9 @@ func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64
 	b = appendFloat(b, hwe.MidP)
 	b = appendFloat(b, hwe.Deficit)
 	b = appendFloat(b, hwe.Excess)
+	if w.cfg.Sex.XColumns {
+		b = append(b, xNA...)
+	}
 	b = append(b, '\n')
 	sites.Write(b)
 	w.scratch = b
@@ -509,10 +534,23 @@ func appendFloat(b []byte, x float64) []byte {
 	return numfmt.AppendFloat(append(b, '\t'), x)
 }
 
-// SitesHeader is the header line of sites.tsv (no trailing newline).
+// SitesHeader is the header line of sites.tsv (no trailing newline),
+// without the male-count columns of non-PAR X rows.
 func SitesHeader() string {
-	return headerLine(FileSites)
+	return headerLine(FileSites, xSiteColumns...)
 }
+
+// SitesHeaderFor is the header line of sites.tsv for cfg: with the
+// male-count columns when cfg.Sex.XColumns.
+func SitesHeaderFor(cfg *Config) string {
+	if cfg.Sex.XColumns {
+		return headerLine(FileSites)
+	}
+	return SitesHeader()
+}
+
+// xSiteColumns are the sites.tsv columns of non-PAR X rows only.
+var xSiteColumns = []string{"n_male_ref", "n_male_alt", "n_male_het_error", "n_sex_unknown"}
 
 // PopSitesHeader is the header line of sites_by_population.tsv.
 func PopSitesHeader() string {

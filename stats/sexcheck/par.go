@@ -223,3 +223,17 @@ func (c Contig) KindAt(pos int64) Kind {
 	}
 	return c.Kind
 }
+
+// KindByName classifies a contig by name like KindOf, but accepts the
+// human numeric codes (23, 24, 26) only when numericHuman is set: in other
+// species those numbers are autosomes (cattle chromosome 23, for one).
+func KindByName(name string, numericHuman bool) Kind {
+	k := KindOf(name)
+	if k != Autosome && !numericHuman {
+		n := strings.TrimPrefix(strings.ToLower(name), "chr")
+		if n != "" && n[0] >= '0' && n[0] <= '9' {
+			return Autosome
+		}
+	}
+	return k
+}

@@ -170,7 +170,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	}
 	defer sitesFile.Close()
 	sitesZ := vcfscan.NewBGZFWriter(sitesFile, 1)
-	if _, err := io.WriteString(sitesZ, stats.SitesHeader()+"\n"); err != nil {
+	if _, err := io.WriteString(sitesZ, stats.SitesHeaderFor(scfg)+"\n"); err != nil {
 		return nil, err
 	}
 	var popZ *vcfscan.BGZFWriter
