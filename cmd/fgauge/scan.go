@@ -71,12 +71,13 @@ type scanOptions struct {
 	excludeFile string
 	stats       *statsFlags
 	roh         *rohFlags
+	sex         *sexFlags
 	shard       *shardFlags
 }
 
 func runScan(ctx context.Context, env *runEnv, args []string) error {
 	o := &scanOptions{}
-	fs := newFlagSet(env.stderr, "scan", "scan INPUT.vcf[.gz]|INPUT.bcf|- -o OUTDIR [options]", scanHelp+"\n"+statsHelp+"\n"+rohHelp)
+	fs := newFlagSet(env.stderr, "scan", "scan INPUT.vcf[.gz]|INPUT.bcf|- -o OUTDIR [options]", scanHelp+"\n"+statsHelp+"\n"+sexHelp()+"\n"+rohHelp)
 	fs.StringVar(&o.out, "o", "", "output folder (created if absent)")
 	fs.StringVar(&o.out, "out", "", "same as -o")
 	fs.BoolVar(&o.force, "force", false, "overwrite results already in OUTDIR")
@@ -99,6 +100,7 @@ func runScan(ctx context.Context, env *runEnv, args []string) error {
 	fs.IntVar(&o.read.Limits.MaxBlockExpand, "max-block-bytes", lim.MaxBlockExpand, "refuse compressed blocks that expand beyond this many bytes")
 	o.stats = addStatsFlags(fs)
 	o.roh = addROHFlags(fs)
+	o.sex = addSexFlags(fs)
 	o.shard = addShardFlags(fs)
 	pos, err := parseInterleaved(fs, args)
 	if err != nil {
@@ -154,9 +156,13 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) error {
 	if err != nil {
 		return err
 	}
+	sex, err := o.sex.settings(o.roh.species)
+	if err != nil {
+		return err
+	}
 	cfg := scanrun.Config{
 		Input: o.input, Out: o.out, Force: o.force, Threads: o.threads,
-		Read: o.read, Stats: stats, ROH: rohCfg,
+		Read: o.read, Stats: stats, ROH: rohCfg, Sex: sex, PedigreeFile: o.pedigree,
 		StateOut: o.shard.stateOut, SkipIfValidState: o.shard.skipValid,
 		Version: version, CommandLine: env.argv, Stderr: env.stderr,
 		Progress: newProgress(env.stderr, o.noProgress),
