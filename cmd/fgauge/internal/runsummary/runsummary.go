@@ -32,7 +32,7 @@ type Run struct {
 	Records     Records                  `json:"records"`
 	ROH         *roh.Summary             `json:"roh,omitempty"` // without --no-roh
 	Samples     Samples                  `json:"samples"`
-	Sex         *stats.SexSummary        `json:"sex,omitempty"` // with non-PAR X or Y sites
+	Sex         *stats.SexSummary        `json:"sex,omitempty"`    // with non-PAR X or Y sites
 	Shards      *Shards                  `json:"shards,omitempty"` // merges only
 	Sites       *stats.SitesSummary      `json:"sites,omitempty"`
 	Version     string                   `json:"version"`
