@@ -324,3 +324,107 @@ func TestSexCheckSimulated(t *testing.T) {
 }
 
 func itoa(v int64) string { return strconv.FormatInt(v, 10) }
+
+// writeTrueSexes writes the true sex of every sample.
+func writeTrueSexes(t *testing.T, dir string, c *sexCohort) string {
+	t.Helper()
+	var b strings.Builder
+	for i, n := range c.names {
+		v := "2"
+		if c.male[i] {
+			v = "1"
+		}
+		fmt.Fprintf(&b, "%s %s\n", n, v)
+	}
+	p := filepath.Join(dir, "true_sexes.txt")
+	if err := os.WriteFile(p, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// TestSexDeferredEqualsGiven: X rows written at the end from inferred
+// sexes (no --sex: the rows wait and are spliced in) equal the rows
+// written in stream when every sex is given and equals the inferred one;
+// and the spliced table is a valid indexed BGZF table.
+func TestSexDeferredEqualsGiven(t *testing.T) {
+	dir := t.TempDir()
+	c := writeSexCohort(t, dir)
+	par := "X:1-" + strconv.Itoa(sexPAREnd)
+	inferred := scanTo(t, c.path, "--par", par, "--no-roh", "--threads", "2")
+	given := scanTo(t, c.path, "--par", par, "--no-roh", "--threads", "2", "--sex", writeTrueSexes(t, dir, c))
+	a, b := gunzipFile(t, filepath.Join(inferred, "sites.tsv.gz")), gunzipFile(t, filepath.Join(given, "sites.tsv.gz"))
+	if !bytes.Equal(a, b) {
+		t.Fatalf("sites.tsv.gz differs between inferred (deferred) and given sexes (%d vs %d bytes)", len(a), len(b))
+	}
+	if _, err := os.Stat(filepath.Join(inferred, "sites.tsv.gz.tbi")); err != nil {
+		t.Errorf("spliced site table has no index: %v", err)
+	}
+	for _, d := range []string{inferred, given} {
+		ents, _ := os.ReadDir(d)
+		for _, e := range ents {
+			if strings.HasPrefix(e.Name(), ".") || strings.HasSuffix(e.Name(), ".body") {
+				t.Errorf("temporary file %s left in %s", e.Name(), d)
+			}
+		}
+	}
+}
+
+// TestSexShardsMerge: shards + merge give the single pass's outputs on a
+// cohort with X and Y, X split between two shards; and merge refuses
+// (exit 2) when a shard's X rows were tested with sexes the whole run
+// does not infer (a shard holding too few X sites to infer any sex).
+func TestSexShardsMerge(t *testing.T) {
+	dir := t.TempDir()
+	c := writeSexCohort(t, dir)
+	opts := []string{"--par", "X:1-" + strconv.Itoa(sexPAREnd), "--roh-method", "rules"}
+	single := scanSingle(t, dir, c.path, opts)
+	merged := scanShards(t, dir, c.path, opts, shardSplit{"xsplit", [][]string{{"1", "X:1-1000000"}, {"X:1000001-2000000", "Y"}}})
+	assertSameOutputs(t, single, merged)
+
+	// X:1000001-1040000 holds about 33 X sites: too few to infer a sex.
+	sp := shardSplit{"refused", [][]string{{"1", "X:1-1000000"}, {"X:1000001-1040000"}, {"X:1040001-2000000", "Y"}}}
+	var states []string
+	for i, regs := range sp.shards {
+		out := filepath.Join(dir, fmt.Sprintf("refused_shard%d", i+1))
+		args := append([]string{"scan", c.path, "-o", out, "--state-out", out + ".state", "--no-progress"}, opts...)
+		for _, r := range regs {
+			args = append(args, "--region", r)
+		}
+		if code, _, e := runCmdline(t, args...); code != exitOK {
+			t.Fatalf("shard %d: exit %d: %s", i+1, code, e)
+		}
+		states = append(states, out+".state")
+	}
+	code, _, e := runCmdline(t, append([]string{"merge", "-o", filepath.Join(dir, "refused_merged")}, states...)...)
+	t.Logf("refusal: %s", e)
+	if code != exitBadInput || !strings.Contains(e, "merge cannot recompute X rows") {
+		t.Fatalf("merge of X rows tested with other sexes: exit %d: %s", code, e)
+	}
+}
+
+// TestSexFileErrors: a sex file naming a sample absent from the input, a
+// duplicate or an unreadable value is refused with its file and line
+// (exit 2) and leaves no output.
+func TestSexFileErrors(t *testing.T) {
+	dir := t.TempDir()
+	c := writeSexCohort(t, dir)
+	for _, tc := range []struct{ name, text, want string }{
+		{"absent", "sample\tsex\nkid001\tM\nnobody\tF\n", "absent.tsv:3: sample not in the data"},
+		{"duplicate", "kid001 M\nkid002 F\nkid001 F\n", "duplicate.tsv:3: sample listed twice"},
+		{"value", "kid001\tM\nkid002\tyes\n", "value.tsv:2: unreadable sex value"},
+	} {
+		p := filepath.Join(dir, tc.name+".tsv")
+		if err := os.WriteFile(p, []byte(tc.text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		out := filepath.Join(dir, "out_"+tc.name)
+		code, _, e := runCmdline(t, "scan", c.path, "-o", out, "--no-progress", "--sex", p)
+		if code != exitBadInput || !strings.Contains(e, tc.want) {
+			t.Errorf("%s: exit %d, %q; want exit %d and %q", tc.name, code, e, exitBadInput, tc.want)
+		}
+		if _, err := os.Stat(filepath.Join(out, "samples.tsv")); err == nil {
+			t.Errorf("%s: output written", tc.name)
+		}
+	}
+}
