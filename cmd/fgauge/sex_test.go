@@ -193,7 +193,7 @@ func TestSexCheckSimulated(t *testing.T) {
 	dir := t.TempDir()
 	c := writeSexCohort(t, dir)
 	sexFile := writeSexFile(t, dir, c)
-	out := scanTo(t, c.path, "--sex", sexFile, "--par", "X:1-"+strconv.Itoa(sexPAREnd), "--no-roh", "--threads", "3")
+	out := scanTo(t, c.path, "--sex", sexFile, "--par", "X:1-"+strconv.Itoa(sexPAREnd), "--no-roh", "--threads", "3", "--report")
 
 	h, rows := readTable(t, filepath.Join(out, "samples.tsv"))
 	ci, cg, cf, ce := column(t, h, "sex_inferred"), column(t, h, "sex_given"), column(t, h, "flags"), column(t, h, "x_male_het_errors")
@@ -224,6 +224,24 @@ func TestSexCheckSimulated(t *testing.T) {
 		t.Errorf("inferred correctly: %d of %d", correct, len(rows))
 	}
 	t.Logf("inferred correctly: %d of %d; swaps flagged: %d", correct, len(rows), len(sexSwapped))
+
+	// The report's sex-check section: the counts, one table row per swap,
+	// the plot with every sample, and the caution.
+	page, err := os.ReadFile(filepath.Join(out, "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{`id="sex_check"`, `data-sex="mismatches">6<`, `data-sex="fits_neither">0<`,
+		`id="fig_sex" data-plot="fig_sex" data-kind="scatter" data-points="300" data-total="300"`, "licensed practitioners following local regulations"} {
+		if !bytes.Contains(page, []byte(want)) {
+			t.Errorf("report.html lacks %q", want)
+		}
+	}
+	if i := bytes.Index(page, []byte(`id="sex_table"`)); i < 0 {
+		t.Errorf("report.html has no sex table")
+	} else if tbl, _, _ := bytes.Cut(page[i:], []byte("</table>")); bytes.Count(tbl, []byte(`<tr data-sample=`)) != len(sexSwapped) {
+		t.Errorf("report.html: sex table has %d rows, want %d", bytes.Count(tbl, []byte(`<tr data-sample=`)), len(sexSwapped))
+	}
 
 	// X rows: male allele counts and the X test of the counts by test sex.
 	testMale := make([]int, sexN) // 1 male, 2 female

@@ -172,6 +172,7 @@ type reportView struct {
 	SampleTableNote string
 	PageDir         bool
 	Unknown         []string
+	Sex             *sexView // nil without the sex columns
 }
 
 // Write reads the scan output folder outDir and writes outDir/report.html
@@ -251,6 +252,16 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 			}
 		}
 		*b.dst = &f
+	}
+	sv, err := c.sexSection()
+	if err != nil {
+		return nil, fmt.Errorf("report: sex check: %w", err)
+	}
+	if sv != nil {
+		v.Sex = sv
+		if sv.Fig.Note != "" {
+			v.Aggregated = append(v.Aggregated, sv.Fig.Title+": "+sv.Fig.Note)
+		}
 	}
 	v.HasPops = d.pops != nil || d.pairs != nil
 	if d.pops != nil {
