@@ -162,4 +162,3 @@ func (c *cohort) figSex(v *sexView) (figure, error) {
 	f.SVG, err = renderPlot(p, plotW, plotH)
 	return f, err
 }
-
