@@ -46,6 +46,8 @@ The flags column of samples.tsv ("." when none):
                        contamination, sample mix-up or another population)
   estimators_disagree  f_hom > 0.1 while f_uniting_gametes < 0, or the
                        reverse: check frequencies and data quality first
+  sex_mismatch         given and inferred sex both known and different
+  sex_fits_neither     the X (and Y) pattern fits neither sex
 
 Cautions: genomic F estimates depend on marker density, the allele-frequency
 reference and genotyping quality; they are not a diagnosis. Decisions about
