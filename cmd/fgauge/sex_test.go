@@ -446,3 +446,44 @@ func TestSexFileErrors(t *testing.T) {
 		}
 	}
 }
+
+// TestSexFromPedigree: without --sex, the pedigree's sex column gives the
+// given sexes (planted swaps flagged as with --sex), and run.json names it.
+func TestSexFromPedigree(t *testing.T) {
+	dir := t.TempDir()
+	c := writeSexCohort(t, dir)
+	var b strings.Builder
+	for i, n := range c.names {
+		sx := "F"
+		if c.male[i] != sexSwapped[i] {
+			sx = "M"
+		}
+		fmt.Fprintf(&b, "%s\t0\t0\t%s\n", n, sx)
+	}
+	ped := filepath.Join(dir, "herdbook.tsv")
+	if err := os.WriteFile(ped, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := scanTo(t, c.path, "--pedigree", ped, "--no-roh")
+	h, rows := readTable(t, filepath.Join(out, "samples.tsv"))
+	cf := column(t, h, "flags")
+	n := 0
+	for i, r := range rows {
+		if strings.Contains(r[cf], "sex_mismatch") != sexSwapped[i] {
+			t.Errorf("%s: flags %q, swapped %v", r[0], r[cf], sexSwapped[i])
+		}
+		if sexSwapped[i] {
+			n++
+		}
+	}
+	js, err := os.ReadFile(filepath.Join(out, "run.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Contains(js, []byte(`"given_source": "pedigree `+ped+`"`)) || !bytes.Contains(js, []byte(`"mismatches": 6`)) {
+		t.Errorf("run.json sex section does not name the pedigree or count the swaps")
+	}
+	if n != len(sexSwapped) {
+		t.Fatal("fixture")
+	}
+}
