@@ -37,5 +37,5 @@ func isInputFault(err error) bool {
 	var te *stats.TableError
 	var ve *vcfscan.ParseError
 	var de *pedigree.Error
-	return errors.As(err, &pe) || errors.As(err, &te) || errors.As(err, &ve) || errors.As(err, &de) || isSexFileError(err)
+	return errors.As(err, &pe) || errors.As(err, &te) || errors.As(err, &ve) || errors.As(err, &de)
 }

@@ -1,13 +1,10 @@
 package main
 
 import (
-	"errors"
 	"flag"
 	"strings"
 
 	"fgauge/cmd/fgauge/internal/scanrun"
-	"fgauge/stats/sexcheck"
-	"fgauge/vcfscan"
 )
 
 // sexFlags are the scan options of the sex chromosomes.
@@ -31,7 +28,7 @@ func sexHelp() string {
   Heredity 116:558) over samples of given sex (--sex, else the pedigree's sex
   column), else inferred sex; samples of unknown sex are left out and counted.
   Y and MT: calls counted as haploid, no HWE test.
-` + indent(sexcheck.DefaultThresholds().Describe(), "  ") + `
+` + indent(scanrun.SexThresholdsText(), "  ") + `
   The flags sex_mismatch and sex_fits_neither are data-quality signals (a sample
   mix-up, contamination); they are not a statement about anyone's sex or health.
   Chromosomal findings need confirmation by a licensed laboratory, and any
@@ -53,43 +50,5 @@ func addSexFlags(fs *flag.FlagSet) *sexFlags {
 
 // settings reads the sex file and the PAR list.
 func (f *sexFlags) settings(species string) (scanrun.SexSettings, error) {
-	s := scanrun.SexSettings{Human: strings.EqualFold(species, "human")}
-	if f.sexFile != "" {
-		r, err := vcfscan.OpenText(f.sexFile)
-		if err != nil {
-			return s, err
-		}
-		defer r.Close()
-		if s.List, err = sexcheck.ReadList(r, f.sexFile); err != nil {
-			return s, err
-		}
-	}
-	if f.par != "" {
-		s.PARSource = f.par
-		if file, ok := strings.CutPrefix(f.par, "@"); ok {
-			regs, err := vcfscan.ReadRegionsFile(file)
-			if err != nil {
-				return s, err
-			}
-			if len(regs) == 0 {
-				return s, usagef("--par %s: no regions in the file", f.par)
-			}
-			s.PAR = regs
-		} else {
-			for _, spec := range strings.Split(f.par, ",") {
-				r, err := vcfscan.ParseRegion(strings.TrimSpace(spec))
-				if err != nil {
-					return s, usagef("--par: %v", err)
-				}
-				s.PAR = append(s.PAR, r)
-			}
-		}
-	}
-	return s, nil
-}
-
-// isSexFileError reports whether err is a problem of the --sex file.
-func isSexFileError(err error) bool {
-	var se *sexcheck.Error
-	return errors.As(err, &se)
+	return scanrun.ReadSexSettings(f.sexFile, f.par, species)
 }

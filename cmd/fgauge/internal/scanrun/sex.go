@@ -2,6 +2,7 @@ package scanrun
 
 import (
 	"fmt"
+	"strings"
 
 	"fgauge/cmd/fgauge/internal/badinput"
 	"fgauge/stats"
@@ -72,4 +73,49 @@ func (s *SexSettings) sexConfig(samplesInFile, samples []string, contigs []vcfsc
 		}
 	}
 	return c, nil
+}
+
+// SexThresholdsText describes the sex check's thresholds, with their
+// sources, for --help.
+func SexThresholdsText() string { return sexcheck.DefaultThresholds().Describe() }
+
+// ReadSexSettings reads the --sex file and the --par value (@FILE, a
+// region file, or CHROM:START-END,...); species "human" (any case) turns
+// on the human contig numbers and PAR recognition. Problems with the
+// files are bad input (exit 2), named by file and line.
+func ReadSexSettings(sexFile, par, species string) (SexSettings, error) {
+	s := SexSettings{Human: strings.EqualFold(species, "human")}
+	if sexFile != "" {
+		r, err := vcfscan.OpenText(sexFile)
+		if err != nil {
+			return s, err
+		}
+		defer r.Close()
+		if s.List, err = sexcheck.ReadList(r, sexFile); err != nil {
+			return s, badinput.Wrap(fmt.Errorf("--sex: %w", err))
+		}
+	}
+	if par == "" {
+		return s, nil
+	}
+	s.PARSource = par
+	if file, ok := strings.CutPrefix(par, "@"); ok {
+		regs, err := vcfscan.ReadRegionsFile(file)
+		if err != nil {
+			return s, err
+		}
+		if len(regs) == 0 {
+			return s, badinput.Errorf("--par %s: no regions in the file", par)
+		}
+		s.PAR = regs
+		return s, nil
+	}
+	for _, spec := range strings.Split(par, ",") {
+		r, err := vcfscan.ParseRegion(strings.TrimSpace(spec))
+		if err != nil {
+			return s, badinput.Errorf("--par: %v", err)
+		}
+		s.PAR = append(s.PAR, r)
+	}
+	return s, nil
 }
