@@ -371,9 +371,17 @@ func TestSexDeferredEqualsGiven(t *testing.T) {
 	par := "X:1-" + strconv.Itoa(sexPAREnd)
 	inferred := scanTo(t, c.path, "--par", par, "--no-roh", "--threads", "2")
 	given := scanTo(t, c.path, "--par", par, "--no-roh", "--threads", "2", "--sex", writeTrueSexes(t, dir, c))
+	one := scanTo(t, c.path, "--par", par, "--no-roh", "--threads", "1")
 	a, b := gunzipFile(t, filepath.Join(inferred, "sites.tsv.gz")), gunzipFile(t, filepath.Join(given, "sites.tsv.gz"))
 	if !bytes.Equal(a, b) {
 		t.Fatalf("sites.tsv.gz differs between inferred (deferred) and given sexes (%d vs %d bytes)", len(a), len(b))
+	}
+	for _, name := range []string{"sites.tsv.gz", "sites.tsv.gz.tbi", "samples.tsv"} {
+		x, _ := os.ReadFile(filepath.Join(one, name))
+		y, _ := os.ReadFile(filepath.Join(inferred, name))
+		if len(x) == 0 || !bytes.Equal(x, y) {
+			t.Errorf("%s differs between 1 and 2 threads", name)
+		}
 	}
 	if _, err := os.Stat(filepath.Join(inferred, "sites.tsv.gz.tbi")); err != nil {
 		t.Errorf("spliced site table has no index: %v", err)

@@ -337,7 +337,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	var xr xRows
 	if xd != nil && len(xd.segs) > 0 {
 		xr.sexes = totals.Sexes().Test
-		if xr.ranges, err = xd.splice(out.Path("sites.tsv.gz"), xr.sexes, scfg.Sex.XColumns); err != nil {
+		if xr.ranges, err = xd.splice(out.Path("sites.tsv.gz"), xr.sexes, scfg.Sex.XColumns, cfg.Threads); err != nil {
 			return nil, err
 		}
 	}

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"sync"
 
 	"fgauge/stats"
 	"fgauge/stats/sexcheck"
@@ -216,7 +217,7 @@ func (h *eofHolder) Write(p []byte) (int, error) {
 // splice rebuilds the site table at table: the body's blocks with the X
 // rows, computed with sexes, in its holes. It returns the compressed
 // ranges of the X rows in the new table.
-func (x *xDeferral) splice(table string, sexes []sexcheck.Sex, xcols bool) ([]XRange, error) {
+func (x *xDeferral) splice(table string, sexes []sexcheck.Sex, xcols bool, threads int) ([]XRange, error) {
 	if err := x.w.Flush(); err != nil {
 		return nil, err
 	}
@@ -246,11 +247,10 @@ func (x *xDeferral) splice(table string, sexes []sexcheck.Sex, xcols bool) ([]XR
 	}
 	defer dst.Close()
 	bw := bufio.NewWriterSize(dst, 1<<20)
-	rd := &xReader{r: bufio.NewReaderSize(x.f, 1<<20), ns: x.ns}
-	cache := stats.NewXHWECache(0)
+	rd := &xReader{r: bufioReader(x.f), ns: x.ns}
+	rc := newXRowComputer(threads, sexes, xcols)
 	var ranges []XRange
 	var pos, written int64
-	var row []byte
 	for _, sg := range x.segs {
 		n, err := io.Copy(bw, io.NewSectionReader(src, pos, sg.offset-pos))
 		if err != nil {
@@ -260,15 +260,18 @@ func (x *xDeferral) splice(table string, sexes []sexcheck.Sex, xcols bool) ([]XR
 		pos = sg.offset
 		h := &eofHolder{w: bw}
 		zw := vcfscan.NewBGZFWriter(h, 1)
-		for i := 0; i < sg.n; i++ {
-			if err := rd.next(); err != nil {
-				zw.Close()
-				return nil, fmt.Errorf("reading back X calls: %w", err)
-			}
-			row = stats.AppendXRow(row[:0], rd.chrom, &rd.rec, rd.calls, sexes, cache, xcols)
-			if _, err := zw.Write(row); err != nil {
+		for left := sg.n; left > 0; {
+			k := min(left, xRowChunk)
+			left -= k
+			if err := rc.compute(rd, k); err != nil {
 				zw.Close()
 				return nil, err
+			}
+			for _, row := range rc.rows[:k] {
+				if _, err := zw.Write(row); err != nil {
+					zw.Close()
+					return nil, err
+				}
 			}
 		}
 		if err := zw.Close(); err != nil {
@@ -297,4 +300,59 @@ func (x *xDeferral) close() {
 	x.f.Close()
 	os.Remove(x.path)
 	x.f = nil
+}
+
+func bufioReader(r io.Reader) *bufio.Reader { return bufio.NewReaderSize(r, 1<<20) }
+
+// xRowChunk is how many X records are read before their rows are
+// computed in parallel.
+const xRowChunk = 256
+
+// xRowComputer computes chunks of X rows on several goroutines (the X
+// exact test dominates the cost), each with its own test cache; rows come
+// out in record order, so the output does not depend on threads.
+type xRowComputer struct {
+	threads int
+	sexes   []sexcheck.Sex
+	xcols   bool
+	caches  []*stats.XHWECache
+	chroms  [][]byte
+	recs    []vcfscan.Record
+	calls   [][]vcfscan.Geno
+	rows    [][]byte
+}
+
+func newXRowComputer(threads int, sexes []sexcheck.Sex, xcols bool) *xRowComputer {
+	threads = max(threads, 1)
+	c := &xRowComputer{threads: threads, sexes: sexes, xcols: xcols,
+		chroms: make([][]byte, xRowChunk), recs: make([]vcfscan.Record, xRowChunk),
+		calls: make([][]vcfscan.Geno, xRowChunk), rows: make([][]byte, xRowChunk)}
+	for range threads {
+		c.caches = append(c.caches, stats.NewXHWECache(0))
+	}
+	return c
+}
+
+// compute reads k records and computes their rows into c.rows[:k].
+func (c *xRowComputer) compute(rd *xReader, k int) error {
+	for i := 0; i < k; i++ {
+		if err := rd.next(); err != nil {
+			return fmt.Errorf("reading back X calls: %w", err)
+		}
+		c.chroms[i] = append(c.chroms[i][:0], rd.chrom...)
+		c.recs[i] = vcfscan.Record{Pos: rd.rec.Pos, Ref: append(c.recs[i].Ref[:0], rd.rec.Ref...), Alt: append(c.recs[i].Alt[:0], rd.rec.Alt...)}
+		c.calls[i] = append(c.calls[i][:0], rd.calls...)
+	}
+	var wg sync.WaitGroup
+	for w := 0; w < c.threads; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := w; i < k; i += c.threads {
+				c.rows[i] = stats.AppendXRow(c.rows[i][:0], c.chroms[i], &c.recs[i], c.calls[i], c.sexes, c.caches[w], c.xcols)
+			}
+		}()
+	}
+	wg.Wait()
+	return nil
 }
