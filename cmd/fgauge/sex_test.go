@@ -495,3 +495,18 @@ func TestSexFromPedigree(t *testing.T) {
 		t.Fatal("fixture")
 	}
 }
+
+// TestSexSpeciesHumanUnknownBuild: with --species human and an X length of
+// neither GRCh37 nor GRCh38, no PAR is used and run.json says why.
+func TestSexSpeciesHumanUnknownBuild(t *testing.T) {
+	dir := t.TempDir()
+	c := writeSexCohort(t, dir)
+	out := scanTo(t, c.path, "--species", "human", "--no-roh")
+	js, err := os.ReadFile(filepath.Join(out, "run.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Contains(js, []byte(`X length 2000000 is neither GRCh37`)) || !bytes.Contains(js, []byte(`"regions": []`)) {
+		t.Errorf("run.json does not say that no PAR was used and why")
+	}
+}

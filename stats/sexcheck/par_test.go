@@ -92,3 +92,22 @@ func TestContigKindAt(t *testing.T) {
 		}
 	}
 }
+
+// TestKindByName: the human numbers 23/24/26 name X/Y/MT only when asked
+// (cattle chromosome 23 is an autosome; karyotype numbering from memory,
+// common practice); names do in any species.
+func TestKindByName(t *testing.T) {
+	for _, c := range []struct {
+		name  string
+		human bool
+		want  Kind
+	}{
+		{"X", false, ChromX}, {"chrX", false, ChromX}, {"Y", false, ChromY}, {"MT", false, ChromMT}, {"chrM", false, ChromMT},
+		{"23", false, Autosome}, {"chr23", false, Autosome}, {"24", false, Autosome}, {"26", false, Autosome},
+		{"23", true, ChromX}, {"24", true, ChromY}, {"26", true, ChromMT}, {"22", true, Autosome}, {"1", false, Autosome},
+	} {
+		if got := KindByName(c.name, c.human); got != c.want {
+			t.Errorf("KindByName(%q, %v) = %v, want %v", c.name, c.human, got, c.want)
+		}
+	}
+}
