@@ -79,13 +79,18 @@ func (c *cohort) figSex(v *sexView) (figure, error) {
 		if g != "male" && g != "female" {
 			g = "unknown"
 		}
-		groups[g] = append(groups[g], r)
+		isFlagged := false
 		for _, fl := range c.flags[r] {
 			if fl == "sex_mismatch" || fl == "sex_fits_neither" {
-				flagged = append(flagged, r)
-				break
+				isFlagged = true
 			}
 		}
+		if isFlagged {
+			// drawn last, in their colour, so that they are never hidden
+			flagged = append(flagged, r)
+			g = "flagged " + g
+		}
+		groups[g] = append(groups[g], r)
 	}
 	if f.Total == 0 {
 		f.Empty = noData("sample with an X statistic")
@@ -131,9 +136,12 @@ func (c *cohort) figSex(v *sexView) (figure, error) {
 	if !v.HasGiven {
 		given = "no sex given"
 	}
-	add(groups["male"], glyph(colMale), "given male")
-	add(groups["female"], glyph(colFemale), "given female")
 	add(groups["unknown"], glyph(colNoGiven), given)
+	add(groups["female"], glyph(colFemale), "given female")
+	add(groups["male"], glyph(colMale), "given male")
+	add(groups["flagged unknown"], glyph(colNoGiven), "")
+	add(groups["flagged female"], glyph(colFemale), "")
+	add(groups["flagged male"], glyph(colMale), "")
 	if len(flagged) > 0 {
 		ring := draw.GlyphStyle{Color: colBrick, Radius: vg.Points(4.2), Shape: draw.RingGlyph{}}
 		pts := make(plotter.XYs, 0, len(flagged))
@@ -150,7 +158,10 @@ func (c *cohort) figSex(v *sexView) (figure, error) {
 		}
 		addLabels(p, xs, ys, lab, c.names)
 	}
-	p.Legend.Top = false
+	// The legend sits between the two bands (0.5 < F_X < 0.9), where few
+	// samples fall.
+	p.Legend.Top = true
+	p.Legend.YOffs = -0.2 * plotH
 	p.Y.Min = math.Min(-0.3, p.Y.Min)
 	p.Y.Max = math.Max(1.05, p.Y.Max)
 	f.Caption = fmt.Sprintf("One point per sample, coloured by the sex given (--sex or the pedigree). Males, hemizygous on X, sit near F_X = 1 above the dashed line at %g; females at their X inbreeding, below the dashed line at %g. Rings mark the %d samples flagged sex_mismatch or sex_fits_neither.",
