@@ -271,8 +271,19 @@ func TestSexCheckSimulated(t *testing.T) {
 			if r[col("n_male_ref")] != "NA" {
 				t.Errorf("%s:%s: n_male_ref %s on a row that is not non-PAR X", r[0], r[1], r[col("n_male_ref")])
 			}
-			if r[0] == "Y" && r[col("hwe_p")] != "NA" {
-				t.Errorf("Y row with hwe_p %s", r[col("hwe_p")])
+			if r[0] == "Y" {
+				// Y: haploid calls of the males only, all one allele per site.
+				af, cr := r[col("alt_freq")], r[col("call_rate")]
+				want := "0"
+				if (pos-3_000_000)/1000%3 == 0 {
+					want = "1"
+				}
+				if r[col("hwe_p")] != "NA" || r[col("het_observed")] != "NA" || af != want || r[col("n_haploid")] == "0" {
+					t.Errorf("Y row %d: hwe_p %s, het_observed %s, alt_freq %s (want %s)", pos, r[col("hwe_p")], r[col("het_observed")], af, want)
+				}
+				if v, _ := strconv.ParseFloat(cr, 64); v < 0.45 || v > 0.5 {
+					t.Errorf("Y row %d: call_rate %s, want the males' share (0.5) less missing calls", pos, cr)
+				}
 			}
 			continue
 		}
