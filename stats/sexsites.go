@@ -202,7 +202,7 @@ func appendHaploidRow(b, chrom []byte, rec *vcfscan.Record, cnt *[6]int64, nSel 
 	b = appendFloat(b, p)
 	b = appendFloat(b, maf)
 	b = appendFloat(b, cr)
-	for range 7 { // het_observed .. hwe_p_excess
+	for range 7 { // het_observed .. hwe_p_more_het
 		b = append(b, '\t')
 		b = append(b, numfmt.NA...)
 	}

@@ -100,7 +100,7 @@ func ReadSexSettings(sexFile, par, species string) (SexSettings, error) {
 	}
 	s.PARSource = par
 	if file, ok := strings.CutPrefix(par, "@"); ok {
-		regs, err := vcfscan.ReadRegionsFile(file)
+		regs, err := vcfscan.ReadRegionList(file)
 		if err != nil {
 			return s, err
 		}
