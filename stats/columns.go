@@ -58,7 +58,7 @@ var columns = func() []ColumnDoc {
 		{s, "hwe_midp", "mid-p: hwe_p - P(observed)/2 (Graffelman & Moreno 2013, Stat Appl Genet Mol Biol 12:433); NA with --hwe-method chisq"},
 		{s, "hwe_p_fewer_het", "one-sided p against fewer heterozygotes than Hardy-Weinberg expects: P(n_het <= observed) given the allele counts; chisq method: normal approximation P(Z >= z), z = sign(f)*sqrt(X^2)"},
 		{s, "hwe_p_more_het", "one-sided p against more heterozygotes than Hardy-Weinberg expects: P(n_het >= observed) given the allele counts; chisq method: normal approximation P(Z <= z)"},
-		{s, "n_male_ref", "non-PAR X rows: males' calls of the reference allele (haploid 0 or diploid 0/0: hemizygous whatever the coding); NA on other rows. The four male columns are present when the input header declares an X contig"},
+		{s, "n_male_ref", "non-PAR X rows: males' calls of the reference allele (haploid 0 or diploid 0/0: hemizygous whatever the coding); NA on other rows. The four male columns are present when the input header declares an X contig and, for an indexed input, the index holds records on it"},
 		{s, "n_male_alt", "non-PAR X rows: males' calls of the alternate allele (1 or 1/1); NA on other rows"},
 		{s, "n_male_het_error", "non-PAR X rows: males' heterozygous calls, genotyping errors set to missing (counted in n_missing); NA on other rows"},
 		{s, "n_sex_unknown", "non-PAR X rows: calls of samples of unknown sex (neither given nor inferred), left out of the X test; NA on other rows"},

@@ -158,7 +158,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	if err != nil {
 		return nil, err
 	}
-	if scfg.Sex, err = cfg.Sex.sexConfig(hdr.Samples, samples, hdr.Contigs, cfg.Pedigree, cfg.PedigreeFile); err != nil {
+	if scfg.Sex, err = cfg.Sex.sexConfig(cfg.Input, hdr.Samples, samples, hdr.Contigs, cfg.Pedigree, cfg.PedigreeFile); err != nil {
 		return nil, err
 	}
 	var xd *xDeferral

@@ -2,9 +2,11 @@ package scanrun
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 
 	"fgauge/cmd/fgauge/internal/badinput"
+	"fgauge/cmd/fgauge/internal/plan"
 	"fgauge/stats"
 	"fgauge/stats/pedigree"
 	"fgauge/stats/sexcheck"
@@ -28,7 +30,7 @@ type SexSettings struct {
 // sexConfig resolves the settings against the input's samples and
 // contigs. samplesInFile are all of the input's samples, samples the
 // selected ones.
-func (s *SexSettings) sexConfig(samplesInFile, samples []string, contigs []vcfscan.Contig, ped *pedigree.Pedigree, pedFile string) (stats.SexConfig, error) {
+func (s *SexSettings) sexConfig(input string, samplesInFile, samples []string, contigs []vcfscan.Contig, ped *pedigree.Pedigree, pedFile string) (stats.SexConfig, error) {
 	human := s.Human
 	c := stats.SexConfig{
 		Kind:       func(name string) sexcheck.Kind { return sexcheck.KindByName(name, human) },
@@ -47,11 +49,7 @@ func (s *SexSettings) sexConfig(samplesInFile, samples []string, contigs []vcfsc
 	for _, r := range c.PAR.Regions() {
 		c.PARRegions = append(c.PARRegions, fmt.Sprintf("%s:%d-%d", r.Chrom, r.Start, r.End))
 	}
-	for _, ct := range contigs {
-		if c.Kind(ct.Name) == sexcheck.ChromX {
-			c.XColumns = true
-		}
-	}
+	c.XColumns = xInData(input, contigs, c.Kind)
 	switch {
 	case s.List != nil:
 		m, err := s.List.ForSamples(samplesInFile, sexcheck.AbsentIsError)
@@ -118,4 +116,34 @@ func ReadSexSettings(sexFile, par, species string) (SexSettings, error) {
 		s.PAR = append(s.PAR, r)
 	}
 	return s, nil
+}
+
+// xInData decides whether sites.tsv.gz carries the male-count columns of
+// non-PAR X rows: when the header declares an X contig and, if the input
+// has an index, the index holds records on it. Every shard of one input
+// decides alike (header and index, never the shard's regions), so their
+// tables join.
+func xInData(input string, contigs []vcfscan.Contig, kind func(string) sexcheck.Kind) bool {
+	var xs []string
+	for _, ct := range contigs {
+		if kind(ct.Name) == sexcheck.ChromX {
+			xs = append(xs, ct.Name)
+		}
+	}
+	if len(xs) == 0 {
+		return false
+	}
+	if input == "-" {
+		return true
+	}
+	refs, err := plan.ReadIndexRefs(input, &vcfscan.Header{Contigs: contigs})
+	if err != nil {
+		return true // no usable index: the header decides
+	}
+	for _, r := range refs {
+		if slices.Contains(xs, r.Name) {
+			return true
+		}
+	}
+	return false
 }
