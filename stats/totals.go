@@ -80,6 +80,29 @@ const (
 var lambdaDivisor = distuv.ChiSquared{K: 1}.Quantile(0.5)
 
 func (h *HWESummary) add(r *HWEResult) {
+	pb, cb := hweBins(r)
+	h.addBinned(r, pb, cb)
+}
+
+// hweBins returns the histogram bins of a test's p-value and chi-square
+// statistic (cb is meaningless when ChiSq is NaN).
+func hweBins(r *HWEResult) (pb, cb int32) {
+	pb = int32(pMaxBin)
+	if p := r.P; p > 0 {
+		pb = int32(math.Min(math.Floor(-math.Log10(p)*pBinsPerUnit), pMaxBin))
+		if pb < 0 {
+			pb = 0
+		}
+	}
+	cb = int32(chiZeroBin)
+	if x := r.ChiSq; x > 0 {
+		cb = int32(math.Max(math.Floor((math.Log10(x)-chiMinLog10)*chiBinsPerDec), 0))
+	}
+	return pb, cb
+}
+
+// addBinned is add with the bins of r already computed by hweBins.
+func (h *HWESummary) addBinned(r *HWEResult, pb, cb int32) {
 	h.Tested++
 	p := r.P
 	if p < 1e-3 {
@@ -91,18 +114,7 @@ func (h *HWESummary) add(r *HWEResult) {
 	if p < 1e-10 {
 		h.Below[2]++
 	}
-	pb := int32(pMaxBin)
-	if p > 0 {
-		pb = int32(math.Min(math.Floor(-math.Log10(p)*pBinsPerUnit), pMaxBin))
-		if pb < 0 {
-			pb = 0
-		}
-	}
 	h.PHist[pb]++
-	cb := int32(chiZeroBin)
-	if x := r.ChiSq; x > 0 {
-		cb = int32(math.Max(math.Floor((math.Log10(x)-chiMinLog10)*chiBinsPerDec), 0))
-	}
 	if !math.IsNaN(r.ChiSq) {
 		h.ChiHist[cb]++
 	}

@@ -89,6 +89,7 @@ type Worker struct {
 	contigName func(id int) string
 	t          *Totals
 	cache      *hweCache
+	sites      *siteCache
 	nPop       int
 	tabOf      []int32 // per sample: index into tabs
 	tabs       []siteTab
@@ -116,6 +117,7 @@ type Worker struct {
 func NewWorker(cfg *Config, contigName func(id int) string) *Worker {
 	w := &Worker{cfg: cfg, contigName: contigName, t: newTotals(cfg), lastChrom: -1, deferX: cfg.Sex.DeferX()}
 	w.cache = newHWECache(cfg.HWEMethod == "chisq", 1<<14)
+	w.sites = newSiteCache(1 << 13)
 	w.nPop = len(cfg.PopNames)
 	if cfg.PopOf == nil {
 		w.nPop = 0
@@ -209,16 +211,16 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 		cohortP = float64(n1+2*n2) / float64(2*nCalled)
 	}
 
-	// Site statistics and row.
-	ho, he, fsite, hwe := siteStats(n0, n1, n2, w.cache)
-	if hwe.Computed {
-		t.HWETally.add(&hwe)
+	// Site statistics and row (cached by counts, see siteCache).
+	si := w.site(n0, n1, n2, cnt[vcfscan.HaploidRef]+cnt[vcfscan.HaploidAlt], len(calls))
+	if si.hwe.Computed {
+		t.HWETally.addBinned(&si.hwe, si.pBin, si.chiBin)
 	}
-	if !math.IsNaN(fsite) {
-		t.HWETally.FSite.Add(fsite)
+	if !math.IsNaN(si.fsite) {
+		t.HWETally.FSite.AddSum(si.fsiteFixed)
 		t.HWETally.FSiteN++
 	}
-	w.siteRow(sites, rec, &cnt, len(calls), cohortP, ho, he, fsite, &hwe)
+	w.siteRow(sites, rec, &cnt, si)
 
 	// Populations: per-population rows and sums, WC components.
 	if w.nPop > 0 {
@@ -240,7 +242,7 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 	}
 	switch cfg.Freqs {
 	case FreqCohort:
-		w.tabs[0].fill(cohortP, nCorr(nCalled), base)
+		w.tabs[0] = *si.cohortTab(cohortP, nCalled, base)
 	case FreqPopulation:
 		for k := 0; k < w.nPop; k++ {
 			c := &w.popCnt[k]
@@ -484,7 +486,7 @@ func (w *Worker) blockFor(pos int64) *BlockAcc {
 	return b
 }
 
-func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64, nSel int, p, ho, he, fsite float64, hwe *HWEResult) {
+func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64, si *siteInfo) {
 	if sites == nil {
 		return
 	}
@@ -503,7 +505,21 @@ func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64
 	haploid := cnt[vcfscan.HaploidRef] + cnt[vcfscan.HaploidAlt]
 	b = append(b, '\t')
 	b = strconv.AppendInt(b, haploid, 10)
-	called := cnt[0] + cnt[1] + cnt[2]
+	b = append(b, w.sites.rows[si.rowOff:si.rowEnd]...)
+	if w.cfg.Sex.XColumns {
+		b = append(b, xNA...)
+	}
+	b = append(b, '\n')
+	sites.Write(b)
+	w.scratch = b
+}
+
+// appendSiteFloats appends the float columns of a sites.tsv row, from
+// alt_freq to hwe_p_more_het, each after a tab: all are functions of the
+// site's diploid counts (called of them), its haploid calls (call_rate
+// counts them as calls) and the number of selected samples nSel, so
+// siteCache keeps them formatted under that key.
+func appendSiteFloats(b []byte, called, haploid int64, nSel int, p, ho, he, fsite float64, hwe *HWEResult) []byte {
 	b = appendFloat(b, p)
 	maf := nan
 	if !math.IsNaN(p) {
@@ -522,12 +538,7 @@ func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64
 	b = appendFloat(b, hwe.MidP)
 	b = appendFloat(b, hwe.Deficit)
 	b = appendFloat(b, hwe.Excess)
-	if w.cfg.Sex.XColumns {
-		b = append(b, xNA...)
-	}
-	b = append(b, '\n')
-	sites.Write(b)
-	w.scratch = b
+	return b
 }
 
 // appendFloat appends a tab and x in shortest round-trip form, or NA.
