@@ -30,10 +30,6 @@ type chromData struct {
 	plSite []int32
 	pl     [][]uint8 // nil until a site with likelihoods is seen
 	nPL    int32
-	stage  []uint64 // per sample, the calls of the current block of 32 sites (Collector only)
-	// per sample, the likelihoods of the current block of plBlock sites
-	// with likelihoods (Collector only)
-	stagePL []uint8
 
 	// built before detection, shared read-only by workers
 	emit  []float32 // 8 per site: see emissionRow
@@ -76,43 +72,3 @@ var unpackByte = func() (t [256]uint32) {
 	}
 	return
 }()
-
-// flushStage appends the staged block of calls to each sample's words.
-// Sites already in geno are those of whole earlier blocks, so the staged
-// block is always the next word.
-func (ch *chromData) flushStage() {
-	if ch.stage == nil || len(ch.pos) == 0 {
-		return
-	}
-	if len(ch.geno) > 0 && len(ch.geno[0]) == (len(ch.pos)+31)/32 {
-		return // already flushed
-	}
-	for s, v := range ch.stage {
-		ch.geno[s] = append(ch.geno[s], v)
-		ch.stage[s] = 0
-	}
-}
-
-// plBlock is the number of sites with likelihoods staged per sample before
-// they are appended to the per-sample slices.
-const plBlock = 32
-
-// flushStagePL appends the staged likelihoods (the sites with likelihoods
-// not yet in ch.pl) to each sample's slice.
-func (ch *chromData) flushStagePL() {
-	if ch.stagePL == nil {
-		return
-	}
-	ns := len(ch.pl)
-	have := 0
-	if ns > 0 {
-		have = len(ch.pl[0]) / 3
-	}
-	k := int(ch.nPL) - have // staged sites, at most plBlock
-	if k <= 0 {
-		return
-	}
-	for s := 0; s < ns; s++ {
-		ch.pl[s] = append(ch.pl[s], ch.stagePL[s*plBlock*3:s*plBlock*3+3*k]...)
-	}
-}

@@ -112,10 +112,16 @@ func ClassColumn(mb float64) string {
 }
 
 func fmtF(x float64) string {
+	return string(appendF(nil, x))
+}
+
+// appendF appends x as fmtF writes it: the shortest decimal that reads
+// back as x, or NA when x is not finite.
+func appendF(b []byte, x float64) []byte {
 	if math.IsNaN(x) || math.IsInf(x, 0) {
-		return "NA"
+		return append(b, "NA"...)
 	}
-	return strconv.FormatFloat(x, 'g', -1, 64)
+	return strconv.AppendFloat(b, x, 'g', -1, 64)
 }
 
 // WriteRuns writes runs.tsv: a header line and one line per run, grouped
@@ -157,7 +163,7 @@ func (r *Result) WriteRuns(w io.Writer) error {
 			buf = append(buf, '\t')
 			buf = strconv.AppendInt(buf, run.LengthBP(), 10)
 			buf = append(buf, '\t')
-			buf = append(buf, fmtF(lcm)...)
+			buf = appendF(buf, lcm)
 			buf = append(buf, '\t')
 			buf = strconv.AppendInt(buf, int64(run.NSites), 10)
 			buf = append(buf, '\t')
@@ -165,9 +171,9 @@ func (r *Result) WriteRuns(w io.Writer) error {
 			buf = append(buf, '\t')
 			buf = strconv.AppendInt(buf, int64(run.NMissing), 10)
 			buf = append(buf, '\t')
-			buf = append(buf, fmtF(run.Quality)...)
+			buf = appendF(buf, run.Quality)
 			buf = append(buf, '\t')
-			buf = append(buf, fmtF(gen)...)
+			buf = appendF(buf, gen)
 			buf = append(buf, '\n')
 			if _, err := bw.Write(buf); err != nil {
 				return fmt.Errorf("writing runs: %w", err)
