@@ -62,7 +62,14 @@ func wholeChrom(tb testing.TB, bs []*vcfscan.Batch, fs [][]float64, ns int) *chr
 			tb.Fatal(err)
 		}
 	}
-	ch := p.byID[0]
+	if err := p.finish(); err != nil {
+		tb.Fatal(err)
+	}
+	defer p.Close()
+	ch, err := p.col.chroms[0].materialize()
+	if err != nil {
+		tb.Fatal(err)
+	}
 	ch.name = "1"
 	return ch
 }

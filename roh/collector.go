@@ -47,6 +47,7 @@ type Collector struct {
 
 	finished bool
 	whole    bool // tests: the whole-chromosome passes for the fixed HMM too
+	raw      bool // PieceCollector: keep every contig's windows, detect nothing
 }
 
 // NewCollector starts cfg.Threads detection workers for the given samples
@@ -83,7 +84,7 @@ func NewCollector(cfg *Config, samples []string, contigs []vcfscan.Contig) (*Col
 
 // setGeometry fixes the window layout from the sample count and budget.
 func (c *Collector) setGeometry() {
-	hmm := c.cfg.Method == MethodHMM && !c.cfg.Fit && !c.whole
+	hmm := c.cfg.Method == MethodHMM && !c.cfg.Fit && !c.whole && !c.raw
 	c.geo = newGeometry(len(c.samples), c.cfg.MemoryBudget, hmm)
 	c.mem = memBudget{limit: c.cfg.MemoryBudget, reserve: 6 * c.geo.bytes(false)}
 }
@@ -295,7 +296,7 @@ func (c *Collector) switchChrom(id int, line int64) error {
 	if c.done[id] {
 		return c.parseErr(line, "CHROM", fmt.Sprintf("chromosome %s seen again after another", c.contigName(id)), vcfscan.ErrUnsorted)
 	}
-	if !c.isAutosome(id) {
+	if !c.raw && !c.isAutosome(id) {
 		c.curSkip = id
 		return nil
 	}

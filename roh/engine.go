@@ -149,8 +149,10 @@ type chromRun struct {
 }
 
 func (c *Collector) newChromRun(id int) *chromRun {
-	r := &chromRun{c: c, id: id, name: c.contigs[id].Name, length: c.contigs[id].Length,
-		in: make(chan *window, 1), done: make(chan struct{}), mapSource: "cm_per_mb"}
+	r := &chromRun{c: c, id: id, name: c.contigName(id), in: make(chan *window, 1), done: make(chan struct{}), mapSource: "cm_per_mb"}
+	if id < len(c.contigs) {
+		r.length = c.contigs[id].Length
+	}
 	if m := c.cfg.Map.chrom(r.name); m != nil && len(m.Pos) > 0 {
 		r.cmMap, r.mapSource = m, "genetic_map"
 	}
@@ -188,8 +190,10 @@ func (r *chromRun) run() {
 			for range r.in {
 			}
 		}
-		r.releaseAll()
-		r.spill.close()
+		if !c.raw || c.failed() {
+			r.releaseAll()
+			r.spill.close()
+		}
 	}()
 	ns := c.geo.ns
 	if c.geo.hmm {
@@ -214,7 +218,7 @@ func (r *chromRun) run() {
 			c.setErr(err)
 		}
 	}
-	if c.failed() || ns == 0 || len(r.wins) == 0 {
+	if c.raw || c.failed() || ns == 0 || len(r.wins) == 0 {
 		return
 	}
 	r.perSample = make([][]Run, ns)

@@ -68,18 +68,22 @@ func denseCohort(seed uint64, nSamples, nSites int) ([]vcfscan.Contig, []site) {
 	return contigs, sites
 }
 
-// withPL gives every third record likelihoods consistent with its calls.
+// withPL gives two records in three likelihoods consistent with their
+// calls, as a function of the position and sample only (so that any
+// batching of the same sites gives the same likelihoods).
 func withPL(bs []*vcfscan.Batch) {
 	for _, b := range bs {
+		ns := b.NSamples
 		b.PL = make([]uint16, 3*len(b.GT))
 		b.HasPL = make([]bool, len(b.Records))
-		for r := range b.HasPL {
-			b.HasPL[r] = r%3 != 0
-		}
-		for x, g := range b.GT {
-			for h := 0; h < 3; h++ {
-				if g < 3 && int(g) != h {
-					b.PL[3*x+h] = uint16(5 + 13*x%37)
+		for r, rec := range b.Records {
+			b.HasPL[r] = rec.Pos%3 != 0
+			for s := 0; s < ns; s++ {
+				g := b.GT[r*ns+s]
+				for h := 0; h < 3; h++ {
+					if g < 3 && int(g) != h {
+						b.PL[3*(r*ns+s)+h] = uint16(5 + (int(rec.Pos)/7+13*s)%37)
+					}
 				}
 			}
 		}
@@ -186,48 +190,93 @@ func firstDiff(a, b string) string {
 	return "lengths differ"
 }
 
-// Pieces of chromosomes cut at arbitrary sites, joined under a tiny
-// budget (spilling), give the runs of one pass, for both detectors.
+// Pieces of chromosomes cut at arbitrary sites, kept under a tiny budget
+// (spilling) and joined under a tiny budget, give the runs of one pass,
+// for both detectors, with and without likelihoods, whether the pieces
+// are handed over in memory (Pieces, JoinAndDetect) or through pieces
+// files (WritePieces, OpenPieces, JoinAndDetectPieces).
 func TestJoinSpilledMatchesWhole(t *testing.T) {
 	const ns = 6
 	contigs, sites := denseCohort(4, ns, 2500)
-	for _, method := range []string{MethodHMM, MethodRules} {
+	for _, tc := range []struct {
+		method string
+		pl     bool
+	}{{MethodHMM, false}, {MethodRules, false}, {MethodHMM, true}} {
 		cfg := DefaultConfig()
-		cfg.Method = method
-		bs, fs := batches(sites, ns, 500)
+		cfg.Method = tc.method
+		mk := func(ss []site, size int) ([]*vcfscan.Batch, [][]float64) {
+			bs, fs := batches(ss, ns, size)
+			if tc.pl {
+				withPL(bs)
+			}
+			return bs, fs
+		}
+		bs, fs := mk(sites, 500)
 		want, _ := runCollector(t, cfg, ns, contigs, bs, fs, false)
+		small := *cfg
+		small.MemoryBudget = 1
+		small.TempDir = t.TempDir()
 		// three shards: cut inside chromosome 1 and inside chromosome 2
 		cuts := []int{0, 1234, 2500 + 777, len(sites)}
 		var groups [2][]Piece
+		var refs [2][]PieceRef
 		for k := 0; k+1 < len(cuts); k++ {
-			p, err := NewPieceCollector(cfg, ns)
-			if err != nil {
-				t.Fatal(err)
-			}
-			pb, pf := batches(sites[cuts[k]:cuts[k+1]], ns, 300)
-			for i, b := range pb {
-				if err := p.AddBatch(b, pf[i]); err != nil {
+			for _, viaFile := range []bool{false, true} {
+				p, err := NewPieceCollector(&small, ns)
+				if err != nil {
 					t.Fatal(err)
 				}
-			}
-			pieces, _ := p.Pieces(contigs)
-			for _, pc := range pieces {
-				i := 0
-				if pc.Name == "2" {
-					i = 1
+				// batch size 300 so that PL batches vary
+				pb, pf := mk(sites[cuts[k]:cuts[k+1]], 300)
+				for i, b := range pb {
+					if err := p.AddBatch(b, pf[i]); err != nil {
+						t.Fatal(err)
+					}
 				}
-				groups[i] = append(groups[i], pc)
+				if !viaFile {
+					pieces, _ := p.Pieces(contigs)
+					if err := p.Err(); err != nil {
+						t.Fatal(err)
+					}
+					for _, pc := range pieces {
+						i := 0
+						if pc.Name == "2" {
+							i = 1
+						}
+						groups[i] = append(groups[i], pc)
+					}
+					continue
+				}
+				var buf bytes.Buffer
+				if _, err := p.WritePieces(&buf, contigs); err != nil {
+					t.Fatal(err)
+				}
+				set, err := OpenPieces(bytes.NewReader(buf.Bytes()), int64(buf.Len()), "shard")
+				if err != nil {
+					t.Fatal(err)
+				}
+				for j, info := range set.Pieces() {
+					i := 0
+					if info.Name == "2" {
+						i = 1
+					}
+					refs[i] = append(refs[i], PieceRef{set, j})
+				}
 			}
 		}
-		c := *cfg
-		c.MemoryBudget = 1
-		c.TempDir = t.TempDir()
-		got, err := JoinAndDetect(&c, sampleNames(ns), groups[:])
+		got, err := JoinAndDetect(&small, sampleNames(ns), groups[:])
 		if err != nil {
 			t.Fatal(err)
 		}
 		if g, w := runsText(got), runsText(want); g != w {
-			t.Errorf("%s: joined pieces differ from one pass:\n%s", method, firstDiff(g, w))
+			t.Errorf("%s pl %v: joined pieces differ from one pass:\n%s", tc.method, tc.pl, firstDiff(g, w))
+		}
+		got, err = JoinAndDetectPieces(&small, sampleNames(ns), refs[:])
+		if err != nil {
+			t.Fatal(err)
+		}
+		if g, w := runsText(got), runsText(want); g != w {
+			t.Errorf("%s pl %v: joined pieces files differ from one pass:\n%s", tc.method, tc.pl, firstDiff(g, w))
 		}
 	}
 }

@@ -2,7 +2,6 @@ package roh
 
 import (
 	"fmt"
-	"math"
 
 	"fgauge/vcfscan"
 )
@@ -24,118 +23,6 @@ type Piece struct {
 	// -1; PL holds per sample 3 capped phred values per site with likelihoods.
 	PLSite []int32
 	PL     [][]uint8
-}
-
-// PieceCollector keeps the raw per-site data of chromosomes that a shard
-// holds only in part. Contig names are resolved only in Pieces, so that
-// contigs first met in records (appended to the header while reading) need
-// no shared list during reading. It is used from one goroutine.
-type PieceCollector struct {
-	auto     autosomeSet
-	nSamples int
-	byID     map[int]*chromData
-	order    []int
-}
-
-// NewPieceCollector returns a collector for nSamples samples with the
-// autosome rules of cfg (validated on a copy).
-func NewPieceCollector(cfg *Config, nSamples int) (*PieceCollector, error) {
-	c := *cfg
-	if err := c.Validate(); err != nil {
-		return nil, err
-	}
-	return &PieceCollector{auto: c.autosomes(), nSamples: nSamples, byID: map[int]*chromData{}}, nil
-}
-
-// AddBatch keeps every record of b, which must come in input order like
-// the batches of Collector.AddBatch; freqs has the same meaning.
-func (p *PieceCollector) AddBatch(b *vcfscan.Batch, freqs []float64) error {
-	if b.NSamples != p.nSamples {
-		return fmt.Errorf("roh: batch has %d samples, collector %d: %w", b.NSamples, p.nSamples, vcfscan.ErrSampleCount)
-	}
-	ns := b.NSamples
-	for i := range b.Records {
-		rec := &b.Records[i]
-		ch := p.byID[rec.ChromID]
-		if ch == nil {
-			ch = newChromData(rec.ChromID, "", 0, ns)
-			p.byID[rec.ChromID] = ch
-			p.order = append(p.order, rec.ChromID)
-		}
-		if n := len(ch.pos); n > 0 && rec.Pos < ch.pos[n-1] {
-			return fmt.Errorf("roh: position %d after %d on contig %d: %w", rec.Pos, ch.pos[n-1], rec.ChromID, vcfscan.ErrUnsorted)
-		}
-		calls := b.GT[i*ns : (i+1)*ns]
-		f := math.NaN()
-		if freqs != nil {
-			f = freqs[i]
-		}
-		if f != f {
-			f = cohortFreq(calls)
-		}
-		var pl []uint16
-		if b.PL != nil && i < len(b.HasPL) && b.HasPL[i] {
-			pl = b.PL[3*i*ns : 3*(i+1)*ns]
-		}
-		ch.appendSite(rec.Pos, f, calls, pl)
-	}
-	return nil
-}
-
-// appendSite adds one site, packing the calls as Collector.AddBatch does.
-func (ch *chromData) appendSite(pos int64, f float64, calls []vcfscan.Geno, pl []uint16) {
-	t := len(ch.pos)
-	ch.pos = append(ch.pos, pos)
-	ch.freq = append(ch.freq, f)
-	sh := uint(t&31) * 2
-	if sh == 0 {
-		for s := range ch.geno {
-			ch.geno[s] = append(ch.geno[s], 0)
-		}
-	}
-	w := t >> 5
-	for s, g := range calls {
-		if g > 3 {
-			g = 3
-		}
-		ch.geno[s][w] |= uint64(g) << sh
-	}
-	if pl == nil {
-		ch.plSite = append(ch.plSite, -1)
-		return
-	}
-	if ch.pl == nil {
-		ch.pl = make([][]uint8, len(ch.geno))
-	}
-	for s := range ch.geno {
-		ch.pl[s] = append(ch.pl[s], cap255(pl[3*s]), cap255(pl[3*s+1]), cap255(pl[3*s+2]))
-	}
-	ch.plSite = append(ch.plSite, ch.nPL)
-	ch.nPL++
-}
-
-// Pieces names the kept chromosomes from contigs (the reader's final
-// list) and returns the autosomal ones in the order they were first met,
-// and the records of the others counted by contig name, as the Collector
-// counts them.
-func (p *PieceCollector) Pieces(contigs []vcfscan.Contig) ([]Piece, map[string]int64) {
-	out := make([]Piece, 0, len(p.order))
-	excluded := map[string]int64{}
-	for _, id := range p.order {
-		ch := p.byID[id]
-		name := fmt.Sprintf("contig_%d", id)
-		var length int64
-		if id >= 0 && id < len(contigs) {
-			name, length = contigs[id].Name, contigs[id].Length
-		}
-		if !p.auto.is(name) {
-			excluded[name] += int64(len(ch.pos))
-			continue
-		}
-		out = append(out, Piece{Name: name, Length: length, Pos: ch.pos, Freq: ch.freq,
-			Geno: ch.geno, PLSite: ch.plSite, PL: ch.pl})
-	}
-	return out, excluded
 }
 
 // JoinAndDetect joins the pieces of each chromosome (given per chromosome

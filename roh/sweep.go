@@ -356,7 +356,6 @@ func (g geometry) posteriorSample(w *window, tab *siteTable, sc *sweepScratch, f
 		if p == nil {
 			p, gm = g.products(w, tab, s, &sc.ps1)
 		}
-		code := func(lt int) uint64 { return gw[lt>>5] >> (2 * uint(lt&31)) & gm }
 		// forward values over [lo, la]
 		sc.alpha = grow(sc.alpha, 2*blockSites)
 		al := sc.alpha
@@ -371,9 +370,9 @@ func (g geometry) posteriorSample(w *window, tab *siteTable, sc *sweepScratch, f
 			a, b = ckF[2*j], ckF[2*j+1]
 		}
 		for lt := from; lt <= la; lt++ {
-			c := 4 * code(lt)
-			q := (*[4]float64)(p[lt][c : c+4])
-			a, b = a*q[0]+b*q[1], a*q[2]+b*q[3]
+			c := 4 * (gw[lt>>5] >> (2 * uint(lt&31)) & gm)
+			q := &p[lt]
+			a, b = a*q[c]+b*q[c+1], a*q[c+2]+b*q[c+3]
 			if lt%rescaleEvery == 0 {
 				inv := 1 / (a + b)
 				a, b = a*inv, b*inv
@@ -384,35 +383,40 @@ func (g geometry) posteriorSample(w *window, tab *siteTable, sc *sweepScratch, f
 		sc.post = grow(sc.post, blockSites)
 		post := sc.post
 		ba, bn := ckB[2*j], ckB[2*j+1]
-		isA := func(lt int) bool { return path[2*(lt>>6)]>>uint(lt&63)&1 != 0 }
-		if isA(hi - 1) {
+		if path[2*((hi-1)>>6)]>>uint((hi-1)&63)&1 != 0 {
 			pp, qq := al[2*(hi-1-lo)]*ba, al[2*(hi-1-lo)+1]*bn
 			post[hi-1-lo] = pp / (pp + qq)
 		}
 		for lt := hi - 1; lt > fa; lt-- {
-			c := 4 * code(lt)
-			q := (*[4]float64)(p[lt][c : c+4])
-			ba, bn = q[0]*ba+q[2]*bn, q[1]*ba+q[3]*bn
+			c := 4 * (gw[lt>>5] >> (2 * uint(lt&31)) & gm)
+			q := &p[lt]
+			ba, bn = q[c]*ba+q[c+2]*bn, q[c+1]*ba+q[c+3]*bn
 			if lt%rescaleEvery == 0 {
 				inv := 1 / (ba + bn)
 				ba, bn = ba*inv, bn*inv
 			}
-			if isA(lt - 1) {
+			if path[2*((lt-1)>>6)]>>uint((lt-1)&63)&1 != 0 {
 				pp, qq := al[2*(lt-1-lo)]*ba, al[2*(lt-1-lo)+1]*bn
 				post[lt-1-lo] = pp / (pp + qq)
 			}
 		}
 		if postHook != nil {
 			for lt := fa; lt <= la; lt++ {
-				if isA(lt) {
+				if path[2*(lt>>6)]>>uint(lt&63)&1 != 0 {
 					postHook(s, w.t0+lt, post[lt-lo])
 				}
 			}
 		}
 		// runs, as hmmRuns
-		for lt := lo; lt < hi; lt++ {
-			if !isA(lt) {
+		if fa > lo {
+			acc.close(out)
+		}
+		for lt := fa; lt < hi; lt++ {
+			if path[2*(lt>>6)]>>uint(lt&63)&1 == 0 {
 				acc.close(out)
+				if lt > la {
+					break
+				}
 				continue
 			}
 			pos := w.pos[lt]
@@ -421,7 +425,7 @@ func (g geometry) posteriorSample(w *window, tab *siteTable, sc *sweepScratch, f
 			}
 			acc.open = true
 			acc.lastPos = pos
-			c := g.code(w, s, lt)
+			c := uint8(gw[lt>>5]>>(2*uint(lt&31))) & 3
 			if !acc.has {
 				if c == 3 {
 					continue
