@@ -97,7 +97,7 @@ func benchWindow(tb testing.TB, ns int) (geometry, *window, *siteTable, []hmmSta
 	}
 	var tab siteTable
 	tab.size(w.n)
-	tab.buildSites(w, DefaultConfig(), 0, w.n)
+	tab.buildSites(w, DefaultConfig(), 0, w.n, false)
 	st := make([]hmmState, ns)
 	for s := range st {
 		st[s] = hmmState{a: 0.05, b: 0.95, va: 0.05, vn: 0.95, ba: 1, bn: 1, st: stN}
@@ -116,7 +116,7 @@ func BenchmarkSweeps(b *testing.B) {
 	b.Run("table", func(b *testing.B) {
 		c0 := cpuSeconds()
 		for i := 0; i < b.N; i++ {
-			tab.buildSites(w, DefaultConfig(), 0, w.n)
+			tab.buildSites(w, DefaultConfig(), 0, w.n, false)
 		}
 		b.ReportMetric((cpuSeconds()-c0)*1e9/float64(b.N)/float64(w.n), "cpu_ns/site")
 	})

@@ -2,23 +2,16 @@ package roh
 
 import "encoding/binary"
 
-// chromData holds what detection needs of one chromosome: per-site
-// positions and allele frequencies, and per-sample genotypes packed 2 bits
-// per call (32 calls per uint64), sample-major so that a worker walks one
-// sample's calls contiguously. Phred likelihoods, where present, take 3
-// bytes per call (capped at 255) in a per-sample slice indexed by
-// plSite.
-//
-// Memory bound for one chromosome of S sites and N samples while it is
-// collected: N*S/4 bytes of genotypes (up to twice that transiently while
-// the per-sample slices grow) + 3*N bytes per site with likelihoods + 20*S
-// bytes of per-site data; while it is detected, another 48*S bytes of
-// shared tables and 84*S bytes per worker (two samples at a time; 50*S
-// with Fit or likelihoods, one sample at a time). At most two
-// chromosomes are held at once: the one being read and the one being
-// detected. BenchmarkCollect measures 0.36 heap bytes per sample-site at
-// 1,000 samples and 20,000 sites (0.25 packed, the rest slice growth and
-// per-site data).
+// chromData holds one whole chromosome for the detectors that need it
+// whole (the rules, the fitted HMM; see chromRun.materialize): per-site
+// positions and allele frequencies, and per-sample genotypes packed 2
+// bits per call (32 calls per uint64), sample-major so that a worker walks
+// one sample's calls contiguously. Phred likelihoods, where present, take
+// 3 bytes per call (capped at 255) in a per-sample slice indexed by
+// plSite. For S sites and N samples it takes N*S/4 bytes of genotypes,
+// 3*N bytes per site with likelihoods, 20*S bytes of per-site data, and
+// while it is detected another 48*S bytes of shared tables and 50*S bytes
+// per worker.
 type chromData struct {
 	id     int
 	name   string

@@ -205,7 +205,8 @@ func (r *chromRun) run() {
 			continue
 		}
 		if c.geo.hmm && ns > 0 {
-			r.buildTable(w)
+			w.u = w.u[:w.n]
+			r.buildTable(w, false)
 			c.parallel(c.chunks(ns), func(sc *workScratch, i int) {
 				s0, s1 := c.chunk(i, ns)
 				for s := s0; s < s1; s += 2 {
@@ -251,7 +252,7 @@ func (c *Collector) chunk(i, ns int) (int, int) {
 
 // buildTable fills r.tab for window w, split over the workers for long
 // windows.
-func (r *chromRun) buildTable(w *window) {
+func (r *chromRun) buildTable(w *window, haveU bool) {
 	r.tab.size(w.n)
 	parts := 1
 	if w.n >= 1024 {
@@ -259,7 +260,7 @@ func (r *chromRun) buildTable(w *window) {
 	}
 	r.c.parallel(parts, func(sc *workScratch, i int) {
 		lo, hi := i*w.n/parts, (i+1)*w.n/parts
-		r.tab.buildSites(w, &r.c.cfg, lo, hi)
+		r.tab.buildSites(w, &r.c.cfg, lo, hi, haveU)
 	})
 }
 
@@ -302,6 +303,9 @@ func (r *chromRun) load(k int) (*window, error) {
 	b := r.c.getWindow()
 	b.k, b.t0, b.n, b.nPL, b.cmPrev, b.off = w.k, w.t0, w.n, w.nPL, w.cmPrev, w.off
 	b.pos, b.freq, b.cm, b.plSite = b.pos[:w.n], b.freq[:w.n], b.cm[:w.n], b.plSite[:w.n]
+	if g.hmm {
+		b.u = b.u[:w.n]
+	}
 	if w.nPL > 0 {
 		g.allocPL(b)
 	}
@@ -367,7 +371,7 @@ func (r *chromRun) sweeps() error {
 		if err != nil {
 			return err
 		}
-		r.buildTable(w)
+		r.buildTable(w, true)
 		c.parallel(c.chunks(ns), func(sc *workScratch, i int) {
 			s0, s1 := c.chunk(i, ns)
 			for s := s0; s < s1; s += 2 {
@@ -391,7 +395,9 @@ func (r *chromRun) sweeps() error {
 		if err != nil {
 			return err
 		}
-		r.buildTable(w)
+		if g.anyAutozygous(w) {
+			r.buildTable(w, true)
+		}
 		c.parallel(c.chunks(ns), func(sc *workScratch, i int) {
 			s0, s1 := c.chunk(i, ns)
 			for s := s0; s < s1; s++ {

@@ -44,15 +44,19 @@ type siteTable struct {
 	prod []siteProducts
 }
 
-// buildSites fills the table for window sites [lo, hi).
-func (tab *siteTable) buildSites(w *window, cfg *Config, lo, hi int) {
+// buildSites fills the table for window sites [lo, hi), computing the
+// switch weights into w.u unless haveU (they are kept with the window
+// after sweep 1, sparing an exponential per site in sweeps 2 and 3).
+func (tab *siteTable) buildSites(w *window, cfg *Config, lo, hi int, haveU bool) {
 	f, a, e := cfg.AutozygousPrior, cfg.Rate, cfg.GenotypeError
 	for lt := lo; lt < hi; lt++ {
 		row := tab.rows[8*lt : 8*lt+8 : 8*lt+8]
 		emissionRow(row, w.freq[lt], e)
 		// as switchWeights: u = 1 - exp(-a*d), 0 before the first site
 		u := 0.0
-		if w.t0+lt > 0 {
+		if haveU {
+			u = w.u[lt]
+		} else if w.t0+lt > 0 {
 			prev := w.cmPrev
 			if lt > 0 {
 				prev = w.cm[lt-1]
@@ -63,6 +67,7 @@ func (tab *siteTable) buildSites(w *window, cfg *Config, lo, hi int) {
 			}
 			u = -math.Expm1(-a * d)
 		}
+		w.u[lt] = u
 		an, na := u*(1-f), u*f
 		sa, sn := 1-an, 1-na
 		tr := tab.tr[4*lt : 4*lt+4 : 4*lt+4]
@@ -220,7 +225,7 @@ func (g geometry) forwardPair(w *window, tab *siteTable, sc *sweepScratch, f flo
 			if lt%rescaleEvery == 0 { // w.t0 is a multiple of rescaleEvery
 				inv1, inv2 := 1/(a1+b1), 1/(a2+b2)
 				a1, b1, a2, b2 = a1*inv1, b1*inv1, a2*inv2, b2*inv2
-				inv1, inv2 = 1/max(va1, vn1), 1/max(va2, vn2)
+				inv1, inv2 = 1/maxNonNeg(va1, vn1), 1/maxNonNeg(va2, vn2)
 				va1, vn1, va2, vn2 = va1*inv1, vn1*inv1, va2*inv2, vn2*inv2
 			}
 		}
@@ -449,4 +454,12 @@ func (g geometry) posteriorSample(w *window, tab *siteTable, sc *sweepScratch, f
 			}
 		}
 	}
+}
+
+// maxNonNeg is max for non-negative numbers (not NaN), by their bit
+// patterns, whose order as integers is the order of the values: cheaper
+// than the built-in max, which must also order NaN and signed zeros.
+func maxNonNeg(a, b float64) float64 {
+	x, y := int64(math.Float64bits(a)), int64(math.Float64bits(b))
+	return math.Float64frombits(uint64(x ^ ((x ^ y) & ((x - y) >> 63))))
 }

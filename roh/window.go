@@ -34,7 +34,7 @@ type geometry struct {
 // window at most a sixteenth of the budget (two or three windows are in
 // flight while the others wait on disk).
 func windowSites(ns int, budget int64) int {
-	perSite := int64(ns)*5/8 + 28 + 16
+	perSite := int64(ns)*5/8 + 36 + 16
 	w := budget / 16 / perSite
 	w = w / blockSites * blockSites
 	return int(min(max(w, blockSites), maxWindowSites))
@@ -58,7 +58,8 @@ type window struct {
 	pos    []int64
 	freq   []float64
 	cm     []float64
-	plSite []int32 // per site: index of its likelihood triple among this window's, or -1
+	u      []float64 // HMM: switch weight before each site (see switchWeights), set by sweep 1
+	plSite []int32   // per site: index of its likelihood triple among this window's, or -1
 
 	geno []uint64  // ns*ww: calls, sample s at [s*ww, (s+1)*ww)
 	pl   []uint8   // ns*3*w when nPL > 0: sample s at [3*w*s, 3*w*(s+1))
@@ -78,6 +79,7 @@ func (g geometry) alloc(w *window) {
 	w.plSite = make([]int32, 0, g.w)
 	w.geno = make([]uint64, g.ns*g.ww)
 	if g.hmm {
+		w.u = make([]float64, g.w)
 		w.bp = make([]uint64, g.ns*g.ww)
 		w.ckF = make([]float64, g.ns*g.nb*2)
 		w.ckB = make([]float64, g.ns*g.nb*2)
@@ -97,7 +99,7 @@ func (g geometry) allocPL(w *window) {
 func (g geometry) bytes(pl bool) int64 {
 	b := int64(g.w)*28 + int64(g.ns*g.ww)*8
 	if g.hmm {
-		b += int64(g.ns*g.ww)*8 + int64(g.ns*g.nb)*32
+		b += int64(g.w)*8 + int64(g.ns*g.ww)*8 + int64(g.ns*g.nb)*32
 	}
 	if pl {
 		b += int64(3 * g.w * g.ns)
@@ -116,7 +118,7 @@ func (w *window) reset(k, t0 int, cmPrev float64) {
 // drop forgets a window's buffers (its data are on disk, or no longer
 // needed).
 func (w *window) drop() {
-	w.pos, w.freq, w.cm, w.plSite, w.geno, w.pl, w.bp, w.ckF, w.ckB = nil, nil, nil, nil, nil, nil, nil, nil, nil
+	w.pos, w.freq, w.cm, w.u, w.plSite, w.geno, w.pl, w.bp, w.ckF, w.ckB = nil, nil, nil, nil, nil, nil, nil, nil, nil, nil
 }
 
 // code returns sample s's call at window site lt.
@@ -145,7 +147,7 @@ func asBytes[T int64 | uint64 | float64 | int32 | uint8](s []T) []byte {
 func (g geometry) sections(w *window) [][]byte {
 	s := [][]byte{asBytes(w.geno)}
 	if g.hmm {
-		s = append(s, asBytes(w.bp), asBytes(w.ckF), asBytes(w.ckB))
+		s = append(s, asBytes(w.bp), asBytes(w.ckF), asBytes(w.ckB), asBytes(w.u[:w.n]))
 	}
 	s = append(s, asBytes(w.pos[:w.n]), asBytes(w.freq[:w.n]), asBytes(w.cm[:w.n]), asBytes(w.plSite[:w.n]))
 	if w.nPL > 0 {
@@ -156,3 +158,22 @@ func (g geometry) sections(w *window) [][]byte {
 
 // maxWindowSites caps W.
 var maxWindowSites int64 = 1024
+
+// anyAutozygous tells whether some sample's path (after sweep 2) has an
+// autozygous site in window w.
+func (g geometry) anyAutozygous(w *window) bool {
+	words := (w.n + 63) / 64
+	for s := 0; s < g.ns; s++ {
+		p := w.bp[s*g.ww : (s+1)*g.ww]
+		for m := 0; m < words; m++ {
+			x := p[2*m]
+			if r := w.n - 64*m; r < 64 {
+				x &= 1<<uint(r) - 1
+			}
+			if x != 0 {
+				return true
+			}
+		}
+	}
+	return false
+}
