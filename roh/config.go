@@ -71,7 +71,7 @@ type Config struct {
 
 	// MemoryBudget bounds, in bytes, the memory held for the chromosomes
 	// in detection (calls, per-site data and tables, sweep checkpoints):
-	// about N*5/8 + 44 bytes a site for N samples with the HMM, N/4 + 28
+	// about N*3/4 + 52 bytes a site for N samples with the HMM, N/4 + 28
 	// with the rules, plus 3*N where likelihoods are stored. Beyond it,
 	// windows of sites are written to a temporary file in TempDir and read
 	// back twice; results do not change. 0 means DefaultMemoryBudget. The

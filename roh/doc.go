@@ -32,8 +32,8 @@
 //
 // Memory is bounded by Config.MemoryBudget (DefaultMemoryBudget, 256 MiB,
 // when 0) whatever the chromosome length and the cohort size: windows
-// take about N*5/8 + 44 bytes a site for N samples with the HMM (calls,
-// Viterbi flags, forward and backward checkpoints every 256 sites,
+// take about N*3/4 + 52 bytes a site for N samples with the HMM (calls,
+// Viterbi flags, forward and backward checkpoints every 128 sites,
 // per-site data), and those beyond the budget go to an unlinked temporary
 // file in Config.TempDir, written once and read back twice. Results do
 // not depend on the budget. Pieces of split chromosomes (PieceCollector)

@@ -315,6 +315,23 @@ func TestSpillLeavesNothing(t *testing.T) {
 	if _, err := c.Finish(); err == nil {
 		t.Errorf("Finish after Close: want an error")
 	}
+	// the same for pieces, closed without being taken
+	p, err := NewPieceCollector(cfg, ns)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, b := range bs {
+		if err := p.AddBatch(b, fs[i]); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if p.col.MemoryStats().SpilledBytes == 0 {
+		t.Fatal("no piece spilled")
+	}
+	p.Close()
+	if ents, _ := os.ReadDir(dir); len(ents) != 0 {
+		t.Errorf("temporary folder holds %d entries after closing the pieces", len(ents))
+	}
 }
 
 // A temporary folder that cannot hold files gives ErrTempDisk (exit 2 in
@@ -358,7 +375,7 @@ func TestSpillFolderErrors(t *testing.T) {
 // Sweep 3's posteriors are bit for bit those of the whole-chromosome
 // forward-backward (backward with the Viterbi path), at exactly the
 // autozygous sites of the whole-chromosome Viterbi path, with windows of
-// 256 sites and spilled data.
+// the smallest size and spilled data.
 func TestEnginePosteriorsExact(t *testing.T) {
 	const ns, n = 6, 4000
 	contigs, sites := denseCohort(11, ns, n)

@@ -12,7 +12,7 @@ import (
 //  1. forward (in input order, while the next window is read): the
 //     forward recursion and the Viterbi recursion, two samples at a time;
 //     Viterbi back-pointer flags and a forward checkpoint per block of
-//     256 sites are kept with the window;
+//     128 sites are kept with the window;
 //  2. reverse: the Viterbi traceback (the path replaces the flags) and the
 //     backward recursion, keeping a backward checkpoint per block;
 //  3. forward: inside the blocks where a sample's path is autozygous, the
@@ -188,8 +188,8 @@ func (g geometry) forwardPair(w *window, tab *siteTable, sc *sweepScratch, f flo
 		j0 = 1
 	}
 	for wi := 0; wi*32 < n; wi++ {
-		if wi&7 == 0 && w.t0+wi*32 > 0 {
-			k := 2 * (wi >> 3)
+		if wi%(blockSites/32) == 0 && w.t0+wi*32 > 0 {
+			k := 2 * (wi / (blockSites / 32))
 			ck1[k], ck1[k+1] = a1, b1
 			ck2[k], ck2[k+1] = a2, b2
 		}

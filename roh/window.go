@@ -9,7 +9,7 @@ import "unsafe"
 // (position, frequency, genetic position, likelihood index) and, for the
 // HMM, what the three sweeps of detection leave for each other: Viterbi
 // back-pointer flags (later the state path), and forward and backward
-// checkpoints every block of 256 sites. Windows beyond the memory budget
+// checkpoints every block of 128 sites. Windows beyond the memory budget
 // are written to a temporary file (see spillFile) and read back one at a
 // time, so that memory is bounded whatever the chromosome length.
 
@@ -17,7 +17,7 @@ import "unsafe"
 // checkpoints: posteriors are recomputed only inside blocks holding
 // autozygous sites of the Viterbi path. A multiple of 64 and of
 // rescaleEvery.
-const blockSites = 256
+const blockSites = 128
 
 // geometry fixes the layout of every window of one collector.
 type geometry struct {
@@ -34,7 +34,7 @@ type geometry struct {
 // window at most a sixteenth of the budget (two or three windows are in
 // flight while the others wait on disk).
 func windowSites(ns int, budget int64) int {
-	perSite := int64(ns)*5/8 + 36 + 16
+	perSite := int64(ns)*3/4 + 36 + 16
 	w := budget / 16 / perSite
 	w = w / blockSites * blockSites
 	return int(min(max(w, blockSites), maxWindowSites))
