@@ -113,6 +113,9 @@ func (p *PieceCollector) Pieces(contigs []vcfscan.Contig) ([]Piece, map[string]i
 	return out, excluded
 }
 
+// MemoryStats returns the use of the memory budget so far.
+func (p *PieceCollector) MemoryStats() MemoryStats { return p.col.MemoryStats() }
+
 // Err returns the first error met while storing pieces (a temporary-disk
 // failure, wrapping ErrTempDisk).
 func (p *PieceCollector) Err() error { return p.col.workerErr() }
@@ -294,30 +297,37 @@ type PieceRef struct {
 // wanted) are read window by window and fed to a Collector, so memory
 // stays within cfg.MemoryBudget whatever their size.
 func JoinAndDetectPieces(cfg *Config, samples []string, chroms [][]PieceRef) (*Result, error) {
+	r, _, err := JoinAndDetectPiecesStats(cfg, samples, chroms)
+	return r, err
+}
+
+// JoinAndDetectPiecesStats is JoinAndDetectPieces that also reports how
+// detection used its memory budget (Collector.MemoryStats).
+func JoinAndDetectPiecesStats(cfg *Config, samples []string, chroms [][]PieceRef) (*Result, MemoryStats, error) {
 	contigs := make([]vcfscan.Contig, len(chroms))
 	for i, refs := range chroms {
 		if len(refs) == 0 {
-			return nil, fmt.Errorf("roh: join: chromosome %d has no pieces", i)
+			return nil, MemoryStats{}, fmt.Errorf("roh: join: chromosome %d has no pieces", i)
 		}
 		for _, ref := range refs {
 			if ref.Index < 0 || ref.Index >= len(ref.Set.idx.Pieces) {
-				return nil, fmt.Errorf("roh: join: piece %d of %s does not exist", ref.Index, ref.Set.name)
+				return nil, MemoryStats{}, fmt.Errorf("roh: join: piece %d of %s does not exist", ref.Index, ref.Set.name)
 			}
 			if ref.Set.idx.NSamples != len(samples) {
-				return nil, fmt.Errorf("%s: pieces of %d samples, want %d: %w", ref.Set.name, ref.Set.idx.NSamples, len(samples), vcfscan.ErrSampleCount)
+				return nil, MemoryStats{}, fmt.Errorf("%s: pieces of %d samples, want %d: %w", ref.Set.name, ref.Set.idx.NSamples, len(samples), vcfscan.ErrSampleCount)
 			}
 		}
 		first := refs[0].Set.idx.Pieces[refs[0].Index]
 		contigs[i] = vcfscan.Contig{Name: first.Name, Length: first.Length}
 		for _, ref := range refs {
 			if n := ref.Set.idx.Pieces[ref.Index].Name; n != first.Name {
-				return nil, fmt.Errorf("roh: join: piece of %s among pieces of %s", n, first.Name)
+				return nil, MemoryStats{}, fmt.Errorf("roh: join: piece of %s among pieces of %s", n, first.Name)
 			}
 		}
 	}
 	col, err := NewCollector(cfg, samples, contigs)
 	if err != nil {
-		return nil, err
+		return nil, MemoryStats{}, err
 	}
 	for i := range contigs {
 		col.autoOf[i] = 1
@@ -326,12 +336,14 @@ func JoinAndDetectPieces(cfg *Config, samples []string, chroms [][]PieceRef) (*R
 	for i, refs := range chroms {
 		for _, ref := range refs {
 			if err := f.feed(col, i, ref); err != nil {
+				ms := col.MemoryStats()
 				col.Close()
-				return nil, err
+				return nil, ms, err
 			}
 		}
 	}
-	return col.Finish()
+	r, err := col.Finish()
+	return r, col.MemoryStats(), err
 }
 
 // pieceFeeder reads windows of a pieces file back into batches.

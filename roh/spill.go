@@ -111,3 +111,28 @@ func (s *spillFile) close() {
 	}
 	s.f = nil
 }
+
+// CheckTempDir tells whether dir ("" = the system's temporary folder) can
+// hold temporary files: it creates one there and removes it. The error
+// is a *TempDiskError wrapping ErrTempDisk (and the cause, for example
+// fs.ErrNotExist or fs.ErrPermission). Use it to refuse an unusable
+// folder before reading starts rather than at the first spill.
+func CheckTempDir(dir string) error {
+	if dir == "" {
+		dir = os.TempDir()
+	}
+	st, err := os.Stat(dir)
+	if err != nil {
+		return &TempDiskError{Dir: dir, Op: "create", Err: err}
+	}
+	if !st.IsDir() {
+		return &TempDiskError{Dir: dir, Op: "create", Err: errors.New("not a folder")}
+	}
+	s, err := openSpill(dir)
+	if err != nil {
+		return err
+	}
+	_, err = s.append([][]byte{make([]byte, 1)})
+	s.close()
+	return err
+}

@@ -95,7 +95,7 @@ func summaryJSON(t *testing.T, path string) map[string]any {
 	if err := json.Unmarshal(raw, &m); err != nil {
 		t.Fatalf("%s: %v", path, err)
 	}
-	for _, k := range []string{"wall_seconds", "command_line", "shards"} {
+	for _, k := range []string{"wall_seconds", "command_line", "shards", "memory"} {
 		delete(m, k)
 	}
 	return m

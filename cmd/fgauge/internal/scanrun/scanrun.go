@@ -46,6 +46,16 @@ type Config struct {
 	ROH      *roh.Config        // nil: no runs of homozygosity
 	Pedigree *pedigree.Pedigree // nil: no f_pedigree column
 
+	// MemoryBudget bounds, in bytes, the per-site data held for
+	// runs-of-homozygosity detection (see roh.Config.MemoryBudget); a
+	// shard scan shares it between the chromosomes it holds whole and the
+	// pieces of split ones. 0 means DefaultMemoryBudget. It overrides
+	// ROH.MemoryBudget and does not change results.
+	MemoryBudget int64
+	// TempDir is where data beyond the budget go ("" = the system's
+	// temporary folder); it overrides ROH.TempDir.
+	TempDir string
+
 	// StateOut, when set, makes this scan a shard: OUTDIR gets the site
 	// tables and run.json only, and the mergeable state goes to StateOut.
 	StateOut string
@@ -65,6 +75,14 @@ type Config struct {
 	Stderr      io.Writer
 	Progress    Progress // nil: none
 }
+
+// DefaultMemoryBudget is the memory budget of a scan or a merge when
+// none is given: 192 MiB for the per-site data of ROH detection, which
+// keeps the whole process of the benchmark shapes (bench/scale) under
+// 400 MB of peak resident memory and any input under 1 GiB (the rest is
+// the reader's and the statistics' batches, bounded by the thread count,
+// and per-sample accumulators; see the README's memory section).
+const DefaultMemoryBudget = 192 << 20
 
 // Progress is told how far reading has got. Run calls Start once, Update
 // after every batch written, and Finish at the end (also on error).
@@ -106,10 +124,26 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	read := cfg.Read
 	read.Threads = cfg.Threads
 	read.Regions = append([]vcfscan.Region(nil), cfg.Read.Regions...)
+	if cfg.MemoryBudget < 0 {
+		return nil, badinput.Errorf("scan: the memory budget must be positive")
+	}
+	if cfg.MemoryBudget == 0 {
+		cfg.MemoryBudget = DefaultMemoryBudget
+	}
+	if cfg.TempDir != "" && cfg.ROH != nil {
+		if err := roh.CheckTempDir(cfg.TempDir); err != nil {
+			return nil, err
+		}
+	}
 	rohCfg := cfg.ROH
 	if rohCfg != nil {
 		c := *rohCfg
 		rohCfg = &c
+		rohCfg.MemoryBudget, rohCfg.TempDir = cfg.MemoryBudget, cfg.TempDir
+		if cfg.StateOut != "" && len(read.Regions) > 0 {
+			// whole chromosomes and pieces of split ones share the budget
+			rohCfg.MemoryBudget = max(cfg.MemoryBudget/2, 1)
+		}
 		read.RequireSorted = true
 		read.WantPL = rohCfg.Method == "hmm"
 	}
@@ -158,6 +192,9 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		if rc, err = roh.NewCollector(rohCfg, samples, hdr.Contigs); err != nil {
 			return nil, err
 		}
+		// On failure or interrupt: stop detection and free its temporary
+		// files (Close is a no-op after Finish).
+		defer rc.Close()
 	}
 	var ped []string
 	if cfg.Pedigree != nil {
@@ -192,6 +229,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	if err != nil {
 		return nil, err
 	}
+	defer sh.close()
 
 	bar := cfg.Progress
 	if bar == nil {
@@ -341,7 +379,24 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	if ctx.Err() != nil {
 		return nil, ctx.Err()
 	}
-	info := runInfo(&cfg, rd, &counts, kept, samples, totals, rres, start)
+	var pieces *piecesOut
+	if sh.on() {
+		// Pieces of split chromosomes go to their side file before
+		// run.json, so that its memory figures include them; the file is
+		// put in place with the state, after the outputs.
+		if pieces, err = sh.writePieces(rd.Header().Contigs, rres); err != nil {
+			return nil, err
+		}
+		defer pieces.discard()
+	}
+	mem := &runsummary.Memory{BudgetBytes: cfg.MemoryBudget, TempDir: tempDirName(cfg.TempDir)}
+	if rc != nil {
+		addMemoryStats(mem, rc.MemoryStats())
+	}
+	if sh.pc != nil {
+		addMemoryStats(mem, sh.pc.MemoryStats())
+	}
+	info := runInfo(&cfg, rd, &counts, kept, samples, totals, rres, mem, start)
 	if err := outdir.WriteJSON(out, "run.json", info); err != nil {
 		return nil, err
 	}
@@ -349,7 +404,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		return nil, err
 	}
 	if sh.on() {
-		if err := sh.writeState(&cfg, &read, rd, &counts, kept, samples, totals, rohCfg, rres, ped, time.Since(start).Seconds()); err != nil {
+		if err := sh.writeState(&cfg, &read, rd, &counts, kept, samples, totals, rohCfg, rres, ped, pieces, time.Since(start).Seconds()); err != nil {
 			return nil, err
 		}
 	}
@@ -439,7 +494,8 @@ func writeChunk(c *siteChunk, sitesZ, popZ io.Writer, rc batchSink) error {
 	return nil
 }
 
-func runInfo(cfg *Config, rd *vcfscan.Reader, c *vcfscan.Batch, kept int64, samples []string, totals *stats.Totals, rres *roh.Result, start time.Time) *runsummary.Run {
+func runInfo(cfg *Config, rd *vcfscan.Reader, c *vcfscan.Batch, kept int64, samples []string, totals *stats.Totals, rres *roh.Result,
+	mem *runsummary.Memory, start time.Time) *runsummary.Run {
 	size := int64(-1)
 	if st, err := os.Stat(cfg.Input); err == nil && cfg.Input != "-" {
 		size = st.Size()
@@ -447,8 +503,24 @@ func runInfo(cfg *Config, rd *vcfscan.Reader, c *vcfscan.Batch, kept int64, samp
 	f := &runsummary.Facts{Version: cfg.Version, Argv: cfg.CommandLine, InputPath: cfg.Input, InputSize: size, InputFormat: rd.Format().String(),
 		Read: c.Read, Kept: kept, Skipped: c.Skipped, Masked: c.Masked,
 		SamplesInFile: rd.Header().Samples, Samples: samples, Warnings: rd.Warnings(),
-		WallSeconds: time.Since(start).Seconds()}
+		WallSeconds: time.Since(start).Seconds(), Memory: mem}
 	return runsummary.Build(cfg.Stderr, f, totals, rres)
+}
+
+// addMemoryStats adds one collector's use of its budget to run.json's
+// memory section (a shard scan has two collectors sharing the budget).
+func addMemoryStats(m *runsummary.Memory, s roh.MemoryStats) {
+	m.PeakHeldBytes += s.PeakHeld
+	m.InFlightBytes += s.InFlight
+	m.SpilledBytes += s.SpilledBytes
+}
+
+// tempDirName is the temporary folder as run.json names it.
+func tempDirName(dir string) string {
+	if dir == "" {
+		return os.TempDir()
+	}
+	return dir
 }
 
 // DefaultLimits are the input limits of the scan command's defaults.
