@@ -305,10 +305,10 @@ func combineROH(ls []loadedState, cfg *MergeConfig, mem *runsummary.Memory) (*ro
 
 // MergeConfig says which states to merge and where to write the outputs.
 type MergeConfig struct {
-	States      []string // state files, in any order
-	Out         string   // output folder
-	Force       bool     // overwrite results already in Out
-	Threads     int      // detection workers for chromosomes split across shards
+	States  []string // state files, in any order
+	Out     string   // output folder
+	Force   bool     // overwrite results already in Out
+	Threads int      // detection workers for chromosomes split across shards
 	// MemoryBudget bounds the joined data of split chromosomes in memory
 	// (see roh.Config.MemoryBudget; 0 means the scan's default); beyond
 	// it, windows go to unlinked files in TempDir ("" = the system's).
@@ -316,9 +316,9 @@ type MergeConfig struct {
 	TempDir      string
 	// DefaultBudget is the budget when MemoryBudget is 0.
 	DefaultBudget int64
-	Version     string   // fgauge version, for run.json
-	CommandLine []string // for run.json
-	Stderr      io.Writer
+	Version       string   // fgauge version, for run.json
+	CommandLine   []string // for run.json
+	Stderr        io.Writer
 	// AfterCommit, when set, runs once the outputs are in place and while
 	// the folder is still locked (the closing message, the report).
 	AfterCommit func(*MergeResult) error

@@ -115,7 +115,7 @@ type State struct {
 	PiecesFile   string
 	PiecesBytes  int64
 	PiecesSHA256 string
-	Pedigree  []string    // f_pedigree column, nil without --pedigree
+	Pedigree     []string // f_pedigree column, nil without --pedigree
 
 	SitesFile    string // relative to the state file's folder, or absolute
 	SitesSHA256  string
