@@ -117,7 +117,15 @@ func (g geometry) emAt(w *window, tab *siteTable, s, lt int) (float64, float64) 
 // table for its genotype code), so the sweeps read them with code 0.
 func (g geometry) sampleProducts(w *window, tab *siteTable, s int, dst []siteProducts) []siteProducts {
 	dst = grow(dst, w.n)
-	for lt := 0; lt < w.n; lt++ {
+	g.fillProducts(w, tab, s, dst, 0, w.n)
+	return dst
+}
+
+// fillProducts is sampleProducts for window sites [lo, hi) only (dst
+// holds at least hi entries): sweep 3 needs them only in the blocks where
+// the sample's path is autozygous.
+func (g geometry) fillProducts(w *window, tab *siteTable, s int, dst []siteProducts, lo, hi int) {
+	for lt := lo; lt < hi; lt++ {
 		d := &dst[lt]
 		if w.plSite[lt] >= 0 {
 			ea, en := g.plEmission(w, tab.rows[8*lt:8*lt+8:8*lt+8], s, lt)
@@ -128,7 +136,6 @@ func (g geometry) sampleProducts(w *window, tab *siteTable, s int, dst []sitePro
 		c := int(g.code(w, s, lt))
 		copy(d[:4], tab.prod[lt][4*c:4*c+4])
 	}
-	return dst
 }
 
 // sweepScratch is one worker's buffers for the sweeps.
@@ -359,7 +366,15 @@ func (g geometry) posteriorSample(w *window, tab *siteTable, sc *sweepScratch, f
 			continue
 		}
 		if p == nil {
-			p, gm = g.products(w, tab, s, &sc.ps1)
+			p, gm = tab.prod, 3
+			if w.nPL > 0 {
+				sc.ps1 = grow(sc.ps1, n)
+				p, gm = sc.ps1, 0
+			}
+		}
+		if w.nPL > 0 {
+			// the sample's own products, for this block only
+			g.fillProducts(w, tab, s, p, lo, hi)
 		}
 		// forward values over [lo, la]
 		sc.alpha = grow(sc.alpha, 2*blockSites)

@@ -71,7 +71,8 @@ func runMerge(ctx context.Context, env *runEnv, args []string) error {
 	start := time.Now()
 	_, err = shard.Merge(ctx, shard.MergeConfig{States: paths, Out: out, Force: force, Threads: threads,
 		MemoryBudget: int64(mem.budget), TempDir: mem.tempDir, DefaultBudget: scanrun.DefaultMemoryBudget,
-		Version: version, CommandLine: env.argv, Stderr: env.stderr,
+		LimitHeap: true,
+		Version:   version, CommandLine: env.argv, Stderr: env.stderr,
 		AfterCommit: func(res *shard.MergeResult) error {
 			fmt.Fprintf(env.stderr, "fgauge: merged %d shard states: %d records, %d sites kept, %d samples, %s; results in %s\n",
 				res.States, res.Read, res.Kept, res.Samples, time.Since(start).Round(time.Millisecond), out)

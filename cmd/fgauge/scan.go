@@ -159,7 +159,7 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) error {
 	cfg := scanrun.Config{
 		Input: o.input, Out: o.out, Force: o.force, Threads: o.threads,
 		Read: o.read, Stats: stats, ROH: rohCfg,
-		MemoryBudget: int64(o.mem.budget), TempDir: o.mem.tempDir,
+		MemoryBudget: int64(o.mem.budget), TempDir: o.mem.tempDir, LimitHeap: true,
 		StateOut: o.shard.stateOut, SkipIfValidState: o.shard.skipValid,
 		Version: version, CommandLine: env.argv, Stderr: env.stderr,
 		Progress: newProgress(env.stderr, o.noProgress),

@@ -65,8 +65,12 @@ type Memory struct {
 	// PeakRSSBytes is the process's peak resident set size when run.json
 	// was written (getrusage ru_maxrss); -1 where the system does not
 	// report it.
-	PeakRSSBytes int64  `json:"peak_rss_bytes"`
-	TempDir      string `json:"temp_dir"` // --temp-dir, or the system's
+	PeakRSSBytes int64 `json:"peak_rss_bytes"`
+	// HeapLimitBytes is the Go runtime's soft memory limit set from the
+	// budget (SetHeapLimit), or -1 when none was set (a library caller,
+	// or GOMEMLIMIT given).
+	HeapLimitBytes int64  `json:"heap_limit_bytes"`
+	TempDir        string `json:"temp_dir"` // --temp-dir, or the system's
 }
 
 // Records counts the records read, kept, skipped by reason, and the

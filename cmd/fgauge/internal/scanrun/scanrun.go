@@ -55,6 +55,9 @@ type Config struct {
 	// TempDir is where data beyond the budget go ("" = the system's
 	// temporary folder); it overrides ROH.TempDir.
 	TempDir string
+	// LimitHeap sets the Go runtime's soft memory limit from the budget
+	// (runsummary.SetHeapLimit): for the command, which owns the process.
+	LimitHeap bool
 
 	// StateOut, when set, makes this scan a shard: OUTDIR gets the site
 	// tables and run.json only, and the mergeable state goes to StateOut.
@@ -185,6 +188,10 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	scfg, _, err := cfg.Stats.config(samples)
 	if err != nil {
 		return nil, err
+	}
+	heapLimit := int64(-1)
+	if cfg.LimitHeap {
+		heapLimit = runsummary.SetHeapLimit(cfg.MemoryBudget, len(samples), cfg.Threads)
 	}
 	var rc *roh.Collector
 	if rohCfg != nil {
@@ -389,7 +396,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		}
 		defer pieces.discard()
 	}
-	mem := &runsummary.Memory{BudgetBytes: cfg.MemoryBudget, TempDir: tempDirName(cfg.TempDir)}
+	mem := &runsummary.Memory{BudgetBytes: cfg.MemoryBudget, TempDir: tempDirName(cfg.TempDir), HeapLimitBytes: heapLimit}
 	if rc != nil {
 		addMemoryStats(mem, rc.MemoryStats())
 	}

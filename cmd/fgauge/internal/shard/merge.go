@@ -316,9 +316,12 @@ type MergeConfig struct {
 	TempDir      string
 	// DefaultBudget is the budget when MemoryBudget is 0.
 	DefaultBudget int64
-	Version       string   // fgauge version, for run.json
-	CommandLine   []string // for run.json
-	Stderr        io.Writer
+	// LimitHeap sets the Go runtime's soft memory limit from the budget
+	// (runsummary.SetHeapLimit): for the command, which owns the process.
+	LimitHeap   bool
+	Version     string   // fgauge version, for run.json
+	CommandLine []string // for run.json
+	Stderr      io.Writer
 	// AfterCommit, when set, runs once the outputs are in place and while
 	// the folder is still locked (the closing message, the report).
 	AfterCommit func(*MergeResult) error
@@ -351,7 +354,10 @@ func Merge(ctx context.Context, cfg MergeConfig) (res *MergeResult, err error) {
 	if tmp == "" {
 		tmp = os.TempDir()
 	}
-	mem := &runsummary.Memory{BudgetBytes: budget, TempDir: tmp}
+	mem := &runsummary.Memory{BudgetBytes: budget, TempDir: tmp, HeapLimitBytes: -1}
+	if cfg.LimitHeap {
+		mem.HeapLimitBytes = runsummary.SetHeapLimit(budget, len(ls[0].st.Samples), cfg.Threads)
+	}
 	if cfg.TempDir != "" {
 		if err := roh.CheckTempDir(cfg.TempDir); err != nil {
 			return nil, err
