@@ -490,6 +490,11 @@ func (c *Collector) Close() {
 	c.chroms = nil
 }
 
+// Cancel makes detection stop at its next window: Finish, when running,
+// then returns an error soon. Unlike the other methods it may be called
+// from any goroutine, also while Finish runs (for example on interrupt).
+func (c *Collector) Cancel() { c.setErr(errClosed) }
+
 var errClosed = fmt.Errorf("roh: collector closed")
 
 func (c *Collector) shutdown() {

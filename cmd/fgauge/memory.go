@@ -77,28 +77,26 @@ func formatSize(n int64) string {
 
 // memoryHelp is appended to the help of scan and merge.
 const memoryHelp = `Memory:
-  Peak memory does not grow with chromosome length or cohort size beyond
-  three parts:
+  Peak memory is bounded whatever the chromosome length and cohort size:
     - per-site data of runs-of-homozygosity detection: about N*3/4 + 52
       bytes per site for N samples (plus 3*N per site with PL/GL
-      likelihoods), held in memory up to --memory-budget (default 192M) and
-      beyond it written once to an unlinked file in --temp-dir and read back
-      twice; results are identical whatever the budget. A shard scan shares
-      the budget between whole chromosomes and pieces of split ones; merge
-      joins split chromosomes within it. --roh-method rules and --fit still
-      hold one whole chromosome (N/4 + 50 to 84 bytes per site per thread)
-      whatever the budget.
-    - per-sample accumulators: about 2.3 kB per sample per thread plus 1 kB
-      per sample (measured: 10,000 samples add about 50 MB with 2 threads).
-    - reading and statistics buffers: about 60 MB plus 40 MB per thread,
-      whatever the input.
-  Example: 10,000 samples, 2 threads, default budget: under 400 MB peak;
-  100 samples x 4 million sites on one chromosome: about 330 MB of per-site
-  data, of which the part beyond 192M goes to temporary disk.
+      likelihoods), held in memory up to --memory-budget (default 192M);
+      beyond it written once to an unlinked file in --temp-dir and read
+      back twice. Results are identical whatever the budget. A shard scan
+      shares the budget between whole chromosomes and pieces of split ones
+      (the pieces go to STATE.roh_pieces beside the state); merge joins
+      split chromosomes within its own budget. Not yet bounded:
+      --roh-method rules and --fit hold one whole chromosome (N/4 + 50 to
+      84 bytes per site per thread) whatever the budget.
+    - per-sample accumulators: about 2.3 kB per sample at 2 threads.
+    - reading and statistics buffers: about 35 MB at 2 threads.
+  The Go heap is also limited softly to the budget + 96 MiB + 16 MiB per
+  thread + 4 KiB per sample (GOMEMLIMIT, when set, wins). So with the
+  default budget, 10,000 samples at 2 threads stay within about 380 MB.
   Temporary disk needed: at most N*3/4 + 52 bytes per site of the largest
-  chromosome (two chromosomes at a boundary). A full, missing or unwritable
-  --temp-dir stops the run with exit status 2 and no outputs; a folder
-  removed during the run does no harm (its files were already unlinked).
-  run.json's "memory" section records the budget, the most held, the bytes
-  spilled and the peak resident size.
+  chromosome. A full, missing or unwritable --temp-dir stops the run with
+  exit status 2 and no outputs; removing the folder during the run does no
+  harm (its files are already unlinked). run.json's "memory" section
+  records the budget, the most held, the bytes spilled, the heap limit and
+  the peak resident size.
 `

@@ -374,7 +374,15 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	}
 	var rres *roh.Result
 	if rc != nil {
-		if rres, err = rc.Finish(); err != nil {
+		// Detection of the last chromosome may take a while after reading
+		// ends: an interrupt cancels it.
+		stop := context.AfterFunc(ctx, rc.Cancel)
+		rres, err = rc.Finish()
+		stop()
+		if ctx.Err() != nil {
+			return nil, ctx.Err()
+		}
+		if err != nil {
 			return nil, err
 		}
 	}
