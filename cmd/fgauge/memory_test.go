@@ -195,7 +195,9 @@ func TestInterruptDuringSpill(t *testing.T) {
 	written := make(chan int64, 1)
 	go func() { written <- feedCohort(fifo, 0, stop) }()
 	deadline := time.Now().Add(60 * time.Second)
-	for !holdsFileIn(cmd.Process.Pid, tmp) {
+	// twice 50 ms apart: a spill file, not the short-lived probe of the
+	// folder made at the start
+	for !holdsFileIn(cmd.Process.Pid, tmp) || !func() bool { time.Sleep(50 * time.Millisecond); return holdsFileIn(cmd.Process.Pid, tmp) }() {
 		if time.Now().After(deadline) {
 			cmd.Process.Kill()
 			cmd.Wait()
@@ -229,8 +231,8 @@ func TestInterruptDuringSpill(t *testing.T) {
 	}
 }
 
-// holdsFileIn reports whether process pid has a file of folder dir open
-// (Linux /proc; an unlinked file shows as "PATH (deleted)").
+// holdsFileIn reports whether process pid has an unlinked file of folder
+// dir open (Linux /proc shows it as "PATH (deleted)").
 func holdsFileIn(pid int, dir string) bool {
 	fds, err := os.ReadDir(filepath.Join("/proc", strconv.Itoa(pid), "fd"))
 	if err != nil {
@@ -238,7 +240,7 @@ func holdsFileIn(pid int, dir string) bool {
 	}
 	for _, fd := range fds {
 		l, err := os.Readlink(filepath.Join("/proc", strconv.Itoa(pid), "fd", fd.Name()))
-		if err == nil && strings.HasPrefix(l, dir+string(filepath.Separator)) {
+		if err == nil && strings.HasPrefix(l, dir+string(filepath.Separator)) && strings.HasSuffix(l, "(deleted)") {
 			return true
 		}
 	}

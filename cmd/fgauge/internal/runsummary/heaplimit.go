@@ -6,11 +6,13 @@ import (
 )
 
 // Bytes of the heap limit besides the budget: the reader's and the
-// statistics' batches and buffers (a base and a share per thread) and the
-// per-sample accumulators (measured about 2.3 kB per sample at 2 threads:
-// 10,000 against 200 samples of bench/gen, 3,000 sites; rounded up).
+// statistics' batches and buffers (a base and a share per thread: about
+// 100 MB live at 2 threads in a heap profile of 100 samples x 1 M sites,
+// plus room for the collector to work) and the per-sample accumulators
+// (measured about 2.3 kB per sample at 2 threads: 10,000 against 200
+// samples of bench/gen, 3,000 sites; rounded up).
 const (
-	heapBase      = 96 << 20
+	heapBase      = 160 << 20
 	heapPerThread = 16 << 20
 	heapPerSample = 4 << 10
 )

@@ -80,12 +80,13 @@ type Config struct {
 }
 
 // DefaultMemoryBudget is the memory budget of a scan or a merge when
-// none is given: 192 MiB for the per-site data of ROH detection, which
-// keeps the whole process of the benchmark shapes (bench/scale) under
-// 400 MB of peak resident memory and any input under 1 GiB (the rest is
-// the reader's and the statistics' batches, bounded by the thread count,
-// and per-sample accumulators; see the README's memory section).
-const DefaultMemoryBudget = 192 << 20
+// none is given: 128 MiB for the per-site data of ROH detection. The rest
+// of a scan holds about 100 MB at 2 threads (the reader's chunks and BGZF
+// blocks in flight, batches, per-sample accumulators: measured with a heap
+// profile of 100 samples x 1 M sites), so with the heap limit
+// (runsummary.SetHeapLimit) the benchmark shapes of bench/scale stay under
+// 400 MB of peak resident memory.
+const DefaultMemoryBudget = 128 << 20
 
 // Progress is told how far reading has got. Run calls Start once, Update
 // after every batch written, and Finish at the end (also on error).
