@@ -80,13 +80,14 @@ type Config struct {
 }
 
 // DefaultMemoryBudget is the memory budget of a scan or a merge when
-// none is given: 128 MiB for the per-site data of ROH detection. The rest
+// none is given: 96 MiB for the per-site data of ROH detection. The rest
 // of a scan holds about 100 MB at 2 threads (the reader's chunks and BGZF
-// blocks in flight, batches, per-sample accumulators: measured with a heap
-// profile of 100 samples x 1 M sites), so with the heap limit
-// (runsummary.SetHeapLimit) the benchmark shapes of bench/scale stay under
-// 400 MB of peak resident memory.
-const DefaultMemoryBudget = 128 << 20
+// blocks in flight, batches, per-sample accumulators: heap profile of 100
+// samples x 1 M sites). Measured by bench/scale with the heap limit
+// (runsummary.SetHeapLimit), 2 threads: 100 samples x 4 M sites peaked at
+// 383 MB with 96 MiB and 406 MB with 128 MiB; 10,000 samples x 200 k
+// sites at 360 MB with 128 MiB.
+const DefaultMemoryBudget = 96 << 20
 
 // Progress is told how far reading has got. Run calls Start once, Update
 // after every batch written, and Finish at the end (also on error).
