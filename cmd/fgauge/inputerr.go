@@ -19,6 +19,7 @@ var inputSentinels = []error{
 	vcfscan.ErrUnsorted, vcfscan.ErrSampleCount,
 	vcfscan.ErrBadRegion, vcfscan.ErrNoIndex, vcfscan.ErrStaleIndex, vcfscan.ErrUnknownContig, vcfscan.ErrUnknownSample,
 	stats.ErrBadTable, genmap.ErrMap, roh.ErrConfig,
+	roh.ErrTempDisk, roh.ErrPieces, // temporary folder missing, unwritable or full; a damaged pieces file
 	pedigree.ErrMalformed, pedigree.ErrDuplicate, pedigree.ErrLoop, pedigree.ErrUnknownID,
 	fs.ErrNotExist, fs.ErrPermission,
 	bufio.ErrTooLong, // a side file (sample list, ...) with an overlong line

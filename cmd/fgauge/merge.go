@@ -10,6 +10,7 @@ import (
 
 	"fgauge/cmd/fgauge/htmlreport"
 	"fgauge/cmd/fgauge/internal/badinput"
+	"fgauge/cmd/fgauge/internal/scanrun"
 	"fgauge/cmd/fgauge/internal/shard"
 )
 
@@ -23,7 +24,8 @@ States must come from the same input file (path, size and modification
 time), the same fgauge version, the same samples and the same
 result-changing options, and their regions must not overlap. Chromosomes
 split across shards are joined and their runs of homozygosity detected
-here (their raw data travel in the states; see cmd/fgauge/internal/shard). Shards
+here (their raw data travel in a pieces file beside each state,
+STATE.roh_pieces, read window by window within --memory-budget). Shards
 are put in genome order, the order of the index's references (the file's
 order), whatever the order of the arguments; shards that interleave in that
 order are refused, as their site tables could not be joined.
@@ -42,7 +44,7 @@ belong to licensed practice under local regulations.
 `
 
 func runMerge(ctx context.Context, env *runEnv, args []string) error {
-	fs := newFlagSet(env.stderr, "merge", "merge -o OUTDIR STATE... | merge --check STATE...", mergeHelp)
+	fs := newFlagSet(env.stderr, "merge", "merge -o OUTDIR STATE... | merge --check STATE...", mergeHelp+"\n"+memoryHelp)
 	var out string
 	var force, check, report bool
 	threads := runtime.NumCPU()
@@ -52,6 +54,7 @@ func runMerge(ctx context.Context, env *runEnv, args []string) error {
 	fs.BoolVar(&check, "check", false, "only verify the states and their site tables")
 	fs.IntVar(&threads, "threads", threads, "detection workers for chromosomes split across shards")
 	fs.BoolVar(&report, "report", false, "also write OUTDIR/report.html")
+	mem := addMemoryFlags(fs)
 	paths, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
@@ -67,7 +70,9 @@ func runMerge(ctx context.Context, env *runEnv, args []string) error {
 	}
 	start := time.Now()
 	_, err = shard.Merge(ctx, shard.MergeConfig{States: paths, Out: out, Force: force, Threads: threads,
-		Version: version, CommandLine: env.argv, Stderr: env.stderr,
+		MemoryBudget: int64(mem.budget), TempDir: mem.tempDir, DefaultBudget: scanrun.DefaultMemoryBudget,
+		LimitHeap: true,
+		Version:   version, CommandLine: env.argv, Stderr: env.stderr,
 		AfterCommit: func(res *shard.MergeResult) error {
 			fmt.Fprintf(env.stderr, "fgauge: merged %d shard states: %d records, %d sites kept, %d samples, %s; results in %s\n",
 				res.States, res.Read, res.Kept, res.Samples, time.Since(start).Round(time.Millisecond), out)

@@ -4,8 +4,10 @@ import (
 	"context"
 	"fmt"
 	"os"
+	"strings"
 
 	"fgauge/cmd/fgauge/internal/plan"
+	"fgauge/cmd/fgauge/internal/scanrun"
 )
 
 const planHelp = `Splits an indexed input (.tbi or .csi next to it) into shards of roughly
@@ -32,7 +34,9 @@ of the array, checking with 'fgauge merge --check').
 
 Slurm resources per task are estimated from the records and samples of
 the shard with a measured cost per site and sample (see costPerSiteSample
-in the source) times a safety factor of 4, at least 15 minutes.
+in the source) times a safety factor of 4, at least 15 minutes; memory
+from the per-site data of ROH detection (about 1.25 bytes per site and
+sample) up to the scan's --memory-budget, plus a base and 4 kB per sample.
 `
 
 func runPlan(ctx context.Context, env *runEnv, args []string) error {
@@ -63,6 +67,20 @@ func runPlan(ctx context.Context, env *runEnv, args []string) error {
 		return usagef("plan: expected one input file, got %d", len(pos))
 	}
 	cfg.Input = pos[0]
+	// the shards' memory budget, for the memory estimates
+	cfg.MemoryBudget = scanrun.DefaultMemoryBudget
+	for i, a := range scanArgs {
+		name, val, hasVal := strings.Cut(strings.TrimLeft(a, "-"), "=")
+		if name != "memory-budget" || !strings.HasPrefix(a, "-") {
+			continue
+		}
+		if !hasVal && i+1 < len(scanArgs) {
+			val = scanArgs[i+1]
+		}
+		if n, err := parseSize(val); err == nil {
+			cfg.MemoryBudget = n
+		}
+	}
 	if cfg.Fgauge == "" {
 		if cfg.Fgauge, err = os.Executable(); err != nil {
 			return fmt.Errorf("plan: cannot find this program's path (give --fgauge): %w", err)

@@ -88,11 +88,12 @@ type scanOptions struct {
 	roh         *rohFlags
 	sex         *sexFlags
 	shard       *shardFlags
+	mem         *memoryFlags
 }
 
 func runScan(ctx context.Context, env *runEnv, args []string) error {
 	o := &scanOptions{}
-	fs := newFlagSet(env.stderr, "scan", "scan INPUT.vcf[.gz]|INPUT.bcf|- -o OUTDIR [options]", scanHelp+"\n"+statsHelp+"\n"+sexHelp()+"\n"+rohHelp)
+	fs := newFlagSet(env.stderr, "scan", "scan INPUT.vcf[.gz]|INPUT.bcf|- -o OUTDIR [options]", scanHelp+"\n"+statsHelp+"\n"+sexHelp()+"\n"+rohHelp+"\n"+memoryHelp)
 	fs.StringVar(&o.out, "o", "", "output folder (created if absent)")
 	fs.StringVar(&o.out, "out", "", "same as -o")
 	fs.BoolVar(&o.force, "force", false, "overwrite results already in OUTDIR")
@@ -116,6 +117,7 @@ func runScan(ctx context.Context, env *runEnv, args []string) error {
 	o.roh = addROHFlags(fs)
 	o.sex = addSexFlags(fs)
 	o.shard = addShardFlags(fs)
+	o.mem = addMemoryFlags(fs)
 	pos, err := parseInterleaved(fs, args)
 	if err != nil {
 		return err
@@ -181,6 +183,7 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) error {
 	cfg := scanrun.Config{
 		Input: o.input, Out: o.out, Force: o.force, Threads: o.threads,
 		Read: o.read, Stats: stats, ROH: rohCfg, Sex: sex, PedigreeFile: o.pedigree,
+		MemoryBudget: int64(o.mem.budget), TempDir: o.mem.tempDir, LimitHeap: true,
 		StateOut: o.shard.stateOut, SkipIfValidState: o.shard.skipValid,
 		Version: version, CommandLine: env.argv, Stderr: env.stderr,
 		Progress: newProgress(env.stderr, o.noProgress),

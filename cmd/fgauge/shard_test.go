@@ -30,8 +30,9 @@ type shardSplit struct {
 }
 
 // scanShards scans each shard of sp with --state-out and merges the states
-// (given in reverse order, to show that merge orders them).
-func scanShards(t *testing.T, dir, input string, opts []string, sp shardSplit) string {
+// (given in reverse order, to show that merge orders them), giving merge
+// mergeOpts.
+func scanShards(t *testing.T, dir, input string, opts []string, sp shardSplit, mergeOpts ...string) string {
 	t.Helper()
 	var states []string
 	for i, regs := range sp.shards {
@@ -47,7 +48,7 @@ func scanShards(t *testing.T, dir, input string, opts []string, sp shardSplit) s
 		states = append([]string{state}, states...)
 	}
 	merged := filepath.Join(dir, sp.name+"_merged")
-	args := append([]string{"merge", "-o", merged, "--threads", "2"}, states...)
+	args := append(append([]string{"merge", "-o", merged, "--threads", "2"}, mergeOpts...), states...)
 	if code, _, errText := runCmdline(t, args...); code != exitOK {
 		t.Fatalf("%s merge: exit %d: %s", sp.name, code, errText)
 	}
@@ -95,7 +96,7 @@ func summaryJSON(t *testing.T, path string) map[string]any {
 	if err := json.Unmarshal(raw, &m); err != nil {
 		t.Fatalf("%s: %v", path, err)
 	}
-	for _, k := range []string{"wall_seconds", "command_line", "shards"} {
+	for _, k := range []string{"wall_seconds", "command_line", "shards", "memory"} {
 		delete(m, k)
 	}
 	return m

@@ -88,6 +88,10 @@ type Config struct {
 	Partition string   // Slurm partition ("": the cluster's default)
 	Force     bool     // replace an existing plan in Out
 	ScanArgs  []string // options passed to every shard's scan
+	// MemoryBudget is the shards' and the merge's --memory-budget, in
+	// bytes: the per-site data counted in the memory estimates stop there
+	// (0: no cap).
+	MemoryBudget int64
 }
 
 // Result describes a written plan.
@@ -178,7 +182,7 @@ func Make(cfg Config) (*Result, error) {
 		}
 	}
 	p := &planScripts{dir: outAbs, fgauge: fgaugePath, input: input, scanArgs: scanArgs, merged: mergedOut,
-		threads: threads, jobs: jobs, partition: cfg.Partition, samples: nSamples, shards: plan}
+		threads: threads, jobs: jobs, partition: cfg.Partition, samples: nSamples, budget: cfg.MemoryBudget, shards: plan}
 	if err := p.write(); err != nil {
 		return nil, err
 	}
@@ -399,6 +403,7 @@ type planScripts struct {
 	dir, fgauge, input, merged, partition string
 	scanArgs                              []string
 	threads, jobs, samples                int
+	budget                                int64
 	shards                                []planShard
 }
 
@@ -417,8 +422,21 @@ func shellQuote(s string) string {
 func (p *planScripts) estimate(s planShard) (cpuSec float64, limitSec int, memMB int) {
 	cpuSec = s.records * float64(p.samples) * costPerSiteSample
 	limitSec = max(int(math.Ceil(cpuSec*timeSafety/float64(p.threads))), minTaskSeconds)
-	memMB = memBaseMB + int(math.Ceil(1.25*s.records*float64(p.samples)/1e6))
+	memMB = memBaseMB + int(math.Ceil((p.perSite(1.25*s.records*float64(p.samples))+float64(p.samples)*perSampleBytes)/1e6))
 	return cpuSec, limitSec, memMB
+}
+
+// perSampleBytes is the memory of the per-sample accumulators of a scan
+// (measured about 2.3 kB at 2 threads; rounded up).
+const perSampleBytes = 4096
+
+// perSite is the memory held of that many bytes of per-site data: at
+// most the memory budget (beyond it they go to temporary disk).
+func (p *planScripts) perSite(bytes float64) float64 {
+	if p.budget > 0 {
+		bytes = min(bytes, float64(p.budget))
+	}
+	return bytes
 }
 
 func slurmTime(sec int) string {
@@ -518,8 +536,8 @@ func (p *planScripts) write() error {
 
 	// The merge detects runs on every chromosome split across shards, one
 	// at a time, from the joined raw data of all of them: 0.25 byte per
-	// site and sample held for all split chromosomes, plus detection
-	// tables for the largest one (1 byte per site and sample).
+	// site and sample for all split chromosomes, plus detection tables for
+	// the largest one (1 byte per site and sample), up to the budget.
 	_, mergeLimit, mergeMem := p.estimate(planShard{})
 	split := map[string]float64{}
 	var splitAll, splitMax float64
@@ -532,7 +550,7 @@ func (p *planScripts) write() error {
 			}
 		}
 	}
-	mergeMem += int(math.Ceil((0.25*splitAll + splitMax) * float64(p.samples) / 1e6))
+	mergeMem = memBaseMB + int(math.Ceil((p.perSite((0.25*splitAll+splitMax)*float64(p.samples))+float64(p.samples)*perSampleBytes)/1e6))
 	mergeLimit = max(mergeLimit, int(math.Ceil(splitAll*float64(p.samples)*costPerSiteSample*timeSafety/float64(p.threads))))
 	d.MergeMemMB, d.MergeTime = mergeMem, slurmTime(mergeLimit)
 

@@ -30,6 +30,7 @@ type Run struct {
 	CommandLine []string                 `json:"command_line"`
 	Depth       *Depth                   `json:"depth,omitempty"` // when records carry DP, PL or GL
 	Input       Input                    `json:"input"`
+	Memory      *Memory                  `json:"memory,omitempty"`
 	Populations *stats.PopulationSummary `json:"populations,omitempty"` // with --populations
 	Records     Records                  `json:"records"`
 	ROH         *roh.Summary             `json:"roh,omitempty"` // without --no-roh
@@ -84,6 +85,32 @@ type Input struct {
 	Format    string `json:"format"`
 	Path      string `json:"path"`       // as given on the command line
 	SizeBytes int64  `json:"size_bytes"` // -1 for standard input
+}
+
+// Memory is how the run used memory. The budget bounds the per-site data
+// of runs-of-homozygosity detection (calls, per-site tables, sweep
+// checkpoints; in a merge, the joined pieces of split chromosomes), the
+// only data that grow with chromosome length times cohort size; beyond
+// it, windows of sites go to unlinked files in the temporary folder.
+type Memory struct {
+	BudgetBytes int64 `json:"budget_bytes"` // --memory-budget
+	// PeakHeldBytes is the most bytes of detection windows kept in memory
+	// at once; InFlightBytes bounds the windows being read or swept
+	// besides those (both within the budget).
+	PeakHeldBytes int64 `json:"peak_held_bytes"`
+	InFlightBytes int64 `json:"in_flight_bytes"`
+	// SpilledBytes is the total written to temporary files (0 when all
+	// fitted in the budget).
+	SpilledBytes int64 `json:"spilled_bytes"`
+	// PeakRSSBytes is the process's peak resident set size when run.json
+	// was written (getrusage ru_maxrss); -1 where the system does not
+	// report it.
+	PeakRSSBytes int64 `json:"peak_rss_bytes"`
+	// HeapLimitBytes is the Go runtime's soft memory limit set from the
+	// budget (SetHeapLimit), or -1 when none was set (a library caller,
+	// or GOMEMLIMIT given).
+	HeapLimitBytes int64  `json:"heap_limit_bytes"`
+	TempDir        string `json:"temp_dir"` // --temp-dir, or the system's
 }
 
 // Records counts the records read, kept, skipped by reason, and the
@@ -153,6 +180,7 @@ type Facts struct {
 	Samples       []string // kept, in output order
 	Warnings      []vcfscan.Warning
 	WallSeconds   float64
+	Memory        *Memory // nil: no memory section; PeakRSSBytes is filled by Build
 }
 
 // Build builds run.json from the facts and the (merged) statistics, and
@@ -198,6 +226,11 @@ func Build(stderr io.Writer, f *Facts, totals *stats.Totals, rres *roh.Result) *
 	}
 	if rres != nil {
 		r.ROH = rres.Summary()
+	}
+	if f.Memory != nil {
+		m := *f.Memory
+		m.PeakRSSBytes = PeakRSS()
+		r.Memory = &m
 	}
 	for _, w := range warns {
 		fmt.Fprintf(stderr, "fgauge: warning: %s (%d times; first: %s)\n", w.Kind, w.Count, w.Example)

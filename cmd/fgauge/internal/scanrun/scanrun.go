@@ -51,6 +51,19 @@ type Config struct {
 	// Sex holds the sex-chromosome options.
 	Sex SexSettings
 
+	// MemoryBudget bounds, in bytes, the per-site data held for
+	// runs-of-homozygosity detection (see roh.Config.MemoryBudget); a
+	// shard scan shares it between the chromosomes it holds whole and the
+	// pieces of split ones. 0 means DefaultMemoryBudget. It overrides
+	// ROH.MemoryBudget and does not change results.
+	MemoryBudget int64
+	// TempDir is where data beyond the budget go ("" = the system's
+	// temporary folder); it overrides ROH.TempDir.
+	TempDir string
+	// LimitHeap sets the Go runtime's soft memory limit from the budget
+	// (runsummary.SetHeapLimit): for the command, which owns the process.
+	LimitHeap bool
+
 	// StateOut, when set, makes this scan a shard: OUTDIR gets the site
 	// tables and run.json only, and the mergeable state goes to StateOut.
 	StateOut string
@@ -70,6 +83,16 @@ type Config struct {
 	Stderr      io.Writer
 	Progress    Progress // nil: none
 }
+
+// DefaultMemoryBudget is the memory budget of a scan or a merge when
+// none is given: 96 MiB for the per-site data of ROH detection. The rest
+// of a scan holds about 100 MB at 2 threads (the reader's chunks and BGZF
+// blocks in flight, batches, per-sample accumulators: heap profile of 100
+// samples x 1 M sites). Measured by bench/scale with the heap limit
+// (runsummary.SetHeapLimit), 2 threads: 100 samples x 4 M sites peaked at
+// 383 MB with 96 MiB and 406 MB with 128 MiB; 10,000 samples x 200 k
+// sites at 360 MB with 128 MiB.
+const DefaultMemoryBudget = 96 << 20
 
 // Progress is told how far reading has got. Run calls Start once, Update
 // after every batch written, and Finish at the end (also on error).
@@ -112,10 +135,26 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	read := cfg.Read
 	read.Threads = cfg.Threads
 	read.Regions = append([]vcfscan.Region(nil), cfg.Read.Regions...)
+	if cfg.MemoryBudget < 0 {
+		return nil, badinput.Errorf("scan: the memory budget must be positive")
+	}
+	if cfg.MemoryBudget == 0 {
+		cfg.MemoryBudget = DefaultMemoryBudget
+	}
+	if cfg.TempDir != "" && cfg.ROH != nil {
+		if err := roh.CheckTempDir(cfg.TempDir); err != nil {
+			return nil, err
+		}
+	}
 	rohCfg := cfg.ROH
 	if rohCfg != nil {
 		c := *rohCfg
 		rohCfg = &c
+		rohCfg.MemoryBudget, rohCfg.TempDir = cfg.MemoryBudget, cfg.TempDir
+		if cfg.StateOut != "" && len(read.Regions) > 0 {
+			// whole chromosomes and pieces of split ones share the budget
+			rohCfg.MemoryBudget = max(cfg.MemoryBudget/2, 1)
+		}
 		read.RequireSorted = true
 		read.WantPL = rohCfg.Method == "hmm"
 	}
@@ -171,12 +210,19 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		xd = newXDeferral(out.Path(".x_calls.tmp"), len(samples))
 		defer xd.close()
 	}
+	heapLimit := int64(-1)
+	if cfg.LimitHeap {
+		heapLimit = runsummary.SetHeapLimit(cfg.MemoryBudget, len(samples), cfg.Threads)
+	}
 	var rc *roh.Collector
 	if rohCfg != nil {
 		rohCfg.Threads = cfg.Threads
 		if rc, err = roh.NewCollector(rohCfg, samples, hdr.Contigs); err != nil {
 			return nil, err
 		}
+		// On failure or interrupt: stop detection and free its temporary
+		// files (Close is a no-op after Finish).
+		defer rc.Close()
 	}
 	var ped []string
 	if cfg.Pedigree != nil {
@@ -211,6 +257,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	if err != nil {
 		return nil, err
 	}
+	defer sh.close()
 
 	bar := cfg.Progress
 	if bar == nil {
@@ -362,7 +409,15 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 
 	var rres *roh.Result
 	if rc != nil {
-		if rres, err = rc.Finish(); err != nil {
+		// Detection of the last chromosome may take a while after reading
+		// ends: an interrupt cancels it.
+		stop := context.AfterFunc(ctx, rc.Cancel)
+		rres, err = rc.Finish()
+		stop()
+		if ctx.Err() != nil {
+			return nil, ctx.Err()
+		}
+		if err != nil {
 			return nil, err
 		}
 	}
@@ -374,7 +429,24 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	if ctx.Err() != nil {
 		return nil, ctx.Err()
 	}
-	info := runInfo(&cfg, rd, &counts, kept, samples, totals, rres, start)
+	var pieces *piecesOut
+	if sh.on() {
+		// Pieces of split chromosomes go to their side file before
+		// run.json, so that its memory figures include them; the file is
+		// put in place with the state, after the outputs.
+		if pieces, err = sh.writePieces(rd.Header().Contigs, rres); err != nil {
+			return nil, err
+		}
+		defer pieces.discard()
+	}
+	mem := &runsummary.Memory{BudgetBytes: cfg.MemoryBudget, TempDir: tempDirName(cfg.TempDir), HeapLimitBytes: heapLimit}
+	if rc != nil {
+		addMemoryStats(mem, rc.MemoryStats())
+	}
+	if sh.pc != nil {
+		addMemoryStats(mem, sh.pc.MemoryStats())
+	}
+	info := runInfo(&cfg, rd, &counts, kept, samples, totals, rres, mem, start)
 	if err := outdir.WriteJSON(out, "run.json", info); err != nil {
 		return nil, err
 	}
@@ -382,7 +454,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		return nil, err
 	}
 	if sh.on() {
-		if err := sh.writeState(&cfg, &read, rd, &counts, kept, samples, totals, rohCfg, rres, ped, &xr, time.Since(start).Seconds()); err != nil {
+		if err := sh.writeState(&cfg, &read, rd, &counts, kept, samples, totals, rohCfg, rres, ped, &xr, pieces, time.Since(start).Seconds()); err != nil {
 			return nil, err
 		}
 	}
@@ -485,7 +557,8 @@ func writeChunk(c *siteChunk, sitesZ *vcfscan.BGZFWriter, popZ io.Writer, rc bat
 	return nil
 }
 
-func runInfo(cfg *Config, rd *vcfscan.Reader, c *vcfscan.Batch, kept int64, samples []string, totals *stats.Totals, rres *roh.Result, start time.Time) *runsummary.Run {
+func runInfo(cfg *Config, rd *vcfscan.Reader, c *vcfscan.Batch, kept int64, samples []string, totals *stats.Totals, rres *roh.Result,
+	mem *runsummary.Memory, start time.Time) *runsummary.Run {
 	size := int64(-1)
 	if st, err := os.Stat(cfg.Input); err == nil && cfg.Input != "-" {
 		size = st.Size()
@@ -493,8 +566,24 @@ func runInfo(cfg *Config, rd *vcfscan.Reader, c *vcfscan.Batch, kept int64, samp
 	f := &runsummary.Facts{Version: cfg.Version, Argv: cfg.CommandLine, InputPath: cfg.Input, InputSize: size, InputFormat: rd.Format().String(),
 		Read: c.Read, Kept: kept, Skipped: c.Skipped, Masked: c.Masked,
 		SamplesInFile: rd.Header().Samples, Samples: samples, Warnings: rd.Warnings(),
-		WallSeconds: time.Since(start).Seconds()}
+		WallSeconds: time.Since(start).Seconds(), Memory: mem}
 	return runsummary.Build(cfg.Stderr, f, totals, rres)
+}
+
+// addMemoryStats adds one collector's use of its budget to run.json's
+// memory section (a shard scan has two collectors sharing the budget).
+func addMemoryStats(m *runsummary.Memory, s roh.MemoryStats) {
+	m.PeakHeldBytes += s.PeakHeld
+	m.InFlightBytes += s.InFlight
+	m.SpilledBytes += s.SpilledBytes
+}
+
+// tempDirName is the temporary folder as run.json names it.
+func tempDirName(dir string) string {
+	if dir == "" {
+		return os.TempDir()
+	}
+	return dir
 }
 
 // DefaultLimits are the input limits of the scan command's defaults.

@@ -1,6 +1,9 @@
 package scanrun
 
 import (
+	"bufio"
+	"crypto/sha256"
+	"encoding/hex"
 	"fmt"
 	"io"
 	"os"
@@ -171,7 +174,7 @@ func (f *shardRun) sink(rc *roh.Collector, cfg *roh.Config, samples []string, co
 
 // writeState writes the shard state after the shard's OUTDIR is committed.
 func (f *shardRun) writeState(cfg *Config, read *vcfscan.Options, rd *vcfscan.Reader, counts *vcfscan.Batch, kept int64,
-	samples []string, totals *stats.Totals, rcfg *roh.Config, rres *roh.Result, ped []string, xr *xRows, wall float64) error {
+	samples []string, totals *stats.Totals, rcfg *roh.Config, rres *roh.Result, ped []string, xr *xRows, pieces *piecesOut, wall float64) error {
 	st, err := f.identity(cfg, read)
 	if err != nil {
 		return err
@@ -187,19 +190,22 @@ func (f *shardRun) writeState(cfg *Config, read *vcfscan.Options, rd *vcfscan.Re
 	st.Skipped = counts.Skipped[:]
 	st.Warnings = rd.Warnings()
 	st.Totals, st.ROH, st.ROHConfig, st.Pedigree = totals, rres, rcfg, ped
-	if f.pc != nil {
-		pieces, excl := f.pc.Pieces(rd.Header().Contigs)
-		st.Pieces = pieces
-		if rres.Excluded == nil {
-			rres.Excluded = map[string]int64{}
+	piecesPath := shard.PiecesPath(f.stateOut)
+	if pieces != nil {
+		if err := os.Rename(pieces.tmp, piecesPath); err != nil {
+			return fmt.Errorf("writing the pieces of split chromosomes: %w", err)
 		}
-		for k, v := range excl {
-			rres.Excluded[k] += v
-		}
+		pieces.tmp = piecesPath // removed again if the state cannot be written
+		st.PiecesFile = shard.RelTo(f.stateOut, piecesPath)
+		st.PiecesSHA256, st.PiecesBytes = pieces.sha256, pieces.size
+	} else {
+		// a pieces file of an earlier state at this path is stale
+		os.Remove(piecesPath)
 	}
 	if st.ROHConfig != nil {
+		// merge gives its own threads, budget and temporary folder
 		c := *st.ROHConfig
-		c.Threads = 0
+		c.Threads, c.MemoryBudget, c.TempDir = 0, 0, ""
 		st.ROHConfig = &c
 	}
 	sites := filepath.Join(cfg.Out, "sites.tsv.gz")
@@ -223,5 +229,80 @@ func (f *shardRun) writeState(cfg *Config, read *vcfscan.Options, rd *vcfscan.Re
 		}
 	}
 	st.WallSeconds = wall
-	return shard.WriteFile(f.stateOut, st)
+	if err := shard.WriteFile(f.stateOut, st); err != nil {
+		return err
+	}
+	if pieces != nil {
+		pieces.tmp = "" // in place with its state
+	}
+	return nil
+}
+
+// piecesOut is the pieces file of a shard (roh.PieceCollector.WritePieces)
+// on its way into place beside the state.
+type piecesOut struct {
+	tmp    string // path while not in place with its state, else ""
+	sha256 string
+	size   int64
+}
+
+// discard removes the file unless it went into place with its state.
+func (p *piecesOut) discard() {
+	if p != nil && p.tmp != "" {
+		os.Remove(p.tmp)
+		p.tmp = ""
+	}
+}
+
+// writePieces writes the raw data of the chromosomes this shard holds in
+// part to a temporary file beside the state, window by window (memory
+// stays within the budget; see roh.PieceCollector.WritePieces), and adds
+// the records of the other contigs to rres.Excluded. It returns nil when
+// the shard holds no chromosome in part.
+func (f *shardRun) writePieces(contigs []vcfscan.Contig, rres *roh.Result) (*piecesOut, error) {
+	if f.pc == nil {
+		return nil, nil
+	}
+	tmp, err := os.CreateTemp(filepath.Dir(f.stateOut), ".fgauge-pieces-*")
+	if err != nil {
+		return nil, fmt.Errorf("writing the pieces of split chromosomes: %w", err)
+	}
+	p := &piecesOut{tmp: tmp.Name()}
+	h := sha256.New()
+	bw := bufio.NewWriterSize(io.MultiWriter(tmp, h), 1<<20)
+	excl, err := f.pc.WritePieces(bw, contigs)
+	if err == nil {
+		err = bw.Flush()
+	}
+	if err == nil {
+		err = tmp.Sync()
+	}
+	if cerr := tmp.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		p.discard()
+		return nil, fmt.Errorf("writing the pieces of split chromosomes to %s: %w", filepath.Dir(f.stateOut), err)
+	}
+	st, err := os.Stat(p.tmp)
+	if err != nil {
+		p.discard()
+		return nil, err
+	}
+	p.size, p.sha256 = st.Size(), hex.EncodeToString(h.Sum(nil))
+	if rres.Excluded == nil {
+		rres.Excluded = map[string]int64{}
+	}
+	for k, v := range excl {
+		rres.Excluded[k] += v
+	}
+	return p, nil
+}
+
+// close frees the piece collector's memory and temporary files (on
+// failure; a no-op once its pieces are written).
+func (f *shardRun) close() {
+	if f.pc != nil {
+		f.pc.Close()
+	}
 }

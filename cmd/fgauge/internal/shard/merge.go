@@ -160,10 +160,11 @@ type merged struct {
 	readAll  int64
 	warnings []vcfscan.Warning
 	wall     float64
+	mem      *runsummary.Memory
 }
 
 // combine merges the accumulators of ordered states.
-func combine(ls []loadedState, threads int) (*merged, error) {
+func combine(ls []loadedState, cfg *MergeConfig, mem *runsummary.Memory) (*merged, error) {
 	// loadStates has already folded every state's sums into the first.
 	m := &merged{first: ls[0].st, totals: ls[0].st.Totals}
 	warn := map[string]*vcfscan.Warning{}
@@ -214,7 +215,7 @@ func combine(ls []loadedState, threads int) (*merged, error) {
 	if ls[0].st.ROH == nil {
 		return m, nil
 	}
-	rres, err := combineROH(ls, threads)
+	rres, err := combineROH(ls, cfg, mem)
 	if err != nil {
 		return nil, err
 	}
@@ -223,36 +224,54 @@ func combine(ls []loadedState, threads int) (*merged, error) {
 }
 
 // combineROH gathers the runs of whole chromosomes and detects the
-// chromosomes split across shards on their joined data.
-func combineROH(ls []loadedState, threads int) (*roh.Result, error) {
+// chromosomes split across shards on their joined data, read window by
+// window from the shards' pieces files within the memory budget.
+func combineROH(ls []loadedState, cfg *MergeConfig, mem *runsummary.Memory) (*roh.Result, error) {
 	f := ls[0].st
 	r := &roh.Result{Method: f.ROH.Method, Samples: f.ROH.Samples, Classes: f.ROH.Classes,
 		GenotypeError: f.ROH.GenotypeError, CMPerMB: f.ROH.CMPerMB, Fit: f.ROH.Fit, Excluded: map[string]int64{}}
 	var pieceOrder []string
-	pieces := map[string][]roh.Piece{}
+	pieces := map[string][]roh.PieceRef{}
 	for _, l := range ls {
 		if err := r.Merge(l.st.ROH); err != nil {
 			return nil, fmt.Errorf("%s: %w: %v", l.path, ErrMismatch, err)
 		}
-		for _, p := range l.st.Pieces {
-			if _, ok := pieces[p.Name]; !ok {
-				pieceOrder = append(pieceOrder, p.Name)
+		if l.st.PiecesFile == "" {
+			continue
+		}
+		p := SiteTablePath(l.path, l.st.PiecesFile)
+		file, err := os.Open(p)
+		if err != nil {
+			return nil, fmt.Errorf("%s: pieces file of this shard: %w", l.path, err)
+		}
+		defer file.Close()
+		set, err := roh.OpenPieces(file, l.st.PiecesBytes, p)
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w: %v", l.path, ErrCorrupt, err)
+		}
+		for i, info := range set.Pieces() {
+			if _, ok := pieces[info.Name]; !ok {
+				pieceOrder = append(pieceOrder, info.Name)
 			}
-			pieces[p.Name] = append(pieces[p.Name], p)
+			pieces[info.Name] = append(pieces[info.Name], roh.PieceRef{Set: set, Index: i})
 		}
 	}
 	if len(pieceOrder) > 0 {
 		if f.ROHConfig == nil {
 			return nil, fmt.Errorf("%s: %w: pieces of chromosomes without detection settings", ls[0].path, ErrCorrupt)
 		}
-		cfg := *f.ROHConfig
-		cfg.Threads = threads
-		groups := make([][]roh.Piece, len(pieceOrder))
+		rc := *f.ROHConfig
+		rc.Threads, rc.MemoryBudget, rc.TempDir = cfg.Threads, mem.BudgetBytes, cfg.TempDir
+		groups := make([][]roh.PieceRef, len(pieceOrder))
 		for i, n := range pieceOrder {
 			groups[i] = pieces[n]
 		}
-		joined, err := roh.JoinAndDetect(&cfg, r.Samples, groups)
+		joined, ms, err := roh.JoinAndDetectPiecesStats(&rc, r.Samples, groups)
+		mem.PeakHeldBytes, mem.InFlightBytes, mem.SpilledBytes = ms.PeakHeld, ms.InFlight, ms.SpilledBytes
 		if err != nil {
+			if errors.Is(err, roh.ErrPieces) {
+				return nil, fmt.Errorf("%w: %v", ErrCorrupt, err)
+			}
 			return nil, err
 		}
 		have := map[string]bool{}
@@ -288,10 +307,20 @@ func combineROH(ls []loadedState, threads int) (*roh.Result, error) {
 
 // MergeConfig says which states to merge and where to write the outputs.
 type MergeConfig struct {
-	States      []string // state files, in any order
-	Out         string   // output folder
-	Force       bool     // overwrite results already in Out
-	Threads     int      // detection workers for chromosomes split across shards
+	States  []string // state files, in any order
+	Out     string   // output folder
+	Force   bool     // overwrite results already in Out
+	Threads int      // detection workers for chromosomes split across shards
+	// MemoryBudget bounds the joined data of split chromosomes in memory
+	// (see roh.Config.MemoryBudget; 0 means the scan's default); beyond
+	// it, windows go to unlinked files in TempDir ("" = the system's).
+	MemoryBudget int64
+	TempDir      string
+	// DefaultBudget is the budget when MemoryBudget is 0.
+	DefaultBudget int64
+	// LimitHeap sets the Go runtime's soft memory limit from the budget
+	// (runsummary.SetHeapLimit): for the command, which owns the process.
+	LimitHeap   bool
 	Version     string   // fgauge version, for run.json
 	CommandLine []string // for run.json
 	Stderr      io.Writer
@@ -316,10 +345,31 @@ func Merge(ctx context.Context, cfg MergeConfig) (res *MergeResult, err error) {
 	if err != nil {
 		return nil, err
 	}
-	m, err := combine(ls, cfg.Threads)
+	budget := cfg.MemoryBudget
+	if budget <= 0 {
+		budget = cfg.DefaultBudget
+	}
+	if budget <= 0 {
+		budget = roh.DefaultMemoryBudget
+	}
+	tmp := cfg.TempDir
+	if tmp == "" {
+		tmp = os.TempDir()
+	}
+	mem := &runsummary.Memory{BudgetBytes: budget, TempDir: tmp, HeapLimitBytes: -1}
+	if cfg.LimitHeap {
+		mem.HeapLimitBytes = runsummary.SetHeapLimit(budget, len(ls[0].st.Samples), cfg.Threads)
+	}
+	if cfg.TempDir != "" {
+		if err := roh.CheckTempDir(cfg.TempDir); err != nil {
+			return nil, err
+		}
+	}
+	m, err := combine(ls, &cfg, mem)
 	if err != nil {
 		return nil, err
 	}
+	m.mem = mem
 	if ctx.Err() != nil {
 		return nil, ctx.Err()
 	}
@@ -372,7 +422,7 @@ func mergeRunInfo(cfg *MergeConfig, ls []loadedState, m *merged, start time.Time
 	facts := &runsummary.Facts{Version: cfg.Version, Argv: cfg.CommandLine, InputPath: f.InputPath, InputSize: f.InputSize, InputFormat: f.InputFormat,
 		Read: m.read, Kept: m.kept, Skipped: m.skipped, Masked: m.masked,
 		SamplesInFile: f.SamplesInFile, Samples: f.Samples, Warnings: m.warnings,
-		WallSeconds: time.Since(start).Seconds()}
+		WallSeconds: time.Since(start).Seconds(), Memory: m.mem}
 	info := runsummary.Build(cfg.Stderr, facts, m.totals, m.rres)
 	sh := &runsummary.Shards{Count: len(ls), RecordsRead: m.readAll, RecordsOutsideRegions: m.outside, ShardWallSeconds: m.wall}
 	for _, l := range ls {

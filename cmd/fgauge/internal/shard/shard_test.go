@@ -2,6 +2,7 @@ package shard_test
 
 import (
 	"context"
+	"encoding/binary"
 	"errors"
 	"fmt"
 	"io"
@@ -278,3 +279,19 @@ func FuzzReadStateFile(f *testing.F) {
 
 // TestShardOrderWithoutContigLines merges shards of a file whose contigs
 // (2, 1, 10 in file order) have no ##contig lines: the genome order comes
+
+// TestOldStateFormat: a state of format 1 (pieces inside the payload) is
+// refused with a message asking to scan the shards again.
+func TestOldStateFormat(t *testing.T) {
+	raw := make([]byte, 8+4+8+32+16) // magic, version, length, SHA-256, payload
+	copy(raw, "FGSTATE\x00")
+	binary.LittleEndian.PutUint32(raw[8:], 1)
+	p := filepath.Join(t.TempDir(), "old.state")
+	if err := os.WriteFile(p, raw, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, err := shard.ReadFile(p)
+	if !errors.Is(err, shard.ErrCorrupt) || !strings.Contains(err.Error(), "older fgauge") || !strings.Contains(err.Error(), "scan the shards again") {
+		t.Errorf("format 1 state: %v", err)
+	}
+}

@@ -14,11 +14,18 @@
 // A file whose magic, version, length or checksum do not match is rejected
 // before anything in it is decoded.
 //
+// Format 2 (this version) keeps the pieces of split chromosomes in a side
+// file; format 1 states (pieces inside the payload) are refused with a
+// message asking to scan the shards again.
+//
 // Chromosomes split across shards: a shard that holds only part of an
 // autosome keeps that part's raw per-site data (positions, the frequencies
 // given to the detector, 2-bit genotypes and capped likelihoods) instead of
-// its runs; merge joins the parts in position order and runs detection on
-// the joined chromosome. The joined data are the data a single pass
+// its runs, in a pieces file beside the state (PiecesPath: STATE.roh_pieces,
+// written window by window by roh.PieceCollector.WritePieces, its size and
+// SHA-256 recorded in the state); merge reads the parts window by window
+// in position order (roh.JoinAndDetectPieces) and runs detection on the
+// joined chromosome within its memory budget. The joined data are the data a single pass
 // collects, so the runs are identical by construction. The alternative,
 // detecting runs in overlapping margins and stitching them, can only be
 // made approximately equal (an HMM path depends on every site of the
@@ -54,7 +61,7 @@ import (
 
 const (
 	stateMagic  = "FGSTATE\x00"
-	stateFormat = 1
+	stateFormat = 2
 	stateHead   = 8 + 4 + 8 + sha256.Size
 )
 
@@ -102,8 +109,13 @@ type State struct {
 	Totals    *stats.Totals
 	ROH       *roh.Result // runs of whole chromosomes; nil with --no-roh
 	ROHConfig *roh.Config
-	Pieces    []roh.Piece // raw data of chromosomes held in part
-	Pedigree  []string    // f_pedigree column, nil without --pedigree
+	// PiecesFile holds the raw data of chromosomes held in part (relative
+	// to the state's folder, or absolute; "" when none), with its size and
+	// SHA-256.
+	PiecesFile   string
+	PiecesBytes  int64
+	PiecesSHA256 string
+	Pedigree     []string // f_pedigree column, nil without --pedigree
 
 	SitesFile    string // relative to the state file's folder, or absolute
 	SitesSHA256  string
@@ -178,6 +190,9 @@ func ReadFile(path string) (*State, error) {
 		return nil, bad("no shard-state header")
 	}
 	if v := binary.LittleEndian.Uint32(raw[8:]); v != stateFormat {
+		if v < stateFormat {
+			return nil, bad("state format %d was written by an older fgauge (this one reads format %d, with split chromosomes in a side file); scan the shards again with this version", v, stateFormat)
+		}
 		return nil, bad("state format %d, this fgauge reads format %d", v, stateFormat)
 	}
 	n := binary.LittleEndian.Uint64(raw[12:])
@@ -215,20 +230,25 @@ func SiteTablePath(statePath, p string) string {
 	return filepath.Join(filepath.Dir(statePath), p)
 }
 
-// CheckSiteTables verifies that the shard's site tables exist and match
-// the checksums recorded in its state.
+// PiecesPath is where a shard scan writing the state statePath puts the
+// pieces of the chromosomes it holds in part.
+func PiecesPath(statePath string) string { return statePath + ".roh_pieces" }
+
+// CheckSiteTables verifies that the shard's site tables and its pieces
+// file exist and match the checksums recorded in its state.
 func (st *State) CheckSiteTables(statePath string) error {
-	for _, f := range [][2]string{{st.SitesFile, st.SitesSHA256}, {st.PopSitesFile, st.PopSHA256}} {
+	for _, f := range [][3]string{{st.SitesFile, st.SitesSHA256, "site table"}, {st.PopSitesFile, st.PopSHA256, "site table"},
+		{st.PiecesFile, st.PiecesSHA256, "pieces file"}} {
 		if f[0] == "" {
 			continue
 		}
 		p := SiteTablePath(statePath, f[0])
 		sum, err := FileSHA256(p)
 		if err != nil {
-			return fmt.Errorf("%s: site table of this shard: %w", statePath, err)
+			return fmt.Errorf("%s: %s of this shard: %w", statePath, f[2], err)
 		}
 		if sum != f[1] {
-			return fmt.Errorf("%s: %w: site table %s changed since the state was written (checksum differs)", statePath, ErrCorrupt, p)
+			return fmt.Errorf("%s: %w: %s %s changed since the state was written (checksum differs)", statePath, ErrCorrupt, f[2], p)
 		}
 	}
 	return nil
@@ -265,6 +285,7 @@ func RelTo(statePath, target string) string {
 var scanFlagsIgnored = map[string]bool{
 	"o": true, "out": true, "force": true, "threads": true, "region": true,
 	"report": true, "no-progress": true, "cpu-profile": true, "state-out": true, "skip-if-valid-state": true,
+	"memory-budget": true, "temp-dir": true,
 	"guard-line-bytes": true, "guard-samples": true, "guard-alleles": true, "guard-block-bytes": true,
 }
 
