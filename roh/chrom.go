@@ -2,23 +2,16 @@ package roh
 
 import "encoding/binary"
 
-// chromData holds what detection needs of one chromosome: per-site
-// positions and allele frequencies, and per-sample genotypes packed 2 bits
-// per call (32 calls per uint64), sample-major so that a worker walks one
-// sample's calls contiguously. Phred likelihoods, where present, take 3
-// bytes per call (capped at 255) in a per-sample slice indexed by
-// plSite.
-//
-// Memory bound for one chromosome of S sites and N samples while it is
-// collected: N*S/4 bytes of genotypes (up to twice that transiently while
-// the per-sample slices grow) + 3*N bytes per site with likelihoods + 20*S
-// bytes of per-site data; while it is detected, another 48*S bytes of
-// shared tables and 84*S bytes per worker (two samples at a time; 50*S
-// with Fit or likelihoods, one sample at a time). At most two
-// chromosomes are held at once: the one being read and the one being
-// detected. BenchmarkCollect measures 0.36 heap bytes per sample-site at
-// 1,000 samples and 20,000 sites (0.25 packed, the rest slice growth and
-// per-site data).
+// chromData holds one whole chromosome for the detectors that need it
+// whole (the rules, the fitted HMM; see chromRun.materialize): per-site
+// positions and allele frequencies, and per-sample genotypes packed 2
+// bits per call (32 calls per uint64), sample-major so that a worker walks
+// one sample's calls contiguously. Phred likelihoods, where present, take
+// 3 bytes per call (capped at 255) in a per-sample slice indexed by
+// plSite. For S sites and N samples it takes N*S/4 bytes of genotypes,
+// 3*N bytes per site with likelihoods, 20*S bytes of per-site data, and
+// while it is detected another 48*S bytes of shared tables and 50*S bytes
+// per worker.
 type chromData struct {
 	id     int
 	name   string
@@ -30,10 +23,6 @@ type chromData struct {
 	plSite []int32
 	pl     [][]uint8 // nil until a site with likelihoods is seen
 	nPL    int32
-	stage  []uint64 // per sample, the calls of the current block of 32 sites (Collector only)
-	// per sample, the likelihoods of the current block of plBlock sites
-	// with likelihoods (Collector only)
-	stagePL []uint8
 
 	// built before detection, shared read-only by workers
 	emit  []float32 // 8 per site: see emissionRow
@@ -76,43 +65,3 @@ var unpackByte = func() (t [256]uint32) {
 	}
 	return
 }()
-
-// flushStage appends the staged block of calls to each sample's words.
-// Sites already in geno are those of whole earlier blocks, so the staged
-// block is always the next word.
-func (ch *chromData) flushStage() {
-	if ch.stage == nil || len(ch.pos) == 0 {
-		return
-	}
-	if len(ch.geno) > 0 && len(ch.geno[0]) == (len(ch.pos)+31)/32 {
-		return // already flushed
-	}
-	for s, v := range ch.stage {
-		ch.geno[s] = append(ch.geno[s], v)
-		ch.stage[s] = 0
-	}
-}
-
-// plBlock is the number of sites with likelihoods staged per sample before
-// they are appended to the per-sample slices.
-const plBlock = 32
-
-// flushStagePL appends the staged likelihoods (the sites with likelihoods
-// not yet in ch.pl) to each sample's slice.
-func (ch *chromData) flushStagePL() {
-	if ch.stagePL == nil {
-		return
-	}
-	ns := len(ch.pl)
-	have := 0
-	if ns > 0 {
-		have = len(ch.pl[0]) / 3
-	}
-	k := int(ch.nPL) - have // staged sites, at most plBlock
-	if k <= 0 {
-		return
-	}
-	for s := 0; s < ns; s++ {
-		ch.pl[s] = append(ch.pl[s], ch.stagePL[s*plBlock*3:s*plBlock*3+3*k]...)
-	}
-}

@@ -9,14 +9,15 @@ import (
 	"fgauge/vcfscan"
 )
 
-// Collector receives batches in input order, keeps the genotypes of the
-// current chromosome and hands each finished chromosome to a pool of
-// detection workers while reading continues. At most two chromosomes are
-// held: the one being read and the one being detected (a third waits for
-// the detection before it is queued).
+// Collector receives batches in input order, gathers the sites of the
+// current chromosome into windows (see window.go) and hands each full
+// window to detection while reading continues. Memory is bounded by
+// Config.MemoryBudget: windows beyond it wait in a temporary file. At most
+// two chromosomes are in flight: the one being read and the one finishing
+// its detection.
 //
-// A Collector is used from one goroutine (AddBatch, Finish); its workers
-// are internal.
+// A Collector is used from one goroutine (AddBatch, Finish, Close); its
+// workers are internal.
 type Collector struct {
 	cfg     Config
 	source  string
@@ -24,41 +25,29 @@ type Collector struct {
 	contigs []vcfscan.Contig
 	auto    autosomeSet
 	autoOf  []int8 // per contig id: 0 unknown, 1 autosome, 2 other
+	geo     geometry
 
-	cur      *chromData
-	curSkip  int // contig id of the excluded contig being read, or -1
+	cur      *chromRun // chromosome being read
+	win      *window   // its window being filled
+	stage    []uint64  // per sample, the calls of the current 32 sites
+	curSkip  int       // contig id of the excluded contig being read, or -1
 	done     map[int]bool
 	lastSeq  int64
 	excluded map[string]int64
-	chroms   []*chromWork
+	chroms   []*chromRun // in input order
+	settled  int         // chroms[:settled] are finished
 
-	jobs     chan job
-	workers  sync.WaitGroup
-	pending  *sync.WaitGroup // detection of inFlight
-	inFlight *chromWork
-	density  float64 // sites per bp of the last chromosome with a length
+	tasks   chan task
+	workers sync.WaitGroup
+	mem     memBudget
+	free    chan *window
 
 	errMu sync.Mutex
 	err   error
 
 	finished bool
-	oneLane  bool // tests: detect one sample at a time only
-}
-
-// chromWork is one chromosome sent to detection.
-type chromWork struct {
-	res       ChromResult // summary now, runs once detected
-	data      *chromData
-	perSample [][]Run
-	fitF      []float64
-	fitRate   []float64
-	mapSource string
-}
-
-type job struct {
-	w      *chromWork
-	s0, s1 int
-	done   *sync.WaitGroup
+	whole    bool // tests: the whole-chromosome passes for the fixed HMM too
+	raw      bool // PieceCollector: keep every contig's windows, detect nothing
 }
 
 // NewCollector starts cfg.Threads detection workers for the given samples
@@ -81,14 +70,23 @@ func NewCollector(cfg *Config, samples []string, contigs []vcfscan.Contig) (*Col
 		done:     map[int]bool{},
 		lastSeq:  -1,
 		excluded: map[string]int64{},
-		jobs:     make(chan job, 4*c.Threads),
+		tasks:    make(chan task, 4*c.Threads),
+		free:     make(chan *window, 4),
 	}
+	col.setGeometry()
 	col.UpdateContigs(contigs)
 	for i := 0; i < c.Threads; i++ {
 		col.workers.Add(1)
 		go col.worker()
 	}
 	return col, nil
+}
+
+// setGeometry fixes the window layout from the sample count and budget.
+func (c *Collector) setGeometry() {
+	hmm := c.cfg.Method == MethodHMM && !c.cfg.Fit && !c.whole && !c.raw
+	c.geo = newGeometry(len(c.samples), c.cfg.MemoryBudget, hmm)
+	c.mem = memBudget{limit: c.cfg.MemoryBudget, reserve: 6 * c.geo.bytes(false)}
 }
 
 // SetSource names the input in error messages (default "input").
@@ -174,9 +172,9 @@ func (c *Collector) AddBatch(b *vcfscan.Batch, freqs []float64) error {
 			c.excluded[c.contigName(id)]++
 			continue
 		}
-		ch := c.cur
-		if n := len(ch.pos); n > 0 && rec.Pos < ch.pos[n-1] {
-			return c.parseErr(rec.Line, "POS", fmt.Sprintf("position %d after %d on %s", rec.Pos, ch.pos[n-1], ch.name), vcfscan.ErrUnsorted)
+		r := c.cur
+		if r.nSites > 0 && rec.Pos < r.lastPos {
+			return c.parseErr(rec.Line, "POS", fmt.Sprintf("position %d after %d on %s", rec.Pos, r.lastPos, r.name), vcfscan.ErrUnsorted)
 		}
 		calls := b.GT[i*ns : (i+1)*ns]
 		p := math.NaN()
@@ -186,50 +184,80 @@ func (c *Collector) AddBatch(b *vcfscan.Batch, freqs []float64) error {
 		if p != p {
 			p = cohortFreq(calls)
 		}
-		t := len(ch.pos)
-		ch.pos = append(ch.pos, rec.Pos)
-		ch.freq = append(ch.freq, p)
-		// Calls go to a staging word per sample (sequential writes) and
-		// are appended to the per-sample slices once per 32 sites.
-		if ch.stage == nil {
-			ch.stage = make([]uint64, ns)
-		}
-		stage := ch.stage[:len(calls)]
-		sh := uint(t&31) * 2
-		for s, g := range calls {
-			if g > 3 {
-				g = 3 // haploid calls count as missing
-			}
-			stage[s] |= uint64(g) << sh
-		}
-		if t&31 == 31 {
-			ch.flushStage()
-		}
+		var pl []uint16
 		if len(b.PL) > 0 && i < len(b.HasPL) && b.HasPL[i] {
-			if ch.pl == nil {
-				ch.pl = make([][]uint8, ns)
-				ch.stagePL = make([]uint8, ns*plBlock*3)
-			}
-			// Likelihoods are staged like the calls: plBlock sites per
-			// sample, appended to the per-sample slices in one copy.
-			pl := b.PL[3*i*ns : 3*(i+1)*ns]
-			k := 3 * int(ch.nPL%plBlock)
-			stage := ch.stagePL[:ns*plBlock*3]
-			for s := 0; s < ns; s++ {
-				d := stage[s*plBlock*3+k : s*plBlock*3+k+3 : s*plBlock*3+k+3]
-				q := pl[3*s : 3*s+3 : 3*s+3]
-				d[0], d[1], d[2] = cap255(q[0]), cap255(q[1]), cap255(q[2])
-			}
-			ch.plSite = append(ch.plSite, ch.nPL)
-			ch.nPL++
-			if ch.nPL%plBlock == 0 {
-				ch.flushStagePL()
-			}
-		} else {
-			ch.plSite = append(ch.plSite, -1)
+			pl = b.PL[3*i*ns : 3*(i+1)*ns]
 		}
+		c.addSite(rec.Pos, p, calls, pl)
 	}
 	return nil
+}
+
+// addSite appends one site to the current chromosome's window, sending
+// the window to detection when it is full. Calls go to a staging word
+// per sample (sequential writes) and into the window once per 32 sites.
+func (c *Collector) addSite(pos int64, p float64, calls []vcfscan.Geno, pl []uint16) {
+	r := c.cur
+	w := c.win
+	if w == nil {
+		w = c.getWindow()
+		w.reset(r.nWin, r.nSites, r.lastCM)
+		c.win = w
+	}
+	if r.nSites == 0 {
+		r.firstPos = pos
+	}
+	r.nSites++
+	r.lastPos = pos
+	lt := w.n
+	w.n++
+	w.pos = append(w.pos, pos)
+	w.freq = append(w.freq, p)
+	if c.stage == nil {
+		c.stage = make([]uint64, len(calls))
+	}
+	stage := c.stage[:len(calls)]
+	sh := uint(lt&31) * 2
+	for s, g := range calls {
+		if g > 3 {
+			g = 3 // haploid calls count as missing
+		}
+		stage[s] |= uint64(g) << sh
+	}
+	if pl != nil {
+		c.geo.allocPL(w)
+		k := w.nPL
+		w.nPL++
+		w.plSite = append(w.plSite, int32(k))
+		stride := 3 * c.geo.w
+		for s := range calls {
+			d := w.pl[stride*s+3*k : stride*s+3*k+3 : stride*s+3*k+3]
+			d[0], d[1], d[2] = cap255(pl[3*s]), cap255(pl[3*s+1]), cap255(pl[3*s+2])
+		}
+	} else {
+		w.plSite = append(w.plSite, -1)
+	}
+	if lt&31 == 31 {
+		c.flushStage()
+	}
+	if w.n == c.geo.w {
+		c.win = nil
+		r.push(w)
+	}
+}
+
+// flushStage moves the staged calls into the current window.
+func (c *Collector) flushStage() {
+	w := c.win
+	if w == nil || w.n == 0 {
+		return
+	}
+	k := (w.n - 1) >> 5
+	ww := c.geo.ww
+	for s, v := range c.stage {
+		w.geno[s*ww+k] = v
+		c.stage[s] = 0
+	}
 }
 
 func cap255(v uint16) uint8 {
@@ -260,11 +288,7 @@ func cohortFreq(calls []vcfscan.Geno) float64 {
 
 // switchChrom closes the current chromosome and opens id.
 func (c *Collector) switchChrom(id int, line int64) error {
-	if c.cur != nil {
-		c.done[c.cur.id] = true
-		c.dispatch(c.cur)
-		c.cur = nil
-	}
+	c.closeChrom()
 	if c.curSkip >= 0 {
 		c.done[c.curSkip] = true
 		c.curSkip = -1
@@ -272,41 +296,50 @@ func (c *Collector) switchChrom(id int, line int64) error {
 	if c.done[id] {
 		return c.parseErr(line, "CHROM", fmt.Sprintf("chromosome %s seen again after another", c.contigName(id)), vcfscan.ErrUnsorted)
 	}
-	if !c.isAutosome(id) {
+	if !c.raw && !c.isAutosome(id) {
 		c.curSkip = id
 		return nil
 	}
-	c.cur = newChromData(id, c.contigs[id].Name, c.contigs[id].Length, len(c.samples))
-	c.reserve(c.cur)
+	// at most two chromosomes in flight: the one finishing detection and
+	// this one
+	c.settle(len(c.chroms))
+	c.cur = c.newChromRun(id)
+	c.chroms = append(c.chroms, c.cur)
 	return nil
 }
 
-// reserve gives the per-sample genotype slices of a new chromosome room
-// for the sites expected from the previous chromosome's density and this
-// one's header length (plus 10%), so that they rarely grow by copying.
-// Without lengths, or for the first chromosome, slices grow as needed.
-func (c *Collector) reserve(ch *chromData) {
-	if c.density <= 0 || ch.length <= 0 {
+// closeChrom sends the last window of the current chromosome to
+// detection; detection finishes in the background.
+func (c *Collector) closeChrom() {
+	r := c.cur
+	if r == nil {
 		return
 	}
-	sites := c.density * float64(ch.length) * 1.1
-	words := int(sites/32) + 1
-	if words > 1<<26 {
-		return
+	c.done[r.id] = true
+	if w := c.win; w != nil {
+		if w.n&31 != 0 {
+			c.flushStage()
+		}
+		c.win = nil
+		r.push(w)
 	}
-	for s := range ch.geno {
-		ch.geno[s] = make([]uint64, 0, words)
+	close(r.in)
+	c.cur = nil
+}
+
+// settle waits until the chromosomes before chroms[upto] are detected.
+func (c *Collector) settle(upto int) {
+	for ; c.settled < upto; c.settled++ {
+		<-c.chroms[c.settled].done
 	}
 }
 
 // prepare computes genetic positions and the shared emission and
-// transition tables of a finished chromosome.
-func (c *Collector) prepare(ch *chromData, w *chromWork) {
+// transition tables of a whole chromosome (whole-chromosome passes).
+func (c *Collector) prepare(ch *chromData) {
 	n := len(ch.pos)
 	ch.cm = make([]float64, n)
-	w.mapSource = "cm_per_mb"
 	if m := c.cfg.Map.Chrom(ch.name); m != nil && len(m.Pos) > 0 {
-		w.mapSource = "genetic_map"
 		for i, p := range ch.pos {
 			ch.cm[i] = m.At(p, c.cfg.CMPerMB)
 		}
@@ -328,81 +361,6 @@ func (c *Collector) prepare(ch *chromData, w *chromWork) {
 	}
 }
 
-// dispatch queues a finished chromosome for detection, after the previous
-// one is done (bounding memory).
-func (c *Collector) dispatch(ch *chromData) {
-	ch.flushStage()
-	ch.flushStagePL()
-	w := &chromWork{data: ch, perSample: make([][]Run, len(c.samples))}
-	w.res = ChromResult{Name: ch.name, Length: ch.length, NSites: len(ch.pos)}
-	if n := len(ch.pos); n > 0 {
-		w.res.FirstPos, w.res.LastPos = ch.pos[0], ch.pos[n-1]
-		if ch.length > 0 {
-			c.density = float64(n) / float64(ch.length)
-		}
-	}
-	c.chroms = append(c.chroms, w)
-	c.settle()
-	if len(ch.pos) == 0 || len(c.samples) == 0 {
-		w.release()
-		return
-	}
-	c.prepare(ch, w)
-	if c.cfg.Fit && c.cfg.Method == MethodHMM {
-		w.fitF = make([]float64, len(c.samples))
-		w.fitRate = make([]float64, len(c.samples))
-	}
-	ns := len(c.samples)
-	chunk := (ns + 4*c.cfg.Threads - 1) / (4 * c.cfg.Threads)
-	if chunk < 1 {
-		chunk = 1
-	}
-	wg := &sync.WaitGroup{}
-	var js []job
-	for s0 := 0; s0 < ns; s0 += chunk {
-		s1 := min(s0+chunk, ns)
-		wg.Add(1)
-		js = append(js, job{w: w, s0: s0, s1: s1, done: wg})
-	}
-	c.pending, c.inFlight = wg, w
-	go func() {
-		for _, j := range js {
-			c.jobs <- j
-		}
-	}()
-}
-
-// settle waits for the chromosome in detection, if any, and keeps only
-// its runs, so that its genotypes can be collected by the garbage
-// collector.
-func (c *Collector) settle() {
-	if c.pending != nil {
-		c.pending.Wait()
-		c.inFlight.release()
-		c.pending, c.inFlight = nil, nil
-	}
-}
-
-// release moves the detected runs into the chromosome's result and drops
-// the raw data.
-func (w *chromWork) release() {
-	w.res.MapSource = w.mapSource
-	w.res.FitF, w.res.FitRate = w.fitF, w.fitRate
-	for _, rs := range w.perSample {
-		w.res.Runs = append(w.res.Runs, rs...)
-	}
-	w.data, w.perSample = nil, nil
-}
-
-func (c *Collector) worker() {
-	defer c.workers.Done()
-	var sc [2]hmmScratch
-	for j := range c.jobs {
-		c.detect(&sc, j)
-		j.done.Done()
-	}
-}
-
 func (c *Collector) setErr(err error) {
 	c.errMu.Lock()
 	if c.err == nil {
@@ -417,56 +375,32 @@ func (c *Collector) workerErr() error {
 	return c.err
 }
 
-// detect finds the runs of samples j.s0..j.s1-1 on one chromosome. With
-// the HMM and fixed parameters, samples go through the passes two at a
-// time (forwardViterbi2, backward2).
-func (c *Collector) detect(scs *[2]hmmScratch, j job) {
-	defer func() {
-		if r := recover(); r != nil {
-			c.setErr(fmt.Errorf("roh: detection on %s failed: %v", j.w.data.name, r))
-		}
-	}()
-	ch := j.w.data
-	sc := &scs[0]
+func (c *Collector) failed() bool { return c.workerErr() != nil }
+
+// detectWhole finds the runs of sample s on a whole chromosome with the
+// whole-chromosome passes: the rules, or the HMM one sample at a time
+// (with EM when fitting, storing the fitted values in fitF and fitRate).
+func (c *Collector) detectWhole(ch *chromData, s int, sc *hmmScratch, fitF, fitRate []float64) []Run {
 	maxGap := int64(c.cfg.MaxGapKB * 1000)
-	hasPL := ch.pl != nil
-	pairs := c.cfg.Method == MethodHMM && !c.cfg.Fit && !c.oneLane
-	for s := j.s0; s < j.s1; s++ {
-		if c.cfg.Method == MethodRules {
-			j.w.perSample[s] = rulesRuns(ch, s, sc, &c.cfg.Rules, maxGap)
-			continue
-		}
-		sc.code = grow(sc.code, len(ch.pos))
-		ch.unpack(s, sc.code)
-		if pairs && s+1 < j.s1 {
-			s2 := &scs[1]
-			s2.code = grow(s2.code, len(ch.pos))
-			ch.unpack(s+1, s2.code)
-			if hasPL {
-				sc.fillEmissions(ch, s)
-				s2.fillEmissions(ch, s+1)
-			}
-			forwardViterbi2(ch, ch.trans, c.cfg.AutozygousPrior, sc, s2, !hasPL)
-			backward2(ch.trans, c.cfg.AutozygousPrior, sc, s2)
-			j.w.perSample[s] = hmmRuns(ch, s, sc.code, sc.path, sc.post, maxGap)
-			j.w.perSample[s+1] = hmmRuns(ch, s+1, s2.code, s2.path, s2.post, maxGap)
-			s++
-			continue
-		}
-		if hasPL || c.cfg.Fit {
-			sc.fillEmissions(ch, s)
-		}
-		u, f := ch.trans, c.cfg.AutozygousPrior
-		if c.cfg.Fit {
-			fa, a := sc.fitSample(ch.cm, c.cfg.AutozygousPrior, c.cfg.Rate, c.cfg.FitIterations)
-			j.w.fitF[s], j.w.fitRate[s] = fa, a
-			switchWeights(sc.tr, ch.cm, a)
-			u, f = sc.tr, fa
-		}
-		sc.forwardViterbi(ch, u, f, !hasPL && !c.cfg.Fit)
-		sc.backward(u, f, ch.cm, nil, sc.path)
-		j.w.perSample[s] = hmmRuns(ch, s, sc.code, sc.path, sc.post, maxGap)
+	if c.cfg.Method == MethodRules {
+		return rulesRuns(ch, s, sc, &c.cfg.Rules, maxGap)
 	}
+	hasPL := ch.pl != nil
+	sc.code = grow(sc.code, len(ch.pos))
+	ch.unpack(s, sc.code)
+	if hasPL || c.cfg.Fit {
+		sc.fillEmissions(ch, s)
+	}
+	u, f := ch.trans, c.cfg.AutozygousPrior
+	if c.cfg.Fit {
+		fa, a := sc.fitSample(ch.cm, c.cfg.AutozygousPrior, c.cfg.Rate, c.cfg.FitIterations)
+		fitF[s], fitRate[s] = fa, a
+		switchWeights(sc.tr, ch.cm, a)
+		u, f = sc.tr, fa
+	}
+	sc.forwardViterbi(ch, u, f, !hasPL && !c.cfg.Fit)
+	sc.backward(u, f, ch.cm, nil, sc.path)
+	return hmmRuns(ch, s, sc.code, sc.path, sc.post, maxGap)
 }
 
 // hmmRuns turns the Viterbi path into runs: maximal stretches in the
@@ -518,20 +452,12 @@ func hmmRuns(ch *chromData, s int, code, path []uint8, post []float64, maxGap in
 }
 
 // Finish waits for detection and returns the result. The Collector must
-// not be used afterwards.
+// not be used afterwards (Close is then a no-op).
 func (c *Collector) Finish() (*Result, error) {
 	if c.finished {
 		return nil, fmt.Errorf("roh: Finish called twice")
 	}
-	if c.cur != nil {
-		c.done[c.cur.id] = true
-		c.dispatch(c.cur)
-		c.cur = nil
-	}
-	c.settle()
-	c.finished = true
-	close(c.jobs)
-	c.workers.Wait()
+	c.shutdown()
 	if err := c.workerErr(); err != nil {
 		return nil, err
 	}
@@ -545,9 +471,31 @@ func (c *Collector) Finish() (*Result, error) {
 		MapUsed:       c.cfg.Map != nil,
 		Excluded:      c.excluded,
 	}
-	for _, w := range c.chroms {
-		r.Chroms = append(r.Chroms, w.res)
+	for _, ch := range c.chroms {
+		r.Chroms = append(r.Chroms, ch.result())
 	}
 	c.chroms = nil
 	return r, nil
+}
+
+// Close abandons detection (for example when the run is cancelled): it
+// stops the workers, waits for them and frees the temporary files. Safe
+// to call after Finish, and more than once.
+func (c *Collector) Close() {
+	if c.finished {
+		return
+	}
+	c.setErr(errClosed)
+	c.shutdown()
+	c.chroms = nil
+}
+
+var errClosed = fmt.Errorf("roh: collector closed")
+
+func (c *Collector) shutdown() {
+	c.closeChrom()
+	c.settle(len(c.chroms))
+	c.finished = true
+	close(c.tasks)
+	c.workers.Wait()
 }

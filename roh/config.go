@@ -71,6 +71,20 @@ type Config struct {
 
 	// Threads is the number of detection workers; 0 or less means 1.
 	Threads int
+
+	// MemoryBudget bounds, in bytes, the memory held for the chromosomes
+	// in detection (calls, per-site data and tables, sweep checkpoints):
+	// about N*3/4 + 52 bytes a site for N samples with the HMM, N/4 + 28
+	// with the rules, plus 3*N where likelihoods are stored. Beyond it,
+	// windows of sites are written to a temporary file in TempDir and read
+	// back twice; results do not change. 0 means DefaultMemoryBudget. The
+	// fitted HMM (Fit) and the rules detector still join each chromosome
+	// in memory for detection, whatever the budget.
+	MemoryBudget int64
+	// TempDir is the folder of those temporary files; "" means the
+	// system's (os.TempDir). Files are removed from the folder as soon as
+	// they are created, so none is left behind, even on interrupt.
+	TempDir string
 }
 
 // Rules are the thresholds of the rule-based detector.
@@ -272,6 +286,12 @@ func (c *Config) Validate() error {
 	}
 	if c.Threads < 1 {
 		c.Threads = 1
+	}
+	if c.MemoryBudget < 0 {
+		return bad("memory budget %d bytes: want a positive number (0 for the default)", c.MemoryBudget)
+	}
+	if c.MemoryBudget == 0 {
+		c.MemoryBudget = DefaultMemoryBudget
 	}
 	return nil
 }

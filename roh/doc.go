@@ -21,26 +21,31 @@
 // total length of a sample's runs over the autosomal length covered.
 //
 // The package consumes batches from vcfscan in input order through a
-// Collector, keeps the genotypes of one chromosome at a time (2 bits per
-// call, plus 3 bytes per call where phred likelihoods are present), and
-// detects runs on a bounded pool of goroutines while reading continues.
-// It does not read files itself (a genetic map comes read by package
-// genmap, the same reader the gene-drop simulator uses) and it computes no
-// per-site or per-sample statistics other than ROH.
+// Collector, gathers each chromosome's sites in windows of at most 1,024
+// sites (2 bits per call, plus 3 bytes per call where phred likelihoods
+// are present), and detects runs on a bounded pool of goroutines while
+// reading continues: the HMM runs as three sweeps over the windows
+// (window.go, sweep.go), the first while the next window is read. It does
+// not read files itself (a genetic map comes read by package genmap, the
+// same reader the gene-drop simulator uses; it reads back only the
+// temporary and pieces files it writes) and it computes no per-site or
+// per-sample statistics other than ROH.
 //
-// Memory: for a chromosome of S sites and N samples, N*S/4 bytes of packed
-// calls (at most twice that while the slices grow), 3 bytes per call where
-// likelihoods are present, about 70 bytes per site of shared tables, and
-// 84 bytes per site per worker during detection; at most two chromosomes
-// are held at once. BenchmarkCollect measures 0.36 heap bytes per
-// sample-site at 1,000 samples.
+// Memory is bounded by Config.MemoryBudget (DefaultMemoryBudget, 256 MiB,
+// when 0) whatever the chromosome length and the cohort size: windows
+// take about N*3/4 + 52 bytes a site for N samples with the HMM (calls,
+// Viterbi flags, forward and backward checkpoints every 128 sites,
+// per-site data), and those beyond the budget go to an unlinked temporary
+// file in Config.TempDir, written once and read back twice. Results do
+// not depend on the budget. Pieces of split chromosomes (PieceCollector)
+// are kept the same way, and WritePieces / JoinAndDetectPieces join them
+// within the budget. Exceptions: the fitted HMM (Fit) and the rules
+// detector join each chromosome in memory for detection (N/4 bytes a
+// site plus 50 to 84 bytes a site per worker).
 //
-// Speed (CPU time per call, 1,000 samples, BenchmarkDetect and
-// BenchmarkDetectLongChrom): storing calls about 2 ns; the HMM about 11 ns
-// more on a 5,000-site chromosome and 15 ns on a 200,000-site one (two
-// samples per sweep, so the per-site tables are read once per pair); the
-// rule-based detector about 5 ns. BenchmarkScanRatio compares with reading
-// the same file without detection.
+// Speed: see BenchmarkSweeps (each sweep alone), BenchmarkDetect,
+// BenchmarkShapes (100 x 1 M against 1,000 x 100 k) and
+// BenchmarkBoundedMemory (the two memory-target shapes).
 //
 // Results of disjoint whole chromosomes merge exactly (Result.Merge), so a
 // genome split into per-chromosome shards gives the same tables as one

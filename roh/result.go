@@ -133,6 +133,9 @@ func ColumnClass(col string) (mb float64, ok bool) {
 
 func fmtF(x float64) string { return numfmt.Float(x) }
 
+// appendF appends x as fmtF writes it, without allocating.
+func appendF(b []byte, x float64) []byte { return numfmt.AppendFloat(b, x) }
+
 // WriteRuns writes runs.tsv: a header line and one line per run, grouped
 // by sample (in sample order), then chromosome (input order), then start.
 func (r *Result) WriteRuns(w io.Writer) error {
@@ -172,7 +175,7 @@ func (r *Result) WriteRuns(w io.Writer) error {
 			buf = append(buf, '\t')
 			buf = strconv.AppendInt(buf, run.LengthBP(), 10)
 			buf = append(buf, '\t')
-			buf = append(buf, fmtF(lcm)...)
+			buf = appendF(buf, lcm)
 			buf = append(buf, '\t')
 			buf = strconv.AppendInt(buf, int64(run.NSites), 10)
 			buf = append(buf, '\t')
@@ -180,9 +183,9 @@ func (r *Result) WriteRuns(w io.Writer) error {
 			buf = append(buf, '\t')
 			buf = strconv.AppendInt(buf, int64(run.NMissing), 10)
 			buf = append(buf, '\t')
-			buf = append(buf, fmtF(run.Quality)...)
+			buf = appendF(buf, run.Quality)
 			buf = append(buf, '\t')
-			buf = append(buf, fmtF(gen)...)
+			buf = appendF(buf, gen)
 			buf = append(buf, '\n')
 			if _, err := bw.Write(buf); err != nil {
 				return fmt.Errorf("writing runs: %w", err)

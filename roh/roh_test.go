@@ -576,7 +576,8 @@ func TestTwoLanesMatchOneLane(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			c.oneLane = one
+			c.whole = one
+			c.setGeometry()
 			bs, fs := batches(sites, ns, 500)
 			for i, b := range bs {
 				if err := c.AddBatch(b, fs[i]); err != nil {
@@ -655,7 +656,8 @@ func TestTwoLanesMatchOneLanePL(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		c.oneLane = one
+		c.whole = one
+		c.setGeometry()
 		bs, fs := batches(sites, ns, 500)
 		for i, b := range bs {
 			b.PL = make([]uint16, 3*len(b.GT))
@@ -716,11 +718,13 @@ func TestChromosomesReleased(t *testing.T) {
 			t.Fatal(err)
 		}
 	}
-	if len(c.chroms) != 2 || c.chroms[0].data != nil {
-		t.Errorf("while reading chromosome 3: %d chromosomes dispatched, first still held: %v", len(c.chroms), c.chroms[0].data != nil)
+	if len(c.chroms) != 3 || c.settled != 2 {
+		t.Errorf("while reading chromosome 3: %d chromosomes dispatched, %d settled", len(c.chroms), c.settled)
 	}
-	if cap(c.cur.geno[0]) < 4 {
-		t.Errorf("chromosome 3 slices not reserved from the density of chromosome 2: cap %d", cap(c.cur.geno[0]))
+	for k, w := range c.chroms[0].wins {
+		if w != nil {
+			t.Errorf("chromosome 1 window %d still held", k)
+		}
 	}
 	r, err := c.Finish()
 	if err != nil {
