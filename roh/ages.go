@@ -74,8 +74,10 @@ type AgeConfig struct {
 	// the start (no fitting). Each round is one forward and one backward
 	// pass.
 	Iterations int
-	// Tolerance stops EM when no mixing proportion moves by more than it
-	// (relative to the proportion, plus 1e-9).
+	// Tolerance stops EM when no class's share of the (windowed)
+	// chromosome's posterior length moved by more than it since the last
+	// round: the outputs have settled even where a tiny mixing proportion
+	// still moves.
 	Tolerance float64
 	// PriorCount is added to the expected draws of every class in each EM
 	// round (a Dirichlet prior on the mixing proportions, so the rounds
@@ -91,7 +93,7 @@ type AgeConfig struct {
 
 // DefaultAgeConfig returns the log2 grid of 8 autozygous classes (see
 // AgeConfig.Rates), genotype error 0.001 (as the two-state detector), 20
-// EM rounds at most with tolerance 1e-3, a prior count of 0.5 draws per
+// EM rounds at most with tolerance 2e-4, a prior count of 0.5 draws per
 // class, and runs split at 1 Mb gaps. The starting shares, the round
 // limit and the prior count are our choices (the prior count brought
 // r(f_within_8g, planted recent F) from 0.989 to 0.993 in
@@ -101,7 +103,7 @@ func DefaultAgeConfig() *AgeConfig {
 	for i, g := range AgeGenerations {
 		r[i] = 2 * float64(g)
 	}
-	return &AgeConfig{Rates: r, GenotypeError: 0.001, Iterations: 20, Tolerance: 1e-3, PriorCount: 0.5, MaxGapBP: 1_000_000}
+	return &AgeConfig{Rates: r, GenotypeError: 0.001, Iterations: 20, Tolerance: 2e-4, PriorCount: 0.5, MaxGapBP: 1_000_000}
 }
 
 // maxAgeStates bounds K+1 so that a path fits in a byte and scratch
@@ -255,14 +257,17 @@ type AgeFit struct {
 }
 
 // AgeWorker holds one worker's scratch, reused across samples and
-// chromosomes: 2 emissions and K+1 forward values per site (16 + 8(K+1)
-// bytes per site, 88 for K = 8). After Fit the forward values are
+// chromosomes: 2 emissions, K+1 forward values and one draw term per
+// site (24 + 8(K+1) bytes per site, 96 for K = 8). After Fit the forward values are
 // replaced by the posteriors of the last pass, which RunClass reads.
 type AgeWorker struct {
 	em    []float64
 	alpha []float64
+	sdraw []float64
 	m     int // K+1 of the last Fit
 	n     int
+
+	general bool // tests: never the 9-class passes
 }
 
 // LoadCodes fills the sample's emissions from genotype codes (0, 1, 2
@@ -318,10 +323,16 @@ func (w *AgeWorker) Posteriors(t *AgeTables, rho []float64) AgeFit {
 // pass runs forward and backward over every window.
 func (w *AgeWorker) pass(t *AgeTables, rho []float64, windows [][2]int) (sums, counts [maxAgeStates]float64) {
 	for _, win := range windows {
-		if win[1] > win[0] {
-			w.forward(t, rho, win[0], win[1])
-			w.backward(t, rho, win[0], win[1], &sums, &counts)
+		if win[1] <= win[0] {
+			continue
 		}
+		if t.K+1 == m9 && !w.general {
+			w.forward9(t, rho, win[0], win[1])
+			w.backward9(t, rho, win[0], win[1], &sums, &counts)
+			continue
+		}
+		w.forward(t, rho, win[0], win[1])
+		w.backward(t, rho, win[0], win[1], &sums, &counts)
 	}
 	return
 }
@@ -363,15 +374,27 @@ func (w *AgeWorker) fit(t *AgeTables, rho []float64, rounds int, tol, prior floa
 		}
 	}
 	w.alpha = grow(w.alpha, m*n)
+	w.sdraw = grow(w.sdraw, n)
 	rounds = max(rounds, 1)
-	var sums, counts [maxAgeStates]float64
+	var sums, counts, prev [maxAgeStates]float64
 	for it := 0; it < rounds; it++ {
 		sums, counts = w.pass(t, rho, windows)
 		res.Rounds = it + 1
-		if it == rounds-1 {
+		// the per-class shares of this pass against those of the last
+		tot := 0.0
+		for _, v := range sums[:m] {
+			tot += v
+		}
+		moved := 0.0
+		for l := range sums[:m] {
+			sh := sums[l] / tot
+			moved = max(moved, math.Abs(sh-prev[l]))
+			prev[l] = sh
+		}
+		if it == rounds-1 || (it > 0 && moved <= tol) {
 			break
 		}
-		tot := 0.0
+		tot = 0.0
 		for l := range counts[:m] {
 			counts[l] += prior
 			tot += counts[l]
@@ -379,21 +402,10 @@ func (w *AgeWorker) fit(t *AgeTables, rho []float64, rounds int, tol, prior floa
 		if !(tot > 0) {
 			break // no sites in windows
 		}
-		moved := false
 		for l := range rho {
-			nv := max(counts[l]/tot, 1e-9)
-			if math.Abs(nv-rho[l]) > tol*rho[l]+1e-9 {
-				moved = true
-			}
-			rho[l] = nv
+			rho[l] = max(counts[l]/tot, 1e-9)
 		}
 		normalise(rho)
-		if !moved {
-			// converged: one more pass so the posteriors match rho
-			sums, _ = w.pass(t, rho, windows)
-			res.Rounds++
-			break
-		}
 	}
 	sums[m-1] += outside
 	res.Mixing = rho
@@ -430,103 +442,115 @@ func AgeWindows(cm []float64, ranges [][2]int, marginCM float64) [][2]int {
 	return out
 }
 
-// forward fills w.alpha with forward values, rescaled every rescaleEvery
-// sites (any positive factor per site is fine: backward renormalises).
+// forward fills w.alpha with forward values and w.sdraw with the draw
+// term s of each site. The stored values of a site are those before its
+// rescaling (every rescaleEvery sites), computed from the rescaled values
+// of the site before, so that backward can take the posteriors and the
+// expected draws from them without recomputing s.
 func (w *AgeWorker) forward(t *AgeTables, rho []float64, lo, hi int) {
 	m, n := t.K+1, t.N
-	em, al, vu := w.em[:2*n], w.alpha[:m*n], t.vu
-	a0 := al[m*lo : m*lo+m]
-	for l := 0; l < m; l++ {
+	em, al, vu, sd := w.em[:2*n], w.alpha[:m*n], t.vu, w.sdraw[:n]
+	last := m - 1
+	var prev [maxAgeStates]float64
+	a0 := al[m*lo : m*lo+m : m*lo+m]
+	for l := range a0 {
 		e := em[2*lo]
-		if l == m-1 {
+		if l == last {
 			e = em[2*lo+1]
 		}
 		a0[l] = rho[l] * e
+		prev[l] = a0[l]
 	}
+	sd[lo] = 0
+	rho = rho[:m:m]
 	for i := lo + 1; i < hi; i++ {
-		prev := al[m*(i-1) : m*i : m*i]
 		cur := al[m*i : m*(i+1) : m*(i+1)]
 		row := vu[2*m*i : 2*m*(i+1) : 2*m*(i+1)]
 		stay, leave := row[:m:m], row[m:2*m:2*m]
+		p := prev[:m:m]
 		s := 0.0
-		for k, a := range prev {
+		for k, a := range p {
 			s += leave[k] * a
 		}
+		sd[i] = s
 		eA, eN := em[2*i], em[2*i+1]
-		last := m - 1
-		for l := 0; l < last; l++ {
-			cur[l] = eA * (stay[l]*prev[l] + rho[l]*s)
+		for l := range cur {
+			e := eA
+			if l == last {
+				e = eN
+			}
+			v := e * (stay[l]*p[l] + rho[l]*s)
+			cur[l] = v
+			p[l] = v
 		}
-		cur[last] = eN * (stay[last]*prev[last] + rho[last]*s)
 		if (i-lo)%rescaleEvery == 0 {
 			z := 0.0
-			for _, a := range cur {
+			for _, a := range p {
 				z += a
 			}
 			inv := 1 / z
-			for l := range cur {
-				cur[l] *= inv
+			for l := range p {
+				p[l] *= inv
 			}
 		}
 	}
 }
 
-// backward runs the backward recursion after forward. It returns per
-// class the posterior sums weighted by t.Span (bp) and the expected
-// number of draws of the class (the first site's class plus every
-// redraw), the EM statistics of rho: the expected draws into class l at
-// site i>0 are rho_l s b_l / Z with b_l = e_l beta_i(l). The posteriors
-// overwrite w.alpha (the forward value of site i is dead once site i+1
-// has been processed).
+// backward runs the backward recursion after forward. It adds to sums,
+// per class, the posterior probabilities weighted by t.Span (bp), and to
+// counts the expected draws of the class (the first site's class and
+// every redraw): the EM statistics of rho. With b_l = e_l beta_i(l), the
+// posterior of class l at site i is alpha_i(l) beta_i(l) / Z and the
+// expected redraws into l are rho_l s_i b_l / Z. The posteriors overwrite
+// w.alpha.
 func (w *AgeWorker) backward(t *AgeTables, rho []float64, lo, hi int, sums, counts *[maxAgeStates]float64) {
 	m, n := t.K+1, t.N
-	em, al, vu, span := w.em[:2*n], w.alpha[:m*n], t.vu, t.Span[:n]
-	var beta, q, r [maxAgeStates]float64
+	em, al, vu, span, sd := w.em[:2*n], w.alpha[:m*n], t.vu, t.Span[:n], w.sdraw[:n]
+	var beta, r [maxAgeStates]float64
 	for l := 0; l < m; l++ {
 		beta[l] = 1
 	}
 	last := m - 1
+	rho = rho[:m:m]
 	for i := hi - 1; i > lo; i-- {
-		prev := al[m*(i-1) : m*i : m*i]
 		cur := al[m*i : m*(i+1) : m*(i+1)]
 		row := vu[2*m*i : 2*m*(i+1) : 2*m*(i+1)]
 		stay, leave := row[:m:m], row[m:2*m:2*m]
-		s := 0.0
-		for k, a := range prev {
-			s += leave[k] * a
-		}
+		bt, rr := beta[:m:m], r[:m:m]
+		s := sd[i]
 		eA, eN := em[2*i], em[2*i+1]
 		var wsum, z float64
-		for l := 0; l < m; l++ {
+		for l := range bt {
 			e := eA
 			if l == last {
 				e = eN
 			}
-			bl := e * beta[l]
+			g := cur[l] * bt[l]
+			bl := e * bt[l]
 			pb := rho[l] * bl
 			wsum += pb
-			q[l] = stay[l] * prev[l] * bl
-			r[l] = pb * s
-			z += q[l] + r[l]
-			beta[l] = stay[l] * bl
+			rr[l] = pb * s
+			z += g
+			cur[l] = g
+			bt[l] = stay[l] * bl
 		}
 		inv := 1 / z
 		sp := span[i] * inv
-		for l := 0; l < m; l++ {
-			g := q[l] + r[l]
-			counts[l] += r[l] * inv
+		for l := range bt {
+			g := cur[l]
+			counts[l] += rr[l] * inv
 			sums[l] += g * sp
 			cur[l] = g * inv
-			beta[l] += leave[l] * wsum
+			bt[l] += leave[l] * wsum
 		}
 		if (hi-i)%rescaleEvery == 0 {
 			zz := 0.0
-			for _, v := range beta[:m] {
+			for _, v := range bt {
 				zz += v
 			}
 			inv := 1 / zz
-			for l := 0; l < m; l++ {
-				beta[l] *= inv
+			for l := range bt {
+				bt[l] *= inv
 			}
 		}
 	}
@@ -534,11 +558,11 @@ func (w *AgeWorker) backward(t *AgeTables, rho []float64, lo, hi int, sums, coun
 	a0 := al[m*lo : m*lo+m]
 	z := 0.0
 	for l := 0; l < m; l++ {
-		q[l] = a0[l] * beta[l]
-		z += q[l]
+		a0[l] *= beta[l]
+		z += a0[l]
 	}
 	for l := 0; l < m; l++ {
-		g := q[l] / z
+		g := a0[l] / z
 		counts[l] += g
 		sums[l] += g * span[lo]
 		a0[l] = g
