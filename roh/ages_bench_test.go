@@ -128,3 +128,68 @@ func BenchmarkAgesPass(b *testing.B) {
 	b.ReportMetric(ref*1e9/g, "two-state-cpu-ns/genotype")
 	b.ReportMetric(cpu/ref, "ratio")
 }
+
+// BenchmarkAgesFitWindows measures the default fit restricted to windows
+// around each sample's planted stretch (300 of every 2,000 sites, as a
+// two-state run would find it) widened by 1 cM (200 sites) on each side,
+// at 1,000 samples on a 5,000-site chromosome, with the two-state
+// detector's one-lane passes on the same data in the same run. Costs are
+// per genotype of the whole chromosome.
+func BenchmarkAgesFitWindows(b *testing.B) {
+	const ns, nsites = 1000, 5000
+	pos, cm, freq, codes := ageBenchData(ns, nsites)
+	cfg := DefaultAgeConfig()
+	if err := cfg.Validate(); err != nil {
+		b.Fatal(err)
+	}
+	wins := make([][][2]int, ns)
+	inWin := 0
+	for s := range wins {
+		var ranges [][2]int
+		for i := 0; i < nsites; i++ {
+			if (i+s*37)%2000 == 0 || (i == 0 && (s*37)%2000 < 300) {
+				j := i
+				for j+1 < nsites && (j+1+s*37)%2000 < 300 {
+					j++
+				}
+				ranges = append(ranges, [2]int{i, j})
+				i = j
+			}
+		}
+		wins[s] = AgeWindows(cm, ranges, 1)
+		for _, x := range wins[s] {
+			inWin += x[1] - x[0]
+		}
+	}
+	tab := NewAgeTables(cfg, pos, cm, freq, nil)
+	ch := benchTwoStateChrom(pos, freq, codes)
+	dcfg := DefaultConfig()
+	b.ResetTimer()
+	var cpu, ref float64
+	rounds := 0
+	for it := 0; it < b.N; it++ {
+		c0 := cpuSeconds()
+		var sc hmmScratch
+		for s := 0; s < ns; s++ {
+			sc.code = grow(sc.code, nsites)
+			copy(sc.code, codes[s])
+			sc.forwardViterbi(ch, ch.trans, dcfg.AutozygousPrior, true)
+			sc.backward(ch.trans, dcfg.AutozygousPrior, nil, nil, sc.path)
+		}
+		c1 := cpuSeconds()
+		var w AgeWorker
+		for s := 0; s < ns; s++ {
+			w.LoadCodes(tab, codes[s])
+			rounds += w.FitWindows(tab, cfg, wins[s]).Rounds
+		}
+		c2 := cpuSeconds()
+		ref += c1 - c0
+		cpu += c2 - c1
+	}
+	g := float64(b.N) * ns * nsites
+	b.ReportMetric(cpu*1e9/g, "cpu-ns/genotype")
+	b.ReportMetric(ref*1e9/g, "two-state-cpu-ns/genotype")
+	b.ReportMetric(cpu/ref, "ratio")
+	b.ReportMetric(float64(inWin)/(ns*nsites), "window-share")
+	b.ReportMetric(float64(rounds)/float64(b.N*ns), "rounds/sample")
+}
