@@ -41,7 +41,43 @@ import (
 //
 // and exp(-R_k d) for every class and interval is computed once per
 // chromosome (AgeTables) and shared by all samples: the per-sample step is
-// table lookups and multiply-adds, with no exp or log.
+// table lookups and multiply-adds, with no exp or log. The EM rounds are
+// accelerated by SQUAREM and stop when the per-class shares settle.
+//
+// Outputs, per sample and chromosome (AgeFit): the posterior length of
+// each class, sum over sites of posterior x the site's span (half of each
+// neighbouring interval, intervals over MaxGapBP weigh nothing), rounded
+// once to int64 fixed point (AgeUnit per bp), so that sums over
+// chromosomes and shards are exact and order-free. f_within_<G>g (FWithin)
+// is the summed length of the autozygous classes with R_k <= 2G over the
+// covered length f_roh divides by (Result.Covered). The fit of a
+// chromosome depends on that chromosome alone (mixing proportions are
+// fitted per sample and chromosome, not genome-wide), which is what keeps
+// shards byte-identical. RunClass gives a run's most probable class and
+// its mean posterior.
+//
+// Cost (BenchmarkAgesPass, BenchmarkAgesFit, BenchmarkAgesFitWindows; 1,000
+// samples x 5,000 sites, CPU time, 2 cores at load 16-28): one
+// forward-backward pass of the 8+1 classes is 4.2x the two-state
+// detector's one-lane passes measured in the same run (about 84 against
+// 20 ns per genotype); the whole-chromosome fit takes 6.9 rounds on
+// average, about 570 ns per genotype, some 30x the two-state detector.
+// That is far beyond the budget of the full scan, so the scan should fit
+// in windows: FitWindows over the two-state runs widened by AgeWindows
+// (1 cM), costing about 900 ns per genotype inside the windows (10.5
+// rounds) and nothing outside. Windows hold 1.7% of the sites of
+// unrelated array-density animals and 11-20% of those of full-sib to
+// selfed offspring (simulated), so about 15 ns per genotype of an outbred
+// cohort (as much again as the two-state detector) and 100-180 ns in a
+// heavily inbred one. The price: outside the windows everything counts as
+// non-autozygous, so f_within_<G>g for G >= 64 sees only the ancient
+// sharing next to runs, and windowed f_within_8g ran 0.005-0.03 below
+// realized F where the whole fit did not (TestAgesPedigreeF).
+//
+// Memory: shared tables 32 + 16(K+1) + 8 bytes per site (184 for K = 8)
+// per chromosome; per worker 24 + 8(K+1) bytes per site (96 for K = 8)
+// for the chromosome being fitted, reused across samples (one sample at a
+// time). Viterbi, used only by checks, adds K+1 bytes per site.
 
 // ErrAgeConfig is wrapped by errors about an invalid AgeConfig.
 var ErrAgeConfig = errors.New("invalid age-class configuration")
@@ -261,7 +297,8 @@ type AgeFit struct {
 // site (24 + 8(K+1) bytes per site, 96 for K = 8). After Fit the forward values are
 // replaced by the posteriors of the last pass, which RunClass reads.
 type AgeWorker struct {
-	em    []float64
+	em    []float64 // emission pairs: own, or the caller's (LoadEmissions)
+	own   []float64
 	alpha []float64
 	sdraw []float64
 	m     int // K+1 of the last Fit
@@ -275,7 +312,8 @@ type AgeWorker struct {
 // does without likelihoods.
 func (w *AgeWorker) LoadCodes(t *AgeTables, codes []uint8) {
 	n := t.N
-	w.em = grow(w.em, 2*n)
+	w.em = grow(w.own, 2*n)
+	w.own = w.em
 	em, tab := w.em, t.Emit
 	for i, g := range codes[:n] {
 		g &= 3
@@ -285,10 +323,12 @@ func (w *AgeWorker) LoadCodes(t *AgeTables, codes []uint8) {
 }
 
 // LoadEmissions takes the sample's emission pairs (autozygous,
-// non-autozygous per site) as the two-state detector's fillEmissions
-// computes them, for input with phred likelihoods.
+// non-autozygous per site, 2 per site) as the two-state detector holds
+// them after its forward pass (looked up from the codes, or summed over
+// phred likelihoods by fillEmissions), without copying: em must not
+// change until the next Load. The worker never writes to it.
 func (w *AgeWorker) LoadEmissions(em []float64) {
-	w.em = append(w.em[:0], em...)
+	w.em = em
 }
 
 // Fit fits the mixing proportions of the loaded sample by EM (at most
