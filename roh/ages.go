@@ -495,8 +495,9 @@ func (w *AgeWorker) fit(t *AgeTables, rho []float64, rounds int, tol, prior floa
 // windows of FitWindows: each range widened by marginCM centimorgans on
 // both sides (cm are the sites' genetic positions), overlapping or
 // touching windows merged. The margin lets the chain settle before and
-// after a run, so that the posteriors inside it hardly depend on where the
-// window starts (TestAgesWindowsMatchFull measures the difference).
+// after a run, so that the posteriors inside it depend little on where
+// the window starts (TestAgesPedigreeF and the windowed case of
+// TestAgesPlantedRecovery compare windowed with whole-chromosome fits).
 func AgeWindows(cm []float64, ranges [][2]int, marginCM float64) [][2]int {
 	var out [][2]int
 	n := len(cm)
