@@ -82,7 +82,7 @@ func benchTwoStateChrom(pos []int64, freq []float64, codes [][]uint8) *chromData
 	}
 	cfg := DefaultConfig()
 	cfg.Validate()
-	(&Collector{cfg: *cfg}).prepare(ch, &chromWork{})
+	(&Collector{cfg: *cfg}).prepare(ch)
 	return ch
 }
 

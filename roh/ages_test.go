@@ -7,28 +7,28 @@ import (
 	"strconv"
 	"testing"
 
-	"fgauge/roh/simulate"
+	"fgauge/genedrop"
 	"fgauge/vcfscan"
 )
 
-// ageChrom is one chromosome of test data in the detector's own form
+// testAgeChrom is one chromosome of test data in the detector's own form
 // (chromData with cm and emission tables prepared by the Collector's
 // prepare), so that the age model and the detector read the same input.
-type ageChrom struct {
+type testAgeChrom struct {
 	name string
 	ch   *chromData
 }
 
-// ageChroms packs batches (in input order; freqs nil means cohort
+// testAgeChroms packs batches (in input order; freqs nil means cohort
 // estimates, as the Collector does) into prepared chromosomes.
-func ageChroms(t *testing.T, cfg *Config, contigs []vcfscan.Contig, bs []*vcfscan.Batch, freqs [][]float64) []ageChrom {
+func testAgeChroms(t *testing.T, cfg *Config, contigs []vcfscan.Contig, bs []*vcfscan.Batch, freqs [][]float64) []testAgeChrom {
 	t.Helper()
 	c := *cfg
 	if err := c.Validate(); err != nil {
 		t.Fatal(err)
 	}
 	col := &Collector{cfg: c}
-	var out []ageChrom
+	var out []testAgeChrom
 	var cur *chromData
 	for bi, b := range bs {
 		ns := b.NSamples
@@ -36,7 +36,7 @@ func ageChroms(t *testing.T, cfg *Config, contigs []vcfscan.Contig, bs []*vcfsca
 			rec := &b.Records[i]
 			if cur == nil || cur.id != rec.ChromID {
 				cur = newChromData(rec.ChromID, contigs[rec.ChromID].Name, contigs[rec.ChromID].Length, ns)
-				out = append(out, ageChrom{cur.name, cur})
+				out = append(out, testAgeChrom{cur.name, cur})
 			}
 			calls := b.GT[i*ns : (i+1)*ns]
 			p := math.NaN()
@@ -54,7 +54,7 @@ func ageChroms(t *testing.T, cfg *Config, contigs []vcfscan.Contig, bs []*vcfsca
 		}
 	}
 	for _, a := range out {
-		col.prepare(a.ch, &chromWork{})
+		col.prepare(a.ch)
 	}
 	return out
 }
@@ -76,7 +76,7 @@ func oneClassConfig(cfg *Config) *AgeConfig {
 // detector's own hmmRuns, with the detector's runs: the same segments and
 // the same mean posteriors (to 1e-9). shareEmit passes the detector's
 // emission table to NewAgeTables instead of recomputing it.
-func compareOneClass(t *testing.T, cfg *Config, res *Result, chroms []ageChrom, shareEmit bool) int {
+func compareOneClass(t *testing.T, cfg *Config, res *Result, chroms []testAgeChrom, shareEmit bool) int {
 	t.Helper()
 	acfg := oneClassConfig(cfg)
 	rho := acfg.StartMixing()
@@ -147,7 +147,7 @@ func TestAgesOneClassMatchesHMM(t *testing.T) {
 		cfg.MaxGapKB = 20
 		res := collect(t, cfg, samples, contigs, sites)
 		bs, fs := batches(sites, len(samples), 333)
-		chroms := ageChroms(t, cfg, contigs, bs, fs)
+		chroms := testAgeChroms(t, cfg, contigs, bs, fs)
 		n := compareOneClass(t, cfg, res, chroms, false)
 		if n < 5 {
 			t.Errorf("only %d runs compared", n)
@@ -160,17 +160,17 @@ func TestAgesOneClassMatchesHMM(t *testing.T) {
 			name = "simulated_pl"
 		}
 		t.Run(name, func(t *testing.T) {
-			var ds []simulate.Design
+			var ds []genedrop.Design
 			for _, s := range []string{"full_sib", "first_cousin", "half_sib"} {
-				d, err := simulate.ParseDesign(s)
+				d, err := genedrop.ParseDesign(s)
 				if err != nil {
 					t.Fatal(err)
 				}
 				ds = append(ds, d)
 			}
-			sim, err := simulate.Run(simulate.Config{
+			sim, err := genedrop.Run(genedrop.Config{
 				Seed:          5,
-				Chromosomes:   []simulate.Chromosome{{Name: "1", LengthBP: 60_000_000, LengthCM: 70}, {Name: "2", LengthBP: 40_000_000, LengthCM: 40}},
+				Chromosomes:   []genedrop.Chromosome{{Name: "1", LengthBP: 60_000_000, LengthCM: 70}, {Name: "2", LengthBP: 40_000_000, LengthCM: 40}},
 				SiteSpacing:   20_000,
 				Designs:       ds,
 				Replicates:    3,
@@ -184,7 +184,7 @@ func TestAgesOneClassMatchesHMM(t *testing.T) {
 			names, contigs, bs := simBatches(t, sim)
 			cfg := DefaultConfig()
 			res := detectSim(t, cfg, names, contigs, bs)
-			chroms := ageChroms(t, cfg, contigs, bs, nil)
+			chroms := testAgeChroms(t, cfg, contigs, bs, nil)
 			n := compareOneClass(t, cfg, res, chroms, true)
 			if n < 10 {
 				t.Errorf("only %d runs compared", n)
@@ -580,21 +580,21 @@ func TestAgesPedigreeF(t *testing.T) {
 	}{
 		{"full_sib", 0.25}, {"half_sib", 0.125}, {"first_cousin", 0.0625}, {"parent_offspring", 0.25}, {"selfing:1", 0.5},
 	}
-	var ds []simulate.Design
+	var ds []genedrop.Design
 	dstr := map[string]string{}
 	for _, d := range designs {
-		x, err := simulate.ParseDesign(d.d)
+		x, err := genedrop.ParseDesign(d.d)
 		if err != nil {
 			t.Fatal(err)
 		}
 		ds = append(ds, x)
 		dstr[d.d] = x.String()
 	}
-	sim, err := simulate.Run(simulate.Config{
+	sim, err := genedrop.Run(genedrop.Config{
 		Seed:          20261203,
-		Chromosomes:   []simulate.Chromosome{{Name: "1", LengthBP: 150_000_000, LengthCM: 150}, {Name: "2", LengthBP: 120_000_000, LengthCM: 120}, {Name: "3", LengthBP: 100_000_000, LengthCM: 100}},
+		Chromosomes:   []genedrop.Chromosome{{Name: "1", LengthBP: 150_000_000, LengthCM: 150}, {Name: "2", LengthBP: 120_000_000, LengthCM: 120}, {Name: "3", LengthBP: 100_000_000, LengthCM: 100}},
 		SiteSpacing:   30_000,
-		Spectrum:      simulate.SpectrumUShaped,
+		Spectrum:      genedrop.SpectrumUShaped,
 		Designs:       ds,
 		Replicates:    60,
 		GenotypeError: 0.001,
@@ -607,7 +607,7 @@ func TestAgesPedigreeF(t *testing.T) {
 	rcfg := DefaultConfig()
 	rcfg.Threads = 2
 	res := detectSim(t, rcfg, names, contigs, bs)
-	chroms := ageChroms(t, rcfg, contigs, bs, nil)
+	chroms := testAgeChroms(t, rcfg, contigs, bs, nil)
 	covered, _ := res.Covered()
 	var pick []int
 	nFounders := 0
