@@ -104,11 +104,11 @@ type Config struct {
 
 // Rules are the thresholds of the rule-based detector.
 type Rules struct {
-	MaxHet       int     // heterozygous calls tolerated inside one run
-	MaxMissing   int     // missing calls tolerated inside one run
-	MinKB        float64 // minimum run length, kb
-	MinSites     int     // minimum number of sites in a run
-	MaxKBPerSite float64 // minimum density, as the largest mean spacing (kb per site)
+	MaxHet        int     // heterozygous calls tolerated inside one run
+	MaxMissing    int     // missing calls tolerated inside one run
+	MinKB         float64 // minimum run length, kb
+	MinSites      int     // minimum number of sites in a run
+	MinSitesPerMb float64 // minimum density of a run: sites per Mb of its length
 	// EdgeHomSites: a tolerated heterozygous call needs at least this many
 	// homozygous calls between it and the end of the run; otherwise the
 	// run ends before it (see trimEdges). 0 disables.
@@ -133,8 +133,8 @@ type Rules struct {
 //   - Rules: one heterozygous and two missing calls tolerated per run
 //     (Ferenčaković et al. 2013, Genet Sel Evol 45:42, recommend allowing
 //     about one heterozygote per run on medium-density arrays and none on
-//     dense ones), 1000 kb minimum length, 30 sites, at most 100 kb per site
-//     on average, at least 10 homozygous calls between a tolerated
+//     dense ones), 1000 kb minimum length, 30 sites, at least 10 sites per Mb
+//     of run length, at least 10 homozygous calls between a tolerated
 //     heterozygote and the run's end, and runs split at gaps over 1000 kb
 //     (chosen by us).
 func DefaultConfig() *Config {
@@ -149,12 +149,12 @@ func DefaultConfig() *Config {
 		Ages:            DefaultAgeConfig(),
 		AgeMarginCM:     1,
 		Rules: Rules{
-			MaxHet:       1,
-			MaxMissing:   2,
-			MinKB:        1000,
-			MinSites:     30,
-			MaxKBPerSite: 100,
-			EdgeHomSites: 10,
+			MaxHet:        1,
+			MaxMissing:    2,
+			MinKB:         1000,
+			MinSites:      30,
+			MinSitesPerMb: 10,
+			EdgeHomSites:  10,
 		},
 		Threads: 1,
 	}
@@ -298,8 +298,8 @@ func (c *Config) Validate() error {
 		return bad("maximum gap %g kb: want a positive number", c.MaxGapKB)
 	}
 	r := c.Rules
-	if r.MaxHet < 0 || r.MaxMissing < 0 || r.MinSites < 1 || r.MinKB < 0 || !(r.MaxKBPerSite > 0) || r.EdgeHomSites < 0 {
-		return bad("rule thresholds: want max het >= 0, max missing >= 0, min sites >= 1, min kb >= 0, kb per site > 0, edge sites >= 0")
+	if r.MaxHet < 0 || r.MaxMissing < 0 || r.MinSites < 1 || r.MinKB < 0 || !(r.MinSitesPerMb > 0) || r.EdgeHomSites < 0 {
+		return bad("rule thresholds: want max het >= 0, max missing >= 0, min sites >= 1, min kb >= 0, sites per Mb > 0, edge sites >= 0")
 	}
 	if c.Threads < 1 {
 		c.Threads = 1

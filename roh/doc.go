@@ -10,8 +10,8 @@
 //     frequency and a genotype error rate (or from phred-scaled genotype
 //     likelihoods when the input has them); transitions come from genetic
 //     distance. Runs are the Viterbi segments in the autozygous state;
-//     each run's quality is the mean forward-backward posterior of
-//     autozygosity over its sites.
+//     each run's mean_posterior_autozygous is the mean forward-backward
+//     posterior of autozygosity over its sites.
 //   - "rules": a homozygous-run scan that tolerates a set number of
 //     heterozygous and missing calls per run (as recommended for SNP
 //     arrays by Ferenčaković et al. 2013, Genet Sel Evol 45:42) and applies

@@ -74,7 +74,7 @@ func ExampleResult_WriteRuns() {
 	res, _ := c.Finish()
 	res.WriteRuns(os.Stdout)
 	// Output:
-	// sample	chrom	start	end	length_bp	length_cm	n_sites	n_het	n_missing	quality	generations_back
+	// sample	chrom	start	end	length_bp	length_cm	n_sites	n_het	n_missing	mean_posterior_autozygous	generations_back
 	// calf_07	1	1950000	7000000	5050001	5.05	203	0	0	NA	9.900990099009901
 }
 

@@ -19,7 +19,7 @@ type Run struct {
 	StartCM, EndCM float64 // genetic positions of those sites
 	NSites         int     // sites in the run, including heterozygous and missing calls
 	NHet, NMissing int     // heterozygous and missing calls inside the run
-	Quality        float64 // mean posterior of autozygosity over the run's sites (HMM); NaN for rules
+	Quality        float64 // runs.tsv mean_posterior_autozygous: mean posterior of autozygosity over the run's sites (HMM); NaN for rules
 	// AgeClass is 1 + the index (in Result.AgeRates) of the autozygous
 	// age class with the highest mean posterior over the run's sites, 0
 	// when the age classes were not fitted; AgePosterior is that mean.
@@ -419,7 +419,7 @@ var columns = []ColumnDoc{
 	{"runs.tsv", "n_sites", "sites in the run, heterozygous and missing calls included"},
 	{"runs.tsv", "n_het", "heterozygous calls inside the run (tolerated as errors)"},
 	{"runs.tsv", "n_missing", "missing calls inside the run"},
-	{"runs.tsv", "quality", "HMM: mean posterior probability of autozygosity over the run's sites; NA for the rule-based detector"},
+	{"runs.tsv", "mean_posterior_autozygous", "HMM: mean over the run's sites of the forward-backward posterior probability that the site is autozygous (0 to 1); NA for the rule-based detector"},
 	{"runs.tsv", "generations_back", "rough age of the common ancestor, 100/(2*length_cm) generations (common practice; a wide-spread expectation, not an estimate for this run)"},
 	{"samples.tsv", "n_runs", "runs at least as long as the smallest length class (default 1 Mb)"},
 	{"samples.tsv", "roh_total_bp", "total length of those runs"},

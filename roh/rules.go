@@ -17,7 +17,7 @@ import (
 // unless it overlaps an accepted run, in which case its parts outside the
 // accepted runs (trimmed to homozygous ends) become candidates again.
 // Accepted runs must reach r.MinKB, r.MinSites and the density
-// r.MaxKBPerSite. Resolving by length rather than by a left-to-right scan
+// r.MinSitesPerMb. Resolving by length rather than by a left-to-right scan
 // makes the result independent of the direction of the scan (up to exact
 // length ties), which a greedy scan is not.
 //
@@ -54,7 +54,7 @@ func rulesRuns(ch *chromData, s int, sc *hmmScratch, r *Rules, maxGap int64) []R
 	ok := func(a, b int) bool {
 		bp := float64(ch.pos[b] - ch.pos[a] + 1)
 		ns := b - a + 1
-		return bp >= minBP && ns >= r.MinSites && bp/1000/float64(ns) <= r.MaxKBPerSite
+		return bp >= minBP && ns >= r.MinSites && float64(ns)*1e6 >= r.MinSitesPerMb*bp
 	}
 	e0 := 0 // first event of the current segment
 	lo := 0

@@ -19,7 +19,7 @@ import (
 // unless it overlaps an accepted run, in which case its parts outside the
 // accepted runs (trimmed to homozygous ends) become candidates again.
 // Accepted runs must reach r.MinKB, r.MinSites and the density
-// r.MaxKBPerSite. Resolving by length rather than by a left-to-right scan
+// r.MinSitesPerMb. Resolving by length rather than by a left-to-right scan
 // makes the result independent of the direction of the scan (up to exact
 // length ties), which a greedy scan is not.
 func rulesRunsRef(ch *chromData, s int, code []uint8, r *Rules, maxGap int64) []Run {
@@ -32,7 +32,7 @@ func rulesRunsRef(ch *chromData, s int, code []uint8, r *Rules, maxGap int64) []
 	ok := func(a, b int) bool {
 		bp := float64(ch.pos[b] - ch.pos[a] + 1)
 		ns := b - a + 1
-		return bp >= minBP && ns >= r.MinSites && bp/1000/float64(ns) <= r.MaxKBPerSite
+		return bp >= minBP && ns >= r.MinSites && float64(ns)*1e6 >= r.MinSitesPerMb*bp
 	}
 	// segments between large gaps
 	lo := 0
@@ -176,11 +176,11 @@ func rulesBoth(t *testing.T, codes []uint8, pos []int64, r Rules, maxGap int64) 
 // threshold settings.
 func TestRulesFastMatchesReference(t *testing.T) {
 	rules := []Rules{
-		{MaxHet: 0, MaxMissing: 0, MinKB: 0, MinSites: 1, MaxKBPerSite: 1e9},
-		{MaxHet: 1, MaxMissing: 2, MinKB: 100, MinSites: 5, MaxKBPerSite: 100},
-		{MaxHet: 1, MaxMissing: 2, MinKB: 100, MinSites: 5, MaxKBPerSite: 100, EdgeHomSites: 10},
-		{MaxHet: 3, MaxMissing: 1, MinKB: 500, MinSites: 20, MaxKBPerSite: 50, EdgeHomSites: 3},
-		{MaxHet: 8, MaxMissing: 200, MinKB: 1000, MinSites: 100, MaxKBPerSite: 100},
+		{MaxHet: 0, MaxMissing: 0, MinKB: 0, MinSites: 1, MinSitesPerMb: 1e-6},
+		{MaxHet: 1, MaxMissing: 2, MinKB: 100, MinSites: 5, MinSitesPerMb: 10},
+		{MaxHet: 1, MaxMissing: 2, MinKB: 100, MinSites: 5, MinSitesPerMb: 10, EdgeHomSites: 10},
+		{MaxHet: 3, MaxMissing: 1, MinKB: 500, MinSites: 20, MinSitesPerMb: 20, EdgeHomSites: 3},
+		{MaxHet: 8, MaxMissing: 200, MinKB: 1000, MinSites: 100, MinSitesPerMb: 10},
 	}
 	rng := rand.New(rand.NewPCG(9, 9))
 	for trial := 0; trial < 60; trial++ {
@@ -233,7 +233,7 @@ func FuzzRules(f *testing.F) {
 			}
 			pos[i] = p
 		}
-		r := Rules{MaxHet: int(maxHet % 6), MaxMissing: int(maxMiss % 6), MinKB: 0, MinSites: 1, MaxKBPerSite: 1e9,
+		r := Rules{MaxHet: int(maxHet % 6), MaxMissing: int(maxMiss % 6), MinKB: 0, MinSites: 1, MinSitesPerMb: 1e-6,
 			EdgeHomSites: int(maxHet / 6 % 4)}
 		rulesBoth(t, codes, pos, r, 15_000)
 	})

@@ -103,8 +103,8 @@ func TestPanelFrequencies(t *testing.T) {
 	calls := [][]vcfscan.Geno{{vcfscan.HomRef}, {vcfscan.HomAlt}, {vcfscan.Heterozygous}} // at 1000, 2000, 3000
 	cfg := &Config{Samples: []string{"goat_1"}, Freqs: FreqPanel, Panel: panel, MinCallRate: 0.9}
 	tot, cols := runCalls(t, cfg, calls, nil)
-	if cols["sites_informative"][0] != 2 || math.Abs(cols["f_uniting_gametes"][0]-1) > 1e-9 {
-		t.Errorf("informative %v, f_uniting %v (want 2, 1)", cols["sites_informative"], cols["f_uniting_gametes"])
+	if cols["polymorphic_sites_called"][0] != 2 || math.Abs(cols["f_uniting_gametes"][0]-1) > 1e-9 {
+		t.Errorf("polymorphic sites called %v, f_uniting %v (want 2, 1)", cols["polymorphic_sites_called"], cols["f_uniting_gametes"])
 	}
 	fr := tot.Summary().Frequencies
 	if fr.PanelAbsent == nil || *fr.PanelAbsent != 1 || fr.PanelNeverMet == nil || *fr.PanelNeverMet != 1 || fr.InfoMissing != nil {

@@ -63,9 +63,9 @@ func TestEstimatorsHand(t *testing.T) {
 	// sample-size factor):
 	// all homozygous (x in {0,2}): (x-1)^2/(1/2)-1 = 1; 1-x(2-x)/(1/2) = 1;
 	//   (x^2-2x+1/2)/(1/2) = 1; VanRaden n*1/(n/2)-1 = 1;
-	//   f_hom (O-E)/(N-E) = (n-n/2)/(n-n/2) = 1.
+	//   f_hom 1 - (het calls)/(expected het calls) = 1 - 0/(n/2) = 1.
 	// all heterozygous (x = 1): 0-1 = -1; 1-2 = -1; (1-2+1/2)/(1/2) = -1;
-	//   VanRaden 0-1 = -1; f_hom (0-n/2)/(n/2) = -1.
+	//   VanRaden 0-1 = -1; f_hom 1 - n/(n/2) = -1.
 	for _, c := range estimatorCols {
 		if got := cols[c][0]; math.Abs(got-1) > 1e-9 {
 			t.Errorf("all homozygous %s = %v, want 1", c, got)
@@ -74,15 +74,15 @@ func TestEstimatorsHand(t *testing.T) {
 			t.Errorf("all heterozygous %s = %v, want -1", c, got)
 		}
 	}
-	if cols["sites_informative"][0] != n {
-		t.Errorf("sites_informative %v, want %d (monomorphic sites ignored)", cols["sites_informative"][0], n)
+	if cols["polymorphic_sites_called"][0] != n {
+		t.Errorf("polymorphic_sites_called %v, want %d (monomorphic sites ignored)", cols["polymorphic_sites_called"][0], n)
 	}
 
 	// Cohort frequencies: sample A always 0/0, sample B always 0/1, so
 	// p = 1/4, 2p(1-p) = 3/8, n = 2 called, Nei factor 4/3.
 	// A (x=0): f_grm = (1/4)/(3/8)-1 = -1/3; f_excess_hom = 1;
 	//   f_uniting = 2p^2/(3/8) = 1/3; VanRaden (1/4)/(3/8)-1 = -1/3;
-	//   E per site = 1-(3/8)(4/3) = 1/2, O = 1: f_hom = 1.
+	//   expected homozygous share per site 1-(3/8)(4/3) = 1/2, seen 1: f_hom = 1.
 	// B (x=1): f_grm = (1/4)/(3/8)-1 = -1/3; f_excess_hom = 1-1/(3/8) = -5/3;
 	//   f_uniting = (1-3/2+1/8)/(3/8) = -1; VanRaden -1/3; f_hom = -1.
 	var ab [][]vcfscan.Geno
@@ -94,7 +94,7 @@ func TestEstimatorsHand(t *testing.T) {
 	want := map[string][2]float64{
 		"f_hom": {1, -1}, "f_grm": {-1.0 / 3, -1.0 / 3}, "f_excess_hom": {1, -5.0 / 3},
 		"f_uniting_gametes": {1.0 / 3, -1}, "f_vanraden": {-1.0 / 3, -1.0 / 3},
-		"hom_expected": {n / 2, n / 2}, "het_rate": {0, 1}, "call_rate": {1, 1},
+		"homozygous_share_under_hwe": {0.5, 0.5}, "homozygous_share": {1, 0}, "het_rate": {0, 1}, "call_rate": {1, 1},
 	}
 	for c, w := range want {
 		for s := 0; s < 2; s++ {
@@ -109,7 +109,7 @@ func TestEstimatorsHand(t *testing.T) {
 func TestEstimatorsUndefined(t *testing.T) {
 	calls := [][]vcfscan.Geno{{vcfscan.HomRef, vcfscan.Missing}, {vcfscan.HomRef, vcfscan.Missing}}
 	tot, cols := runCalls(t, &Config{Samples: []string{"lamb_1", "lamb_2"}, MinCallRate: 0.9}, calls, nil)
-	for _, c := range append(estimatorCols, "hom_expected", "hom_observed") {
+	for _, c := range append(estimatorCols, "homozygous_share_under_hwe", "homozygous_share") {
 		if !math.IsNaN(cols[c][0]) || !math.IsNaN(cols[c][1]) {
 			t.Errorf("%s: %v, want NA", c, cols[c])
 		}
@@ -268,14 +268,14 @@ func TestPopulationFrequencies(t *testing.T) {
 		PopNames: []string{"herd_a", "herd_b"}, Freqs: FreqPopulation, MinCallRate: 0.9}
 	tot, cols := runCalls(t, cfg, calls, nil)
 	for s := 0; s < 4; s++ {
-		if cols["sites_informative"][s] != 0 || !math.IsNaN(cols["f_grm"][s]) {
-			t.Errorf("sample %d: informative %v f_grm %v, want 0 and NA", s, cols["sites_informative"][s], cols["f_grm"][s])
+		if cols["polymorphic_sites_called"][s] != 0 || !math.IsNaN(cols["f_grm"][s]) {
+			t.Errorf("sample %d: polymorphic sites called %v f_grm %v, want 0 and NA", s, cols["polymorphic_sites_called"][s], cols["f_grm"][s])
 		}
 	}
 	// Cohort p = 5/10 = 1/2 over 5 samples; the stray heterozygote has
 	// f_grm = (1-1)^2/(1/2) - 1 = -1 and f_uniting = (1-2+1/2)/(1/2) = -1.
-	if cols["sites_informative"][4] != n || math.Abs(cols["f_grm"][4]+1) > 1e-9 || math.Abs(cols["f_uniting_gametes"][4]+1) > 1e-9 {
-		t.Errorf("stray: informative %v f_grm %v f_uniting %v", cols["sites_informative"][4], cols["f_grm"][4], cols["f_uniting_gametes"][4])
+	if cols["polymorphic_sites_called"][4] != n || math.Abs(cols["f_grm"][4]+1) > 1e-9 || math.Abs(cols["f_uniting_gametes"][4]+1) > 1e-9 {
+		t.Errorf("stray: polymorphic sites called %v f_grm %v f_uniting %v", cols["polymorphic_sites_called"][4], cols["f_grm"][4], cols["f_uniting_gametes"][4])
 	}
 	// Fixed different alleles: theta = 1 (Weir & Cockerham 1984).
 	if s := tot.PopulationSummary(); math.Abs(float64(s.FST)-1) > 1e-9 {
@@ -300,12 +300,16 @@ func TestHaploidCalls(t *testing.T) {
 	var sites bytes.Buffer
 	w.ProcessBatch(b, &sites, nil, make([]float64, 2))
 	row := strings.Split(strings.SplitN(sites.String(), "\n", 2)[0], "\t")
-	// n_hom_ref n_het n_hom_alt n_missing n_haploid = 1 1 0 0 1; alt_freq 1/4; call_rate 2/3.
-	if strings.Join(row[4:12], " ") != "1 1 0 0 1 0.25 0.25 0.6666666666666666" {
+	// n_hom_ref n_het n_hom_alt n_missing n_haploid = 1 1 0 0 1; alt_freq 1/4;
+	// call_rate 3/3: the haploid call counts as a call.
+	if strings.Join(row[4:12], " ") != "1 1 0 0 1 0.25 0.25 1" {
 		t.Errorf("site row %v", row)
 	}
 	hdr, rows := w.Totals().SampleTable()
-	if rows[2][col(hdr, "n_haploid")] != "2" || rows[2][col(hdr, "sites_informative")] != "0" || rows[2][col(hdr, "f_hom")] != "NA" {
+	// cow_2 has only haploid calls: call_rate 1 (no low_call_rate), but no
+	// diploid call for any estimator (no_calls).
+	if rows[2][col(hdr, "n_haploid")] != "2" || rows[2][col(hdr, "polymorphic_sites_called")] != "0" || rows[2][col(hdr, "f_hom")] != "NA" ||
+		rows[2][col(hdr, "call_rate")] != "1" || rows[2][col(hdr, "flags")] != "no_calls" || rows[2][col(hdr, "homozygous_share")] != "NA" {
 		t.Errorf("haploid sample row %v", rows[2])
 	}
 }
@@ -319,7 +323,7 @@ func TestEstimatorsAgainstR(t *testing.T) {
 	tot, _, _ := fx.run(t, &Config{Samples: fx.samples, MinCallRate: 0.9}, 0, len(fx.recs), 33)
 	hdr, rows := tot.SampleTable()
 	rh, ref, _ := readTSV(t, "../testdata/snpstats/estimators.tsv")
-	cols := append([]string{"sites_informative", "hom_observed", "hom_expected"}, estimatorCols...)
+	cols := append([]string{"polymorphic_sites_called", "homozygous_share", "homozygous_share_under_hwe"}, estimatorCols...)
 	for _, r := range rows {
 		want := ref[r[0]]
 		if want == nil {

@@ -9,6 +9,8 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 	"slices"
 	"strings"
+
+	"fgauge/vcfscan"
 )
 
 // SampleAcc is one sample's accumulated counts and fixed-point sums,
@@ -275,6 +277,7 @@ type sampleEstimates struct {
 	called, informative, homInformative    int64
 	callRate, hetRate, homExp              float64
 	fHom, fGRM, fExcess, fUniting, fVanRad float64
+	homShare, homShareHWE                  float64 // homInformative and homExp over informative
 }
 
 func (t *Totals) estimates(i int) sampleEstimates {
@@ -284,7 +287,9 @@ func (t *Totals) estimates(i int) sampleEstimates {
 	e.called = a.Counts[0] + a.Counts[1] + a.Counts[2]
 	e.informative = base.Sites - a.Uncalled
 	e.homInformative = e.informative - a.HetInformative
-	e.callRate = ratio(float64(e.called), float64(t.Sites))
+	// A haploid call is a call for call_rate (a male's X is called, not
+	// missing), though it stays out of every diploid statistic.
+	e.callRate = ratio(float64(e.called+a.Counts[vcfscan.HaploidRef]+a.Counts[vcfscan.HaploidAlt]), float64(t.Sites))
 	e.hetRate = ratio(float64(a.Counts[1]), float64(e.called))
 	var sums [nSums]float64
 	for k := range sums {
@@ -295,8 +300,18 @@ func (t *Totals) estimates(i int) sampleEstimates {
 	n := float64(e.informative)
 	e.homExp = sums[sumHomExpected]
 	e.fHom, e.fGRM, e.fExcess, e.fUniting, e.fVanRad = nan, nan, nan, nan, nan
+	e.homShare, e.homShareHWE = nan, nan
 	if e.informative > 0 {
+		// f_hom, the method-of-moments F of Li & Horvitz (1953, Am J Hum
+		// Genet 5:107) summed over the sample's sites: 1 minus the
+		// heterozygous calls seen over those Hardy-Weinberg predicts.
+		// Written as the homozygous excess over its largest possible
+		// value, (hom seen - hom expected)/(sites - hom expected), the
+		// same number, computed this way since the first version (the
+		// per-sample sum over many sites is common practice).
 		e.fHom = ratio(float64(e.homInformative)-e.homExp, n-e.homExp)
+		e.homShare = float64(e.homInformative) / n
+		e.homShareHWE = e.homExp / n
 		e.fGRM = sums[sumGRM] / n
 		e.fExcess = sums[sumExcessHom] / n
 		e.fUniting = sums[sumUniting] / n
@@ -444,14 +459,11 @@ func (t *Totals) SampleTable() (header []string, rows [][]string) {
 			}
 			row = append(row, pop)
 		}
-		homObs := numfmt.NA
-		if e.informative > 0 {
-			homObs = itoa(e.homInformative)
-		}
 		row = append(row, itoa(e.called), itoa(a.Counts[0]), itoa(a.Counts[1]), itoa(a.Counts[2]),
 			itoa(a.Counts[3]), itoa(a.Counts[4]+a.Counts[5]),
-			ftoa(e.callRate), ftoa(e.hetRate), homObs, ftoa(e.homExp), itoa(e.informative),
-			ftoa(e.fHom), ftoa(e.fGRM), ftoa(e.fExcess), ftoa(e.fUniting), ftoa(e.fVanRad), v.flags[i].String())
+			ftoa(e.callRate), ftoa(e.hetRate),
+			ftoa(e.fHom), ftoa(e.fGRM), ftoa(e.fExcess), ftoa(e.fUniting), ftoa(e.fVanRad),
+			itoa(e.informative), ftoa(e.homShare), ftoa(e.homShareHWE), v.flags[i].String())
 		rows = append(rows, row)
 	}
 	return header, rows

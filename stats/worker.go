@@ -18,7 +18,7 @@ const (
 	sumExcessHom          // Yang et al. F-hat-II terms
 	sumUniting            // Yang et al. F-hat-III terms
 	sumVRNum              // VanRaden (x-2p)^2
-	sumHomExpected        // E of f_hom: sum of 1 - 2pq*2n/(2n-1)
+	sumHomExpected        // f_hom's expected homozygous calls: sum of 1 - 2pq*2n/(2n-1)
 	sumVRDen              // VanRaden 2p(1-p)
 	nSums
 	nVarying = sumHomExpected
@@ -478,8 +478,9 @@ func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64
 		b = append(b, '\t')
 		b = strconv.AppendInt(b, cnt[g], 10)
 	}
+	haploid := cnt[vcfscan.HaploidRef] + cnt[vcfscan.HaploidAlt]
 	b = append(b, '\t')
-	b = strconv.AppendInt(b, cnt[vcfscan.HaploidRef]+cnt[vcfscan.HaploidAlt], 10)
+	b = strconv.AppendInt(b, haploid, 10)
 	called := cnt[0] + cnt[1] + cnt[2]
 	b = appendFloat(b, p)
 	maf := nan
@@ -487,9 +488,9 @@ func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64
 		maf = math.Min(p, 1-p)
 	}
 	b = appendFloat(b, maf)
-	cr := nan
+	cr := nan // a haploid call counts as a call here, and nowhere else
 	if nSel > 0 {
-		cr = float64(called) / float64(nSel)
+		cr = float64(called+haploid) / float64(nSel)
 	}
 	b = appendFloat(b, cr)
 	b = appendFloat(b, ho)

@@ -86,10 +86,10 @@ func readBCFHeader(r io.Reader, name string, lim Limits, warn func(kind, example
 	}
 	if lim.MaxLineBytes > 0 && int64(lText) > int64(lim.MaxLineBytes) {
 		return nil, &ParseError{File: name, Offset: -1, Record: -1, Field: "BCF header",
-			Err: fmt.Errorf("%w: header length %d bytes is over the %d limit; raise --max-line-bytes, which also bounds the header, if the file is genuine", ErrLimit, lText, lim.MaxLineBytes)}
+			Err: fmt.Errorf("%w: header length %d bytes is over the %d limit; raise --guard-line-bytes, which also bounds the header, if the file is genuine", ErrLimit, lText, lim.MaxLineBytes)}
 	}
 	// Read through a LimitReader into a buffer of the claimed size, now
-	// bounded by --max-line-bytes: pages a lying length on a short file
+	// bounded by --guard-line-bytes: pages a lying length on a short file
 	// never fills are not touched, and a genuine header is not copied
 	// while the buffer grows.
 	var buf bytes.Buffer
@@ -274,7 +274,7 @@ func readBCFRecord(r io.Reader, buf []byte, maxBytes int) ([]byte, error) {
 	ls := uint64(binary.LittleEndian.Uint32(buf[0:4]))
 	li := uint64(binary.LittleEndian.Uint32(buf[4:8]))
 	if ls+li > uint64(maxBytes) {
-		return buf[:0], fmt.Errorf("%w: record of %d bytes is over the %d limit; raise --max-line-bytes if the file is genuine", ErrLimit, ls+li, maxBytes)
+		return buf[:0], fmt.Errorf("%w: record of %d bytes is over the %d limit; raise --guard-line-bytes if the file is genuine", ErrLimit, ls+li, maxBytes)
 	}
 	total := 8 + int(ls+li)
 	// Grow by at most 1 MiB beyond the bytes actually read, so that a
@@ -663,7 +663,7 @@ func (d *bcfDecoder) decode(rec []byte, index int64, b *Batch) (kept bool, reaso
 		reason = SkipOutsideRegion
 	case nAllele > 2:
 		if lim := d.opt.Limits.MaxAlleles; lim > 0 && nAllele > lim {
-			return false, 0, d.fail(index, "ALT", ErrLimit, "%d alleles, more than the limit of %d; raise --max-alleles if the file is genuine", nAllele, lim)
+			return false, 0, d.fail(index, "ALT", ErrLimit, "%d alleles, more than the limit of %d; raise --guard-alleles if the file is genuine", nAllele, lim)
 		}
 		reason = SkipMultiallelic
 	case isSymbolic(alt):

@@ -359,7 +359,7 @@ func (z *bgzfReader) inflateBlock(j *bgzfJob, k int, fr *io.ReadCloser, br *byte
 	wantCRC := binary.LittleEndian.Uint32(raw[len(raw)-8:])
 	isize := int(binary.LittleEndian.Uint32(raw[len(raw)-4:]))
 	if isize > z.maxISize || isize < 0 {
-		return z.blockErr(coff, ErrLimit, "block claims %d uncompressed bytes, more than the limit of %d; raise --max-block-bytes if the file is genuine", isize, z.maxISize)
+		return z.blockErr(coff, ErrLimit, "block claims %d uncompressed bytes, more than the limit of %d; raise --guard-block-bytes if the file is genuine", isize, z.maxISize)
 	}
 	at := len(j.out)
 	if cap(j.out) < at+isize+1 {

@@ -34,7 +34,7 @@ func (h *headerReader) readLine() ([]byte, error) {
 		if err == bufio.ErrBufferFull {
 			if len(h.long)+len(frag) > h.maxLine {
 				return nil, &ParseError{File: h.name, Line: h.line + 1, Offset: -1, Record: -1, Field: "header",
-					Err: fmt.Errorf("%w: header line longer than %d bytes; raise --max-line-bytes if the file is genuine", ErrLimit, h.maxLine)}
+					Err: fmt.Errorf("%w: header line longer than %d bytes; raise --guard-line-bytes if the file is genuine", ErrLimit, h.maxLine)}
 			}
 			h.long = appendCapped(h.long, frag, h.maxLine+1)
 			continue
@@ -45,7 +45,7 @@ func (h *headerReader) readLine() ([]byte, error) {
 		}
 		if len(frag) > h.maxLine {
 			return nil, &ParseError{File: h.name, Line: h.line + 1, Offset: -1, Record: -1, Field: "header",
-				Err: fmt.Errorf("%w: header line longer than %d bytes; raise --max-line-bytes if the file is genuine", ErrLimit, h.maxLine)}
+				Err: fmt.Errorf("%w: header line longer than %d bytes; raise --guard-line-bytes if the file is genuine", ErrLimit, h.maxLine)}
 		}
 		if err == io.EOF && len(frag) == 0 {
 			return nil, io.EOF
@@ -88,7 +88,7 @@ func parseTextHeader(br *bufio.Reader, name string, lim Limits, warn func(kind, 
 		// line's bookkeeping too, so that endless short meta lines
 		// cannot exhaust memory.
 		if held += int64(len(line)) + headerLineCost; held > int64(lim.MaxLineBytes) {
-			return nil, false, 0, h.errf(ErrLimit, "header", "header of %d lines holds more than %d bytes (lines count %d bytes each besides their text); raise --max-line-bytes, which also bounds the header, if the file is genuine", h.line, lim.MaxLineBytes, headerLineCost)
+			return nil, false, 0, h.errf(ErrLimit, "header", "header of %d lines holds more than %d bytes (lines count %d bytes each besides their text); raise --guard-line-bytes, which also bounds the header, if the file is genuine", h.line, lim.MaxLineBytes, headerLineCost)
 		}
 		if h.line == 1 && !bytes.HasPrefix(line, []byte("##fileformat=")) {
 			if !bytes.HasPrefix(line, []byte("#CHROM")) {
@@ -150,7 +150,7 @@ func parseTextHeader(br *bufio.Reader, name string, lim Limits, warn func(kind, 
 		// Count before splitting: a hostile line claiming millions of
 		// samples must not cost a string header per claimed sample.
 		if n := bytes.Count(line, []byte{'\t'}) - 8; n > lim.MaxSamples {
-			return nil, false, 0, h.errf(ErrLimit, "#CHROM", "%d samples, more than the limit of %d; raise --max-samples if the file is genuine", n, lim.MaxSamples)
+			return nil, false, 0, h.errf(ErrLimit, "#CHROM", "%d samples, more than the limit of %d; raise --guard-samples if the file is genuine", n, lim.MaxSamples)
 		}
 		cols := strings.Split(string(line), "\t")
 		if len(cols) < len(fixedColumns) {
@@ -168,7 +168,7 @@ func parseTextHeader(br *bufio.Reader, name string, lim Limits, warn func(kind, 
 		if hasFormat {
 			samples := cols[9:]
 			if len(samples) > lim.MaxSamples {
-				return nil, false, 0, h.errf(ErrLimit, "#CHROM", "%d samples, more than the limit of %d; raise --max-samples if the file is genuine", len(samples), lim.MaxSamples)
+				return nil, false, 0, h.errf(ErrLimit, "#CHROM", "%d samples, more than the limit of %d; raise --guard-samples if the file is genuine", len(samples), lim.MaxSamples)
 			}
 			seen := make(map[string]int, len(samples))
 			for i, s := range samples {

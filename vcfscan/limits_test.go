@@ -30,17 +30,17 @@ func TestLimitErrors(t *testing.T) {
 		msg  string
 	}{
 		{"line_in_chunk", mini("1\t5\t.\tA\tG\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1", long), Limits{MaxLineBytes: 4096},
-			"mem.vcf:7: line: limit exceeded: line of 5038 bytes is longer than the limit of 4096; raise --max-line-bytes"},
+			"mem.vcf:7: line: limit exceeded: line of 5038 bytes is longer than the limit of 4096; raise --guard-line-bytes"},
 		{"line_without_newline", append([]byte(miniHeader), strings.Repeat("y", 10000)...), Limits{MaxLineBytes: 4096},
-			"mem.vcf:6: line: limit exceeded: line of 10000 bytes is longer than the limit of 4096; raise --max-line-bytes"},
+			"mem.vcf:6: line: limit exceeded: line of 10000 bytes is longer than the limit of 4096; raise --guard-line-bytes"},
 		{"header_line", []byte("##fileformat=VCFv4.2\n##note=" + strings.Repeat("z", 9000) + "\n"), Limits{MaxLineBytes: 4096},
-			"mem.vcf:2: header: limit exceeded: header line longer than 4096 bytes; raise --max-line-bytes"},
+			"mem.vcf:2: header: limit exceeded: header line longer than 4096 bytes; raise --guard-line-bytes"},
 		{"samples", mini("1\t5\t.\tA\tG\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1"), Limits{MaxSamples: 2},
-			"mem.vcf:5: #CHROM: limit exceeded: 3 samples, more than the limit of 2; raise --max-samples"},
+			"mem.vcf:5: #CHROM: limit exceeded: 3 samples, more than the limit of 2; raise --guard-samples"},
 		{"alleles", mini("1\t5\t.\tA\tC,G,T\t.\tPASS\t.\tGT\t0/0\t0/1\t1/1"), Limits{MaxAlleles: 3},
-			"mem.vcf:6: ALT: limit exceeded: 4 alleles, more than the limit of 3; raise --max-alleles"},
+			"mem.vcf:6: ALT: limit exceeded: 4 alleles, more than the limit of 3; raise --guard-alleles"},
 		{"bgzf_block", bgzfBlockOf(bytes.Repeat([]byte("#"), 70000)), Limits{},
-			"block claims 70000 uncompressed bytes, more than the limit of 65536; raise --max-block-bytes"},
+			"block claims 70000 uncompressed bytes, more than the limit of 65536; raise --guard-block-bytes"},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {

@@ -426,7 +426,7 @@ func (r *Reader) chunkLoop() {
 			if len(buf) > maxLine {
 				b.st.terminal = true
 				b.st.err = &ParseError{File: r.name, Line: 1, Offset: -1, Record: -1, Field: "line",
-					Err: fmt.Errorf("%w: line longer than %d bytes; raise --max-line-bytes if the file is genuine", ErrLimit, maxLine)}
+					Err: fmt.Errorf("%w: line longer than %d bytes; raise --guard-line-bytes if the file is genuine", ErrLimit, maxLine)}
 				b.arena = buf
 				r.order <- b
 				return

@@ -74,32 +74,66 @@ func ParseRegion(s string) (Region, error) {
 	return r, nil
 }
 
-// ReadRegionsFile reads regions from a text file, one per line, fields
-// separated by tabs or spaces; empty lines and lines starting with '#' are
-// ignored. If the file name ends in ".bed" the lines are BED: "chrom start
-// end" with 0-based, half-open coordinates (the BED convention; "track" and
-// "browser" lines are ignored, extra columns too). Otherwise each line is
-// "chrom", "chrom pos" or "chrom start end" with 1-based inclusive
-// coordinates, as in ParseRegion. Errors name the file and line.
-func ReadRegionsFile(path string) ([]Region, error) {
+// ReadRegionList reads a region list file (the FILE of --region @FILE).
+// The file may be plain, gzip or BGZF (OpenText tells them apart by
+// content). It holds one of two layouts, chosen for the whole file:
+//
+//   - a region list: one region per line written as for ParseRegion
+//     ("chrom", "chrom:pos", "chrom:start-end" or "chrom:start-", 1-based
+//     and inclusive), nothing else on the line;
+//   - BED (UCSC definition): "chrom<TAB>start<TAB>end[<TAB>...]" with
+//     0-based, half-open coordinates; "track" and "browser" lines and
+//     columns after the third are ignored.
+//
+// The file is BED when its name ends in ".bed" or ".bed.gz", or when its
+// first line that is not empty or a '#' comment is a "track" or "browser"
+// line or has at least three tab-separated fields of which the second and
+// third are whole numbers. Empty lines and lines starting with '#' are
+// skipped in both layouts. Errors name the file and line and wrap
+// ErrBadRegion.
+func ReadRegionList(path string) ([]Region, error) {
 	f, err := OpenText(path)
 	if err != nil {
 		return nil, err
 	}
 	defer f.Close()
-	return readRegions(f, path, strings.HasSuffix(strings.ToLower(path), ".bed"))
+	lower := strings.ToLower(path)
+	return readRegions(f, path, strings.HasSuffix(lower, ".bed") || strings.HasSuffix(lower, ".bed.gz"))
 }
 
+// looksLikeBED reports whether a region list's first data line is BED.
+func looksLikeBED(text string) bool {
+	if f := strings.Fields(text); f[0] == "track" || f[0] == "browser" {
+		return true
+	}
+	f := strings.Split(text, "\t")
+	if len(f) < 3 {
+		return false
+	}
+	for _, t := range f[1:3] {
+		if _, err := strconv.ParseInt(strings.TrimSpace(t), 10, 64); err != nil {
+			return false
+		}
+	}
+	return true
+}
+
+// readRegions reads a region list (see ReadRegionList); bed forces BED,
+// otherwise the first data line decides.
 func readRegions(r io.Reader, name string, bed bool) ([]Region, error) {
 	sc := bufio.NewScanner(r)
 	sc.Buffer(make([]byte, 0, 4096), 1<<20)
 	var out []Region
 	line := 0
+	decided := bed
 	for sc.Scan() {
 		line++
 		text := strings.TrimSpace(sc.Text())
 		if text == "" || text[0] == '#' {
 			continue
+		}
+		if !decided {
+			bed, decided = looksLikeBED(text), true
 		}
 		fields := strings.Fields(text)
 		if bed && (fields[0] == "track" || fields[0] == "browser") {
@@ -108,56 +142,39 @@ func readRegions(r io.Reader, name string, bed bool) ([]Region, error) {
 		bad := func(why string) error {
 			return fmt.Errorf("%s:%d: %w: %s", name, line, ErrBadRegion, why)
 		}
+		if !bed {
+			if len(fields) != 1 {
+				return nil, bad("a region list line holds one region written as for --region (chrom, chrom:pos or chrom:start-end); a BED file needs chrom, start and end separated by tabs")
+			}
+			reg, err := ParseRegion(fields[0])
+			if err != nil {
+				return nil, fmt.Errorf("%s:%d: %w", name, line, err)
+			}
+			out = append(out, reg)
+			continue
+		}
 		num := func(t string) (int64, error) {
-			v, err := strconv.ParseInt(strings.ReplaceAll(t, ",", ""), 10, 64)
+			v, err := strconv.ParseInt(t, 10, 64)
 			if err != nil {
 				return 0, bad(fmt.Sprintf("%q is not a whole number", t))
 			}
 			return v, nil
 		}
-		reg := Region{Chrom: fields[0]}
-		switch {
-		case bed:
-			if len(fields) < 3 {
-				return nil, bad("a BED line needs chrom, start and end")
-			}
-			s, err := num(fields[1])
-			if err != nil {
-				return nil, err
-			}
-			e, err := num(fields[2])
-			if err != nil {
-				return nil, err
-			}
-			if s < 0 || e <= s {
-				return nil, bad("BED start must be >= 0 and end > start (0-based, half-open)")
-			}
-			reg.Start, reg.End = s+1, e
-		case len(fields) == 1:
-		case len(fields) == 2:
-			p, err := num(fields[1])
-			if err != nil {
-				return nil, err
-			}
-			if p < 1 {
-				return nil, bad("position must be at least 1 (coordinates are 1-based)")
-			}
-			reg.Start, reg.End = p, p
-		default:
-			s, err := num(fields[1])
-			if err != nil {
-				return nil, err
-			}
-			e, err := num(fields[2])
-			if err != nil {
-				return nil, err
-			}
-			if s < 1 || e < s {
-				return nil, bad("start must be at least 1 and end >= start (1-based, inclusive)")
-			}
-			reg.Start, reg.End = s, e
+		if len(fields) < 3 {
+			return nil, bad("a BED line needs chrom, start and end")
 		}
-		out = append(out, reg)
+		s, err := num(fields[1])
+		if err != nil {
+			return nil, err
+		}
+		e, err := num(fields[2])
+		if err != nil {
+			return nil, err
+		}
+		if s < 0 || e <= s {
+			return nil, bad("BED start must be >= 0 and end > start (0-based, half-open)")
+		}
+		out = append(out, Region{Chrom: fields[0], Start: s + 1, End: e})
 	}
 	if err := sc.Err(); err != nil {
 		return nil, fmt.Errorf("%s:%d: %w", name, line+1, err)

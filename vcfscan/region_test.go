@@ -58,16 +58,22 @@ func TestReadRegions(t *testing.T) {
 		want       []Region
 		errLine    int
 	}{
-		{"one-based", "# comment\n\nchr1\t10\t20\nchr2 5\nchr3\n", false,
-			[]Region{{"chr1", 10, 20}, {"chr2", 5, 5}, {"chr3", 0, 0}}, 0},
+		{"region list", "# comment\n\nchr1:10-20\nchr2:5\nchr3\nchr4:1,000-\n", false,
+			[]Region{{"chr1", 10, 20}, {"chr2", 5, 5}, {"chr3", 0, 0}, {"chr4", 1000, 0}}, 0},
 		// BED is 0-based half-open (UCSC BED definition): [9,20) is 10..20 1-based.
-		{"bed", "track name=x\nbrowser position chr1\nchr1\t9\t20\tname\t0\t+\nchr2\t0\t1\n", true,
+		{"bed by name", "track name=x\nbrowser position chr1\nchr1\t9\t20\tname\t0\t+\nchr2\t0\t1\n", true,
 			[]Region{{"chr1", 10, 20}, {"chr2", 1, 1}}, 0},
+		{"bed by content", "# c\nchr1\t9\t20\nchr2\t0\t1\tname\n", false,
+			[]Region{{"chr1", 10, 20}, {"chr2", 1, 1}}, 0},
+		{"bed by track line", "track name=x\nchr1\t9\t20\n", false, []Region{{"chr1", 10, 20}}, 0},
 		{"bed needs three columns", "chr1\t9\t20\nchr1\t5\n", true, nil, 2},
 		{"bed empty interval", "chr1\t9\t9\n", true, nil, 1},
-		{"bad number", "chr1\t10\t20\nchr1\tx\t20\n", false, nil, 2},
-		{"zero start", "chr1\t0\t20\n", false, nil, 1},
-		{"end before start", "chr1\t30\t20\n", false, nil, 1},
+		{"bed bad number", "chr1\t10\t20\nchr1\tx\t20\n", false, nil, 2},
+		{"two fields are not a layout", "chr1\t10\n", false, nil, 1},
+		{"spaces are not BED", "chr1 10 20\n", false, nil, 1},
+		{"list then BED line", "chr1:1-5\nchr1\t9\t20\n", false, nil, 2},
+		{"zero start", "chr1:0-20\n", false, nil, 1},
+		{"end before start", "chr1:30-20\n", false, nil, 1},
 	}
 	for _, c := range cases {
 		got, err := readRegions(strings.NewReader(c.text), "r.txt", c.bed)
@@ -388,9 +394,9 @@ func ExampleParseRegion() {
 	// bad region "22:500-100": end is before start
 }
 
-func ExampleReadRegionsFile() {
+func ExampleReadRegionList() {
 	// The file name ends in .bed, so its lines are 0-based, half-open.
-	regs, err := ReadRegionsFile("../testdata/bcf/example_regions.bed")
+	regs, err := ReadRegionList("../testdata/bcf/example_regions.bed")
 	if err != nil {
 		fmt.Println(err)
 		return
@@ -436,10 +442,11 @@ func FuzzParseRegion(f *testing.F) {
 	})
 }
 
-// FuzzReadRegions checks that the region file reader never panics and
+// FuzzReadRegions checks that the region list reader never panics and
 // accepts only valid regions, in both coordinate conventions.
 func FuzzReadRegions(f *testing.F) {
-	f.Add("chr1\t10\t20\n# c\nchr2 5\nchr3\n", false)
+	f.Add("chr1:10-20\n# c\nchr2:5\nchr3\n", false)
+	f.Add("chr1\t10\t20\n# c\nchr2\t5\t9\n", false)
 	f.Add("track x\nchr1\t9\t20\tname\n", true)
 	f.Fuzz(func(t *testing.T, text string, bed bool) {
 		regs, err := readRegions(strings.NewReader(text), "f", bed)
@@ -447,7 +454,7 @@ func FuzzReadRegions(f *testing.F) {
 			return
 		}
 		for _, r := range regs {
-			if r.Chrom == "" || r.Start < 0 || (r.End != 0 && r.End < r.Start) || (bed && r.Start < 1) {
+			if r.Chrom == "" || r.Start < 0 || (r.End != 0 && r.End < r.Start) || (bed && (r.Start < 1 || r.End < r.Start)) {
 				t.Fatalf("invalid region %+v from %q", r, text)
 			}
 		}

@@ -154,7 +154,7 @@ func (p *vcfParser) parseChunk(b *Batch, data []byte) error {
 				}
 				if n := lineLen(data[:used]); n > p.opt.Limits.MaxLineBytes {
 					st.lines = lineNo
-					return p.errf(lineNo, ErrLimit, "line", "line of %d bytes is longer than the limit of %d; raise --max-line-bytes if the file is genuine", n, p.opt.Limits.MaxLineBytes)
+					return p.errf(lineNo, ErrLimit, "line", "line of %d bytes is longer than the limit of %d; raise --guard-line-bytes if the file is genuine", n, p.opt.Limits.MaxLineBytes)
 				}
 				data = data[used:]
 				continue
@@ -177,7 +177,7 @@ func (p *vcfParser) parseChunk(b *Batch, data []byte) error {
 		}
 		if len(line) > p.opt.Limits.MaxLineBytes {
 			st.lines = lineNo
-			return p.errf(lineNo, ErrLimit, "line", "line of %d bytes is longer than the limit of %d; raise --max-line-bytes if the file is genuine", len(line), p.opt.Limits.MaxLineBytes)
+			return p.errf(lineNo, ErrLimit, "line", "line of %d bytes is longer than the limit of %d; raise --guard-line-bytes if the file is genuine", len(line), p.opt.Limits.MaxLineBytes)
 		}
 		if err := p.parseLine(b, line, lineNo); err != nil {
 			st.lines = lineNo
@@ -412,7 +412,7 @@ func (p *vcfParser) parseLine(b *Batch, line []byte, lineNo int64) error {
 		reason = SkipOutsideRegion
 	case bytes.IndexByte(alt, ',') >= 0:
 		if n := bytes.Count(alt, []byte{','}) + 2; n > p.opt.Limits.MaxAlleles {
-			return p.errf(lineNo, ErrLimit, "ALT", "%d alleles, more than the limit of %d; raise --max-alleles if the file is genuine", n, p.opt.Limits.MaxAlleles)
+			return p.errf(lineNo, ErrLimit, "ALT", "%d alleles, more than the limit of %d; raise --guard-alleles if the file is genuine", n, p.opt.Limits.MaxAlleles)
 		}
 		reason = SkipMultiallelic
 	case isSymbolic(alt):

@@ -108,10 +108,10 @@ var badCases = []badCase{
 	{file: "nul_in_record.vcf", code: 0},
 
 	// Limits, each with the option that raises it.
-	{file: "many_alleles.vcf", args: []string{"--max-alleles", "3"}, code: 2, msg: []string{"many_alleles.vcf:6: ALT: limit exceeded: 6 alleles, more than the limit of 3; raise --max-alleles"}},
+	{file: "many_alleles.vcf", args: []string{"--guard-alleles", "3"}, code: 2, msg: []string{"many_alleles.vcf:6: ALT: limit exceeded: 6 alleles, more than the limit of 3; raise --guard-alleles"}},
 	{file: "many_alleles.vcf", code: 0}, // default limit: the 6-allele site is skipped as multiallelic
-	{file: "long_line.vcf", args: []string{"--max-line-bytes", "4096"}, code: 2, msg: []string{"long_line.vcf:7: line: limit exceeded: line of 6041 bytes is longer than the limit of 4096; raise --max-line-bytes"}},
-	{file: "crlf.vcf", args: []string{"--max-samples", "2"}, code: 2, msg: []string{"crlf.vcf:5: #CHROM: limit exceeded: 3 samples, more than the limit of 2; raise --max-samples"}},
+	{file: "long_line.vcf", args: []string{"--guard-line-bytes", "4096"}, code: 2, msg: []string{"long_line.vcf:7: line: limit exceeded: line of 6041 bytes is longer than the limit of 4096; raise --guard-line-bytes"}},
+	{file: "crlf.vcf", args: []string{"--guard-samples", "2"}, code: 2, msg: []string{"crlf.vcf:5: #CHROM: limit exceeded: 3 samples, more than the limit of 2; raise --guard-samples"}},
 
 	// BGZF and gzip containers.
 	{file: "bgzf_truncated_mid_block.vcf.gz", code: 2, msg: []string{"bgzf_truncated_mid_block.vcf.gz (virtual offset 6553600)", "truncated input: block at byte 100", "the file was cut short"}},
@@ -127,9 +127,9 @@ var badCases = []badCase{
 	{file: "bcf_wrong_magic.bcf", code: 2, msg: []string{"bcf_wrong_magic.bcf:1: header:", `found "BCX\x02\x02`, "the input is not a VCF"}},
 	{file: "bcf_version_21.bcf", code: 2, msg: []string{"bcf_version_21.bcf (virtual offset 0): BCF magic:", "BCF version 2.1 is not supported, only 2.2"}},
 	{file: "bcf_truncated_record.bcf", code: 2, msg: []string{"bcf_truncated_record.bcf: record 2 (virtual offset 12803): record: truncated input: record of 972 bytes cut short"}},
-	{file: "bcf_header_length_lie.bcf", args: []string{"--max-line-bytes", "300000000"}, code: 2, msg: []string{"bcf_header_length_lie.bcf: BCF header: truncated input: header text has 17215 of 200000000 bytes"}},
-	{file: "bcf_header_length_lie.bcf", code: 2, msg: []string{"bcf_header_length_lie.bcf: BCF header: limit exceeded: header length 200000000 bytes is over the 67108864 limit; raise --max-line-bytes"}},
-	{file: "bcf_record_length_lie.bcf", code: 2, msg: []string{"bcf_record_length_lie.bcf: record 0 (virtual offset 10882): record: limit exceeded: record of 200000051 bytes is over the 67108864 limit; raise --max-line-bytes"}},
+	{file: "bcf_header_length_lie.bcf", args: []string{"--guard-line-bytes", "300000000"}, code: 2, msg: []string{"bcf_header_length_lie.bcf: BCF header: truncated input: header text has 17215 of 200000000 bytes"}},
+	{file: "bcf_header_length_lie.bcf", code: 2, msg: []string{"bcf_header_length_lie.bcf: BCF header: limit exceeded: header length 200000000 bytes is over the 67108864 limit; raise --guard-line-bytes"}},
+	{file: "bcf_record_length_lie.bcf", code: 2, msg: []string{"bcf_record_length_lie.bcf: record 0 (virtual offset 10882): record: limit exceeded: record of 200000051 bytes is over the 67108864 limit; raise --guard-line-bytes"}},
 	{file: "bcf_sample_count_mismatch.bcf", code: 2, msg: []string{"bcf_sample_count_mismatch.bcf: record 0 (virtual offset 10882): n_sample:", "wrong number of sample columns: record has 5 samples, the header 4"}},
 	{file: "bcf_negative_pos.bcf", code: 2, msg: []string{"bcf_negative_pos.bcf: record 0 (virtual offset 10882)", "POS: malformed input: position -5 before the start of the contig"}},
 	{file: "bcf_plain_gzip.bcf", code: 2, msg: []string{"bcf_plain_gzip.bcf:", "BCF must be BGZF-compressed"}},
@@ -142,14 +142,14 @@ var badCases = []badCase{
 	// Side files named by options.
 	{file: "crlf.vcf", args: []string{"--populations", "@populations_bad.tsv"}, code: 2, msg: []string{"populations_bad.tsv:3: want 2 columns (sample population), got 3"}},
 	{file: "crlf.vcf", args: []string{"--pedigree", "@pedigree_loop.tsv"}, code: 2, msg: []string{"pedigree_loop.tsv:4:", "animal is its own ancestor"}},
-	{file: "crlf.vcf", args: []string{"--regions-file", "@regions_bad.txt"}, code: 2, msg: []string{"regions_bad.txt:2: bad region"}},
+	{file: "crlf.vcf", args: []string{"--region", "@@regions_bad.txt"}, code: 2, msg: []string{"regions_bad.txt:2: bad region"}},
 	{file: "crlf.vcf", args: []string{"--recombination-map", "@genetic_map_bad.txt"}, code: 2, msg: []string{"genetic_map_bad.txt:2:", `cM "abc" is not a number`}},
 	{file: "crlf.vcf", args: []string{"--freqs", "@freqs_bad.tsv"}, code: 2, msg: []string{"freqs_bad.tsv:1:", `alt_freq "1.5" is not a number in [0,1]`}},
 	{file: "crlf.vcf", args: []string{"--samples", "@samples_list.txt"}, code: 2, msg: []string{"crlf.vcf: unknown sample: requested sample \"goat_z\" is not in the file (it has 3 samples); check the spelling"}},
 	{file: "no_such_file.vcf", code: 2, msg: []string{"no_such_file.vcf", "no such file"}},
 	{file: "crlf.vcf", args: []string{"--populations", "@no_such_file.tsv"}, code: 2, msg: []string{"no_such_file.tsv", "no such file"}},
 	{file: "crlf.vcf", args: []string{"--pedigree", "@no_such_file.tsv"}, code: 2, msg: []string{"no_such_file.tsv", "no such file"}},
-	{file: "crlf.vcf", args: []string{"--regions-file", "@no_such_file.txt"}, code: 2, msg: []string{"no_such_file.txt", "no such file"}},
+	{file: "crlf.vcf", args: []string{"--region", "@@no_such_file.txt"}, code: 2, msg: []string{"no_such_file.txt", "no such file"}},
 	{file: "crlf.vcf", args: []string{"--recombination-map", "@no_such_file.txt"}, code: 2, msg: []string{"no_such_file.txt", "no such file"}},
 }
 
@@ -162,7 +162,7 @@ func TestBadInputs(t *testing.T) {
 		covered[tc.file] = true
 		for _, a := range tc.args {
 			if strings.HasPrefix(a, "@") {
-				covered[a[1:]] = true
+				covered[strings.TrimLeft(a, "@")] = true
 			}
 		}
 		name := tc.file
@@ -183,7 +183,11 @@ func TestBadInputs(t *testing.T) {
 				}
 				args := []string{"scan", filepath.Join(badDir, tc.file), "-o", out, "--no-progress", "--threads", "2"}
 				for _, a := range tc.args {
-					if strings.HasPrefix(a, "@") {
+					// "@name" is a file of testdata/bad; "@@name" is
+					// "@" followed by one (--region @FILE).
+					if f, ok := strings.CutPrefix(a, "@@"); ok {
+						a = "@" + filepath.Join(badDir, f)
+					} else if strings.HasPrefix(a, "@") {
 						a = filepath.Join(badDir, a[1:])
 					}
 					args = append(args, a)
@@ -304,7 +308,7 @@ func TestBadInputCancelled(t *testing.T) {
 // temporary folder: a 200 MB single line, a BGZF bomb (one 64 KiB block of
 // zeros repeated to inflate to 1 GiB, 1.7 MB on disk) and a plain gzip bomb
 // (256 MiB of zeros in about 250 kB). Each is refused at the default
-// --max-line-bytes, with exit 2 and nothing left in OUTDIR.
+// --guard-line-bytes, with exit 2 and nothing left in OUTDIR.
 func TestBadInputsHuge(t *testing.T) {
 	if raceEnabled {
 		t.Skip("gigabyte-scale inputs take a minute under the race detector; the small corpus covers the same code paths")
@@ -362,7 +366,7 @@ func TestBadInputsHuge(t *testing.T) {
 
 	// A 9 MB header naming 1,000,001 samples: each sample costs scan
 	// about 1.6 kB (5 million cost 7.9 GB RSS), so the default
-	// --max-samples refuses it before anything is allocated per sample.
+	// --guard-samples refuses it before anything is allocated per sample.
 	many := filepath.Join(dir, "many_samples.vcf")
 	var hb bytes.Buffer
 	hb.WriteString("##fileformat=VCFv4.2\n#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT")
@@ -375,7 +379,7 @@ func TestBadInputsHuge(t *testing.T) {
 		t.Fatal(err)
 	}
 	code, stderr := badRun(t, "scan", many, "-o", filepath.Join(dir, "out_many"), "--no-progress")
-	if want := "many_samples.vcf:2: #CHROM: limit exceeded: 1000001 samples, more than the limit of 1000000; raise --max-samples"; code != 2 || !strings.Contains(stderr, want) {
+	if want := "many_samples.vcf:2: #CHROM: limit exceeded: 1000001 samples, more than the limit of 1000000; raise --guard-samples"; code != 2 || !strings.Contains(stderr, want) {
 		t.Errorf("code %d, stderr %s; want 2 and %q", code, stderr, want)
 	}
 
@@ -383,7 +387,7 @@ func TestBadInputsHuge(t *testing.T) {
 		t.Run(filepath.Base(in), func(t *testing.T) {
 			out := filepath.Join(dir, "out_"+filepath.Base(in))
 			code, stderr := badRun(t, "scan", in, "-o", out, "--no-progress", "--threads", "2")
-			want := filepath.Base(in) + ":3: line: limit exceeded: line longer than 67108864 bytes; raise --max-line-bytes"
+			want := filepath.Base(in) + ":3: line: limit exceeded: line longer than 67108864 bytes; raise --guard-line-bytes"
 			if code != 2 || !strings.Contains(stderr, want) {
 				t.Fatalf("code %d, stderr %s; want 2 and %q", code, stderr, want)
 			}

@@ -37,7 +37,21 @@ only when the whole run succeeds.
 Site policy: biallelic SNPs (REF and ALT one of A, C, G, T) with FILTER PASS
 or "." are kept; every other record is skipped and counted by reason in
 run.json. Calls below --min-gq or --min-dp are set to missing. Haploid calls
-are counted apart (n_haploid) and left out of diploid statistics.
+are counted apart (n_haploid) and left out of diploid statistics; they do
+count as calls for call_rate.
+
+Regions: --region takes CHROM, CHROM:POS, CHROM:START-END or CHROM:START-
+(1-based, inclusive; repeatable), or @FILE for a list read from FILE (plain,
+gzip or BGZF). A list holds one region per line in the same syntax, or is
+BED (0-based, half-open; "chrom<TAB>start<TAB>end", extra columns ignored):
+BED when FILE ends in .bed or .bed.gz or its first line is a track/browser
+line or three tab-separated fields with whole-number start and end. Empty
+lines and lines starting with '#' are skipped. Regions need a BGZF input
+with a .tbi or .csi index.
+
+Input guards (--guard-*) are safety limits against damaged or hostile input,
+not filters: a file that exceeds one aborts the run with exit 2 and writes
+nothing; raise the guard if the file is genuine.
 
 The flags column of samples.tsv ("." when none):
   no_calls             the sample has no diploid call at any kept site
@@ -61,7 +75,6 @@ type scanOptions struct {
 	force       bool
 	threads     int
 	regions     listFlag
-	regionsFile string
 	report      bool
 	pedigree    string
 	noProgress  bool
@@ -81,8 +94,7 @@ func runScan(ctx context.Context, env *runEnv, args []string) error {
 	fs.StringVar(&o.out, "out", "", "same as -o")
 	fs.BoolVar(&o.force, "force", false, "overwrite results already in OUTDIR")
 	fs.IntVar(&o.threads, "threads", runtime.NumCPU(), "worker threads for decompression, parsing and statistics")
-	fs.Var(&o.regions, "region", "restrict to CHROM or CHROM:START-END (1-based, inclusive; repeatable; needs a .tbi or .csi index)")
-	fs.StringVar(&o.regionsFile, "regions-file", "", "file of regions, one 'chrom start end' per line (1-based inclusive; .bed files 0-based half-open)")
+	fs.Var(&o.regions, "region", "restrict to `REGION`: CHROM or CHROM:START-END (1-based, inclusive), or @FILE for the regions listed in FILE (see Regions above); repeatable; needs a .tbi or .csi index")
 	fs.BoolVar(&o.read.IncludeFiltered, "include-filtered", false, "keep records whatever their FILTER (default keeps PASS and '.')")
 	fs.IntVar(&o.read.MinGQ, "min-gq", 0, "set calls with GQ below this to missing (0: off)")
 	fs.IntVar(&o.read.MinDP, "min-dp", 0, "set calls with DP below this to missing (0: off)")
@@ -93,10 +105,10 @@ func runScan(ctx context.Context, env *runEnv, args []string) error {
 	fs.BoolVar(&o.noProgress, "no-progress", false, "never draw the progress bar")
 	fs.StringVar(&o.cpuProfile, "cpu-profile", "", "write a Go CPU profile of the run to this file (for developers)")
 	lim := scanrun.DefaultLimits()
-	fs.IntVar(&o.read.Limits.MaxLineBytes, "max-line-bytes", lim.MaxLineBytes, "refuse text lines, headers and BCF records longer than this")
-	fs.IntVar(&o.read.Limits.MaxSamples, "max-samples", lim.MaxSamples, "refuse inputs with more samples than this (each costs about 1.6 kB of memory)")
-	fs.IntVar(&o.read.Limits.MaxAlleles, "max-alleles", lim.MaxAlleles, "refuse records with more alleles than this")
-	fs.IntVar(&o.read.Limits.MaxBlockExpand, "max-block-bytes", lim.MaxBlockExpand, "refuse compressed blocks that expand beyond this many bytes")
+	fs.IntVar(&o.read.Limits.MaxLineBytes, "guard-line-bytes", lim.MaxLineBytes, "safety limit: abort the run (exit 2) on a text line, header or BCF record longer than this; not a filter")
+	fs.IntVar(&o.read.Limits.MaxSamples, "guard-samples", lim.MaxSamples, "safety limit: abort the run (exit 2) on an input naming more samples than this (each costs about 1.6 kB of memory); not a filter")
+	fs.IntVar(&o.read.Limits.MaxAlleles, "guard-alleles", lim.MaxAlleles, "safety limit: abort the run (exit 2) on a record with more alleles (REF + ALT) than this; not a site filter (records with 3 or more alleles are skipped anyway)")
+	fs.IntVar(&o.read.Limits.MaxBlockExpand, "guard-block-bytes", lim.MaxBlockExpand, "safety limit: abort the run (exit 2) on a compressed block that expands beyond this many bytes; not a filter")
 	o.stats = addStatsFlags(fs)
 	o.roh = addROHFlags(fs)
 	o.shard = addShardFlags(fs)
@@ -133,18 +145,22 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) error {
 		return err
 	}
 	for _, r := range o.regions {
+		if file, ok := strings.CutPrefix(r, "@"); ok {
+			if file == "" {
+				return usagef("--region @: want a file name after '@'")
+			}
+			regs, err := vcfscan.ReadRegionList(file)
+			if err != nil {
+				return err
+			}
+			o.read.Regions = append(o.read.Regions, regs...)
+			continue
+		}
 		reg, err := vcfscan.ParseRegion(r)
 		if err != nil {
 			return usagef("--region: %v", err)
 		}
 		o.read.Regions = append(o.read.Regions, reg)
-	}
-	if o.regionsFile != "" {
-		regs, err := vcfscan.ReadRegionsFile(o.regionsFile)
-		if err != nil {
-			return err
-		}
-		o.read.Regions = append(o.read.Regions, regs...)
 	}
 	rohCfg, err := o.roh.config()
 	if err != nil {

@@ -11,24 +11,24 @@ import (
 
 // rohFlags are the scan options of runs-of-homozygosity detection.
 type rohFlags struct {
-	noROH       bool
-	method      string
-	genoError   float64
-	cmPerMB     float64
-	geneticMap  string
-	fit         bool
-	prior       float64
-	rate        float64
-	classes     string
-	species     string
-	autosomes   string
-	maxGapKB    float64
-	maxHet      int
-	maxMissing  int
-	minKB       float64
-	minSites    int
-	maxKBPerSit float64
-	edgeSites   int
+	noROH      bool
+	method     string
+	genoError  float64
+	cmPerMB    float64
+	geneticMap string
+	fit        bool
+	prior      float64
+	rate       float64
+	classes    string
+	species    string
+	autosomes  string
+	maxGapKB   float64
+	maxHet     int
+	maxMissing int
+	minKB      float64
+	minSites   int
+	minSitesMb float64
+	edgeSites  int
 }
 
 // rohHelp is appended to the scan help.
@@ -84,8 +84,8 @@ func addROHFlags(fs *flag.FlagSet) *rohFlags {
 	fs.IntVar(&f.maxMissing, "rules-max-missing", d.Rules.MaxMissing, "rules: missing calls tolerated per run")
 	fs.Float64Var(&f.minKB, "rules-min-kb", d.Rules.MinKB, "rules: minimum run length in kb")
 	fs.IntVar(&f.minSites, "rules-min-sites", d.Rules.MinSites, "rules: minimum number of sites in a run")
-	fs.Float64Var(&f.maxKBPerSit, "rules-max-kb-per-site", d.Rules.MaxKBPerSite,
-		"rules: minimum density, as the largest mean spacing in kb per site")
+	fs.Float64Var(&f.minSitesMb, "rules-min-sites-per-mb", d.Rules.MinSitesPerMb,
+		"rules: minimum density of a run, in sites per Mb of its length")
 	fs.IntVar(&f.edgeSites, "rules-edge-hom-sites", d.Rules.EdgeHomSites,
 		"rules: homozygous calls needed between a tolerated heterozygote and the run's end, else the run stops before it (0: off)")
 	return f
@@ -106,7 +106,7 @@ func (f *rohFlags) config() (*roh.Config, error) {
 	c.Rate = f.rate
 	c.Species = f.species
 	c.MaxGapKB = f.maxGapKB
-	c.Rules = roh.Rules{MaxHet: f.maxHet, MaxMissing: f.maxMissing, MinKB: f.minKB, MinSites: f.minSites, MaxKBPerSite: f.maxKBPerSit,
+	c.Rules = roh.Rules{MaxHet: f.maxHet, MaxMissing: f.maxMissing, MinKB: f.minKB, MinSites: f.minSites, MinSitesPerMb: f.minSitesMb,
 		EdgeHomSites: f.edgeSites}
 	c.Classes = nil
 	for _, s := range strings.Split(f.classes, ",") {

@@ -29,12 +29,15 @@ type statsFlags struct {
 const statsHelp = `Statistics:
   hwe_p is the exact Hardy-Weinberg test of Wigginton, Cutler & Abecasis 2005
   (Am J Hum Genet 76:887); --hwe-method chisq uses the 1-df chi-square test
-  instead (large samples). Per-sample F: f_hom (excess homozygosity, method of
-  moments), f_grm, f_excess_hom, f_uniting_gametes (Yang et al. 2011, Am J Hum
-  Genet 88:76) and f_vanraden (VanRaden 2008, J Dairy Sci 91:4414). Allele
-  frequencies come from the cohort, from each sample's population (with
-  --populations), from an INFO key (--freqs-from-info) or from a panel file
-  (--freqs: columns chrom pos ref alt alt_freq). With --populations (columns
+  instead (large samples); hwe_p_fewer_het and hwe_p_more_het are its
+  one-sided tails (fewer or more heterozygotes than expected). Per-sample F:
+  f_hom (method of moments, Li & Horvitz 1953, Am J Hum Genet 5:107), f_grm,
+  f_excess_hom, f_uniting_gametes (Yang et al. 2011, Am J Hum Genet 88:76) and
+  f_vanraden (VanRaden 2008, J Dairy Sci 91:4414); polymorphic_sites_called,
+  homozygous_share and homozygous_share_under_hwe follow them as diagnostics.
+  Allele frequencies come from the cohort, from each sample's population
+  (with --populations), from an INFO key (--freqs-from-info) or from a panel
+  file (--freqs: columns chrom pos ref alt alt_freq). With --populations (columns
   sample population), Weir & Cockerham 1984 (Evolution 38:1358) F_ST, F_IS
   and F_IT are estimated with block-jackknife standard errors over genomic
   windows of --jackknife-block-mb.

@@ -638,7 +638,7 @@ func TestMergeReport(t *testing.T) {
 }
 
 // TestPlanManyContigs: a shard of more than plan.MaxRegionArgs whole contigs
-// reads them from a regions file; scanning the plan's shards that way
+// reads them from a region list (--region @FILE); scanning the plan's shards that way
 // merges to the single pass.
 func TestPlanManyContigs(t *testing.T) {
 	dir := t.TempDir()
@@ -663,8 +663,8 @@ func TestPlanManyContigs(t *testing.T) {
 		t.Fatalf("plan: exit %d: %s", code, e)
 	}
 	script, _ := os.ReadFile(filepath.Join(planDir, "run_shard.sh"))
-	if !strings.Contains(string(script), "--regions-file") {
-		t.Fatalf("run_shard.sh uses no regions file:\n%s", script)
+	if !strings.Contains(string(script), `--region "@$PLANDIR/regions/`) {
+		t.Fatalf("run_shard.sh uses no region list:\n%s", script)
 	}
 	single := scanSingle(t, dir, input, nil)
 	var states []string
@@ -678,7 +678,7 @@ func TestPlanManyContigs(t *testing.T) {
 			t.Errorf("%s lists %d contigs", rf, n)
 		}
 		out := filepath.Join(dir, fmt.Sprintf("shard%d", i))
-		if code, _, e := runCmdline(t, "scan", input, "--regions-file", rf, "-o", out, "--state-out", out+".state", "--no-progress"); code != exitOK {
+		if code, _, e := runCmdline(t, "scan", input, "--region", "@"+rf, "-o", out, "--state-out", out+".state", "--no-progress"); code != exitOK {
 			t.Fatalf("scan: exit %d: %s", code, e)
 		}
 		states = append(states, out+".state")

@@ -27,8 +27,8 @@ type fixtureOpts struct {
 }
 
 var fixtureSampleHeader = []string{"sample", "population", "sites_called", "n_hom_ref", "n_het", "n_hom_alt", "n_missing", "n_haploid",
-	"call_rate", "het_rate", "hom_observed", "hom_expected", "sites_informative", "f_hom", "f_grm", "f_excess_hom",
-	"f_uniting_gametes", "f_vanraden", "flags", "n_runs", "roh_total_bp", "f_roh", "f_roh_gt_1mb", "f_roh_gt_2mb",
+	"call_rate", "het_rate", "f_hom", "f_grm", "f_excess_hom", "f_uniting_gametes", "f_vanraden",
+	"polymorphic_sites_called", "homozygous_share", "homozygous_share_under_hwe", "flags", "n_runs", "roh_total_bp", "f_roh", "f_roh_gt_1mb", "f_roh_gt_2mb",
 	"f_roh_gt_4mb", "f_roh_gt_8mb", "f_roh_gt_16mb", "f_pedigree"}
 
 var fixtureChroms = []struct {
@@ -59,7 +59,7 @@ func writeFixture(t testing.TB, dir string, o fixtureOpts) []string {
 	header = append(header, "unknown_extra_column")
 	var sb, rb bytes.Buffer
 	sb.WriteString(strings.Join(header, "\t") + "\n")
-	rb.WriteString("sample\tchrom\tstart\tend\tlength_bp\tlength_cm\tn_sites\tn_het\tn_missing\tquality\tgenerations_back\n")
+	rb.WriteString("sample\tchrom\tstart\tend\tlength_bp\tlength_cm\tn_sites\tn_het\tn_missing\tmean_posterior_autozygous\tgenerations_back\n")
 	g := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 	covered := float64(fixtureChroms[0].len + fixtureChroms[1].len + fixtureChroms[2].len)
 	for i, nm := range names {
@@ -118,7 +118,7 @@ func writeFixture(t testing.TB, dir string, o fixtureOpts) []string {
 			"sample": nm, "population": pop, "sites_called": strconv.Itoa(called), "n_hom_ref": strconv.Itoa(nRef),
 			"n_het": strconv.Itoa(nHet), "n_hom_alt": strconv.Itoa(nAlt), "n_missing": strconv.Itoa(50000 - called),
 			"n_haploid": "0", "call_rate": g(float64(called) / 50000), "het_rate": g(float64(nHet) / float64(called)),
-			"hom_observed": strconv.Itoa(called - nHet), "hom_expected": g(float64(called) * 0.7), "sites_informative": strconv.Itoa(called),
+			"polymorphic_sites_called": strconv.Itoa(called), "homozygous_share": g(float64(called-nHet) / float64(called)), "homozygous_share_under_hwe": "0.7",
 			"f_hom": g(fhom), "f_grm": g(fhom + 0.03*rng.NormFloat64()), "f_excess_hom": g(fhom + 0.01*rng.NormFloat64()),
 			"f_uniting_gametes": g(fhom + 0.015*rng.NormFloat64()), "f_vanraden": g(fhom - 0.02 + 0.03*rng.NormFloat64()),
 			"flags": flags, "n_runs": strconv.Itoa(nRuns), "roh_total_bp": g(total), "f_roh": g(froh),
@@ -143,7 +143,7 @@ func writeFixture(t testing.TB, dir string, o fixtureOpts) []string {
 	}
 	// sites.tsv.gz as several gzip members, like BGZF
 	var zb bytes.Buffer
-	siteHeader := "chrom\tpos\tref\talt\tn_hom_ref\tn_het\tn_hom_alt\tn_missing\tn_haploid\talt_freq\tmaf\tcall_rate\thet_observed\thet_expected\tf_site\thwe_p\thwe_midp\thwe_p_deficit\thwe_p_excess\n"
+	siteHeader := "chrom\tpos\tref\talt\tn_hom_ref\tn_het\tn_hom_alt\tn_missing\tn_haploid\talt_freq\tmaf\tcall_rate\thet_observed\thet_expected\tf_site\thwe_p\thwe_midp\thwe_p_fewer_het\thwe_p_more_het\n"
 	member := &bytes.Buffer{}
 	member.WriteString(siteHeader)
 	flush := func() {
@@ -193,7 +193,7 @@ func writeFixture(t testing.TB, dir string, o fixtureOpts) []string {
 	}
 	run := map[string]any{
 		"version":      "0.1.0",
-		"command_line": []string{"fgauge", "scan", "herds it's.vcf.gz", "-o", "out", "--populations", "farms.tsv"},
+		"command_line": []string{"/tmp/go-build2871/b001/exe/fgauge", "scan", "herds it's.vcf.gz", "-o", "out", "--populations", "farms.tsv"},
 		"input":        map[string]any{"path": "herds it's.vcf.gz", "size_bytes": 123456789, "format": "vcf.gz"},
 		"records":      map[string]any{"read": nSites + 140, "kept": nSites, "skipped": map[string]int{"multiallelic": 90, "not_snp": 40, "filtered": 10}, "masked_calls": 12},
 		"samples":      map[string]any{"in_file": o.n + 1, "kept": o.n, "excluded": []string{"VALE-999"}},

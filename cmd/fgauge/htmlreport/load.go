@@ -47,7 +47,7 @@ type rohRun struct {
 	lengthCM   float64
 	nSites     float64
 	nHet       float64
-	quality    float64
+	meanPost   float64
 	genBack    float64
 }
 
@@ -150,7 +150,7 @@ func (d *data) loadRuns(path string) error {
 			lengthCM: t.num(r, "length_cm"),
 			nSites:   t.num(r, "n_sites"),
 			nHet:     t.num(r, "n_het"),
-			quality:  t.num(r, "quality"),
+			meanPost: t.num(r, "mean_posterior_autozygous"),
 			genBack:  t.num(r, "generations_back"),
 		}
 		s, e := t.num(r, "start"), t.num(r, "end")

@@ -11,7 +11,7 @@ import (
 // sitesText builds n rows of a sites table (simulated values).
 func sitesText(n int) []byte {
 	var b bytes.Buffer
-	b.WriteString("chrom\tpos\tref\talt\tn_hom_ref\tn_het\tn_hom_alt\tn_missing\tn_haploid\talt_freq\tmaf\tcall_rate\thet_observed\thet_expected\tf_site\thwe_p\thwe_midp\thwe_p_deficit\thwe_p_excess\n")
+	b.WriteString("chrom\tpos\tref\talt\tn_hom_ref\tn_het\tn_hom_alt\tn_missing\tn_haploid\talt_freq\tmaf\tcall_rate\thet_observed\thet_expected\tf_site\thwe_p\thwe_midp\thwe_p_fewer_het\thwe_p_more_het\n")
 	for i := 0; i < n; i++ {
 		f := "NA"
 		if i%7 != 0 {

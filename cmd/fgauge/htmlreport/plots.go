@@ -60,7 +60,10 @@ func newPlot(title, x, y string) *plot.Plot {
 	p.Y.Label.Text = y
 	p.Title.TextStyle.Color = colInk
 	p.Title.TextStyle.Font.Size = fontTitle
-	p.BackgroundColor = color.Transparent
+	// No background rectangle at all (the page shows through): the SVG
+	// canvas writes a fully transparent colour as an invalid CSS colour
+	// (its alpha-divided channels overflow), so nil, not Transparent.
+	p.BackgroundColor = nil
 	for _, a := range []*plot.Axis{&p.X, &p.Y} {
 		a.Color = colInk
 		a.Label.TextStyle.Color = colInk

@@ -221,7 +221,11 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 	if d.info.WallSeconds > 0 {
 		v.WallSeconds = d.info.WallSeconds
 	}
-	v.Command = shellJoin(d.info.CommandLine)
+	if cl := d.info.CommandLine; len(cl) > 0 {
+		// run.json keeps the program path as started (under go run a
+		// temporary build); the reader is shown the command to type.
+		v.Command = shellJoin(append([]string{"fgauge"}, cl[1:]...))
+	}
 	v.Unknown = c.unknown
 	builders := []struct {
 		dst   **figure

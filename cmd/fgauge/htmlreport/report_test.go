@@ -138,6 +138,9 @@ func TestHeadlineMatchesTables(t *testing.T) {
 			if !strings.Contains(html.UnescapeString(string(b)), `>fgauge scan 'herds it'\''s.vcf.gz' -o out --populations farms.tsv</pre>`) {
 				t.Errorf("command line to reproduce missing or not shell-quoted")
 			}
+			if strings.Contains(string(b), "go-build") {
+				t.Errorf("the report shows the temporary build path of go run")
+			}
 			for _, k := range []string{`data-skip="multiallelic">90<`, `data-skip="not_snp">40<`} {
 				if !strings.Contains(string(b), k) {
 					t.Errorf("skipped reason %s missing", k)

@@ -69,8 +69,10 @@ type indexEntry struct {
 var basicCols = []struct{ col, label string }{
 	{"sites_called", "sites called"}, {"call_rate", "call rate"}, {"het_rate", "heterozygous share of calls"},
 	{"n_hom_ref", "homozygous reference"}, {"n_het", "heterozygous"}, {"n_hom_alt", "homozygous alternative"},
-	{"n_missing", "missing"}, {"n_haploid", "haploid calls"}, {"hom_observed", "homozygous sites observed"},
-	{"hom_expected", "homozygous sites expected"}, {"sites_informative", "informative sites"},
+	{"n_missing", "missing"}, {"n_haploid", "haploid calls"},
+	{"polymorphic_sites_called", "polymorphic sites called (behind the F estimates)"},
+	{"homozygous_share", "homozygous share at those sites"},
+	{"homozygous_share_under_hwe", "homozygous share expected under Hardy-Weinberg"},
 	{"n_runs", "runs of homozygosity"}, {"roh_total_bp", "total length of runs (bp)"},
 }
 

@@ -145,9 +145,9 @@ func corpus(bcfPath string) ([]file, error) {
 		header+rec("1", 1000, "A", "G", "0/0/1", "0/1", "1/1")+rec("1", 2000, "C", "T", "0/1", "0/1", "0/0"))
 	text("crlf.vcf", "Windows CRLF line endings throughout (accepted: the CR is dropped)",
 		strings.ReplaceAll(good, "\n", "\r\n"))
-	text("many_alleles.vcf", "a record with 5 ALT alleles (refused with --max-alleles 3)",
+	text("many_alleles.vcf", "a record with 5 ALT alleles (refused with --guard-alleles 3)",
 		header+rec("1", 1000, "A", "C,G,T,AC,AG", "0/0", "0/1", "1/5")+rec("1", 2000, "C", "T", "0/1", "0/1", "0/0"))
-	text("long_line.vcf", "line 7 is over 6,000 bytes long (refused with --max-line-bytes 4096)",
+	text("long_line.vcf", "line 7 is over 6,000 bytes long (refused with --guard-line-bytes 4096)",
 		header+rec("1", 1000, "A", "G", "0/0", "0/1", "1/1")+
 			strings.Replace(rec("1", 2000, "C", "T", "0/1", "0/1", "0/0"), "PASS\t.", "PASS\tNOTE="+strings.Repeat("x", 6000), 1))
 	rng := rand.New(rand.NewSource(7))
@@ -246,7 +246,7 @@ func corpus(bcfPath string) ([]file, error) {
 		"goat_a\tnorth_farm\ngoat_b\tnorth_farm\ngoat_c\tsouth_farm\textra\n")
 	text("pedigree_loop.tsv", "pedigree where goat_a is its own grandparent (--pedigree)",
 		"id\tsire\tdam\ngoat_a\tgoat_b\t0\ngoat_b\tgoat_c\t0\ngoat_c\tgoat_a\t0\n")
-	text("regions_bad.txt", "regions file with start after end on line 2 (--regions-file)", "1\t100\t200\n1\t500\t300\n")
+	text("regions_bad.txt", "region list with start after end on line 2 (--region @FILE)", "1:100-200\n1:500-300\n")
 	text("genetic_map_bad.txt", "genetic map with a non-numeric cM on line 2 (--recombination-map)", "1 1000 0.0\n1 5000 abc\n")
 	text("freqs_bad.tsv", "allele-frequency file with alt_freq 1.5 on line 1 (--freqs)", "1\t1000\tA\tG\t1.5\n")
 	text("samples_list.txt", "sample list naming goat_z, absent from the VCF (--samples)", "goat_a\ngoat_z\n")

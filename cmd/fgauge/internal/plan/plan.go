@@ -44,10 +44,12 @@ type planPiece struct {
 
 func (p planPiece) region() string {
 	switch {
-	case p.start <= 1 && p.end == 0:
+	case p.start <= 1 && p.end == 0 && !strings.Contains(p.chrom, ":"):
 		return p.chrom
 	case p.end == 0:
-		return fmt.Sprintf("%s:%d-", p.chrom, p.start)
+		// "chrom:1-" for a whole contig whose name holds ':', which
+		// ParseRegion would otherwise split at its last ':'.
+		return fmt.Sprintf("%s:%d-", p.chrom, max(p.start, 1))
 	}
 	return fmt.Sprintf("%s:%d-%d", p.chrom, p.start, p.end)
 }
@@ -194,7 +196,7 @@ func planScanArgs(args []string) ([]string, error) {
 		}
 		name, val, hasVal := strings.Cut(strings.TrimLeft(a, "-"), "=")
 		switch {
-		case name == "o" || name == "out" || name == "region" || name == "regions-file" ||
+		case name == "o" || name == "out" || name == "region" ||
 			name == "state-out" || name == "skip-if-valid-state" || name == "report":
 			return nil, usagef("plan: --%s cannot be given to the shards' scans (the plan sets it, or it needs a whole run)", name)
 		case !shard.ScanFlagsFiles[name]:
@@ -442,9 +444,9 @@ var scriptTemplates = template.Must(template.New("").Funcs(template.FuncMap{
 
 // scriptShard is one shard as the scripts name it.
 type scriptShard struct {
-	Number      int
-	Regions     []string // --region values
-	RegionsFile string   // name under PLANDIR/regions/ when the shard has too many regions
+	Number     int
+	Regions    []string // --region values
+	RegionList string   // region list under PLANDIR/regions/ (--region @FILE) when the shard has too many regions
 }
 
 // scriptData is what the script templates read.
@@ -479,11 +481,11 @@ func (p *planScripts) write() error {
 			strconv.FormatFloat(cpu, 'g', 3, 64), mem)
 		ss := scriptShard{Number: i + 1, Regions: regs}
 		if len(regs) > MaxRegionArgs {
-			// Many whole contigs (unplaced scaffolds): a regions file
+			// Many whole contigs (unplaced scaffolds): a region list
 			// keeps the command line short.
-			ss.RegionsFile = fmt.Sprintf("%0*d.txt", width, i+1)
+			ss.RegionList = fmt.Sprintf("%0*d.txt", width, i+1)
 			ss.Regions = nil
-			regionFiles[ss.RegionsFile] = strings.Join(regs, "\n") + "\n"
+			regionFiles[ss.RegionList] = strings.Join(regs, "\n") + "\n"
 		}
 		d.Shards = append(d.Shards, ss)
 	}

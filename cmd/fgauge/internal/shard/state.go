@@ -252,9 +252,9 @@ func RelTo(statePath, target string) string {
 // scanFlagsIgnored are scan options that do not change results, and
 // regions, which the state records apart.
 var scanFlagsIgnored = map[string]bool{
-	"o": true, "out": true, "force": true, "threads": true, "region": true, "regions-file": true,
+	"o": true, "out": true, "force": true, "threads": true, "region": true,
 	"report": true, "no-progress": true, "cpu-profile": true, "state-out": true, "skip-if-valid-state": true,
-	"max-line-bytes": true, "max-samples": true, "max-alleles": true, "max-block-bytes": true,
+	"guard-line-bytes": true, "guard-samples": true, "guard-alleles": true, "guard-block-bytes": true,
 }
 
 // ScanFlagsFiles are scan options naming files whose content matters.
