@@ -152,12 +152,17 @@ func WriteVCFBGZF(path string, r *Result) (err error) {
 }
 
 // WriteSamplesTruth writes one line per sample: sample replicate design
-// class f_pedigree f_realized autozygous_bp n_segments.
+// class f_pedigree f_realized autozygous_bp n_segments, followed with ages
+// by the truth_samples.tsv columns of TruthColumns.
 func WriteSamplesTruth(w io.Writer, r *Result) error {
 	bw := bufio.NewWriter(w)
-	bw.WriteString("sample\treplicate\tdesign\tclass\tf_pedigree\tf_realized\tautozygous_bp\tn_segments\n")
+	head := []byte("sample\treplicate\tdesign\tclass\tf_pedigree\tf_realized\tautozygous_bp\tn_segments")
+	if r.Ages != nil {
+		head = appendAgeHeader(head)
+	}
+	bw.Write(append(head, '\n'))
 	var b []byte
-	for _, s := range r.Samples {
+	for i, s := range r.Samples {
 		b = append(b[:0], s.ID...)
 		b = append(b, '\t')
 		b = strconv.AppendInt(b, int64(s.Replicate), 10)
@@ -173,6 +178,9 @@ func WriteSamplesTruth(w io.Writer, r *Result) error {
 		b = strconv.AppendInt(b, s.AutozygousBP, 10)
 		b = append(b, '\t')
 		b = strconv.AppendInt(b, int64(s.NSegments), 10)
+		if r.Ages != nil {
+			b = r.appendAgeColumns(b, i)
+		}
 		b = append(b, '\n')
 		bw.Write(b)
 	}
@@ -181,7 +189,12 @@ func WriteSamplesTruth(w io.Writer, r *Result) error {
 
 // WriteSegmentsTruth writes every autozygous segment: sample chrom start
 // end length_bp start_cm end_cm n_sites (start and end 1-based inclusive).
+// With ages it writes Result.AgedSegments instead, with the
+// truth_segments.tsv columns of TruthColumns appended.
 func WriteSegmentsTruth(w io.Writer, r *Result) error {
+	if r.Ages != nil {
+		return writeAgedSegments(w, r)
+	}
 	bw := bufio.NewWriter(w)
 	bw.WriteString("sample\tchrom\tstart\tend\tlength_bp\tstart_cm\tend_cm\tn_sites\n")
 	var b []byte
