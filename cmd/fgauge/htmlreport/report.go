@@ -110,7 +110,7 @@ type sampleRowView struct {
 }
 
 type figures struct {
-	Estimators, Classes, RunLengths, Painting, QQ, FSite, PopFIS, FST, Quality *figure
+	Estimators, Classes, Ages, RunLengths, Painting, QQ, FSite, PopFIS, FST, Quality *figure
 }
 
 type strTable struct {
@@ -172,6 +172,7 @@ type reportView struct {
 	SampleTableNote string
 	PageDir         bool
 	Unknown         []string
+	AgeMeans        []ageMean // cohort mean per age band; nil without age classes
 }
 
 // Write reads the scan output folder outDir and writes outDir/report.html
@@ -227,12 +228,14 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 		v.Command = shellJoin(append([]string{"fgauge"}, cl[1:]...))
 	}
 	v.Unknown = c.unknown
+	v.AgeMeans = c.ageMeans()
 	builders := []struct {
 		dst   **figure
 		build func() (figure, error)
 	}{
 		{&v.Fig.Estimators, c.figEstimators},
 		{&v.Fig.Classes, c.figClasses},
+		{&v.Fig.Ages, c.figAges},
 		{&v.Fig.RunLengths, c.figRunLengths},
 		{&v.Fig.Painting, c.figPainting},
 		{&v.Fig.QQ, c.figQQ},
