@@ -62,6 +62,7 @@ type ageSample struct {
 	bRun  int
 	bt    [maxAgeStates]float64
 	first bool // first round: accumulate inSpan
+	whole bool // fitted on the whole chromosome (its windows covered AgeWholeShare or more)
 }
 
 // ageRunRef is one run of the sample: its positions and the sums over its
@@ -100,6 +101,9 @@ type ageChrom struct {
 	tab    ageTable
 	prior  float64
 	whole  bool // one age window over the whole chromosome
+	// wholeShare: a sample whose windows cover at least this share of
+	// the chromosome is fitted on the whole chromosome (0: never).
+	wholeShare float64
 }
 
 type ageWinInfo struct {
@@ -180,8 +184,29 @@ func (a *ageChrom) setup(perSample [][]Run, marginCM float64, whole bool) {
 				sm.iv = append(sm.iv, [2]float64{lo, hi})
 			}
 		}
+		if !whole && len(sm.iv) > 0 && a.wholeShare > 0 && a.coveredShare(sm.iv) >= a.wholeShare {
+			sm.iv = [][2]float64{{math.Inf(-1), math.Inf(1)}}
+			sm.whole = true
+		}
 		sm.active = len(sm.iv) > 0
 	}
+}
+
+// coveredShare is the share of the chromosome's genetic length (first to
+// last site) inside the age windows iv.
+func (a *ageChrom) coveredShare(iv [][2]float64) float64 {
+	if len(a.info) == 0 {
+		return 0
+	}
+	lo, hi := a.info[0].firstCM, a.info[len(a.info)-1].lastCM
+	if !(hi > lo) {
+		return 1
+	}
+	in := 0.0
+	for _, x := range iv {
+		in += max(min(x[1], hi)-max(x[0], lo), 0)
+	}
+	return in / (hi - lo)
 }
 
 // touches tells whether sample s's age windows reach window k.
@@ -474,7 +499,7 @@ func (a *ageChrom) endRound(sm *ageSample, it int) bool {
 		return true
 	}
 	prior := a.prior
-	if a.all > 0 && !a.whole {
+	if a.all > 0 && !a.whole && !sm.whole {
 		prior *= sm.inSpan / a.all
 	}
 	var next [maxAgeStates]float64
@@ -532,7 +557,7 @@ func (a *ageChrom) classBP(sm *ageSample, dst []int64) {
 	if len(sm.iv) == 0 {
 		sums = [maxAgeStates]float64{}
 	}
-	if !a.whole {
+	if !a.whole && !sm.whole {
 		sums[m-1] += max(a.all-sm.inSpan, 0)
 	}
 	for l := 0; l < m; l++ {
@@ -571,8 +596,9 @@ func (r *chromRun) ageFit() error {
 	a := r.age
 	ns := g.ns
 	cfg := c.cfg.Ages
-	a.setup(r.perSample, c.cfg.AgeMarginCM, c.cfg.AgeWholeChromosome)
 	a.whole = c.cfg.AgeWholeChromosome
+	a.wholeShare = c.cfg.AgeWholeShare
+	a.setup(r.perSample, c.cfg.AgeMarginCM, c.cfg.AgeWholeChromosome)
 	nw := len(r.wins)
 	touched := make([]bool, nw)
 	for it := 0; it < max(cfg.Iterations, 1); it++ {

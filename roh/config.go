@@ -95,6 +95,13 @@ type Config struct {
 	// 6 to 20 EM rounds of a 9-state chain), and it sees autozygosity the
 	// two-state detector missed.
 	AgeWholeChromosome bool
+	// AgeWholeShare: a sample whose windows cover at least this share of
+	// a chromosome's genetic length is fitted on that whole chromosome
+	// (its cost is then at most 1/AgeWholeShare times the windowed one).
+	// Outside windows everything counts as non-autozygous, which
+	// underestimates heavily inbred animals; this repairs most of it. 0
+	// turns it off.
+	AgeWholeShare float64
 
 	// TempDir is the folder of those temporary files; "" means the
 	// system's (os.TempDir). Files are removed from the folder as soon as
@@ -148,6 +155,7 @@ func DefaultConfig() *Config {
 		MaxGapKB:        1000,
 		Ages:            DefaultAgeConfig(),
 		AgeMarginCM:     1,
+		AgeWholeShare:   0.25,
 		Rules: Rules{
 			MaxHet:        1,
 			MaxMissing:    2,
@@ -319,6 +327,9 @@ func (c *Config) Validate() error {
 		c.Ages = &a
 		if !(c.AgeMarginCM >= 0) || math.IsInf(c.AgeMarginCM, 0) {
 			return bad("age window margin %g cM: want a number >= 0", c.AgeMarginCM)
+		}
+		if !(c.AgeWholeShare >= 0 && c.AgeWholeShare <= 1) {
+			return bad("age whole-chromosome share %g: want a value in [0, 1]", c.AgeWholeShare)
 		}
 	}
 	if c.MemoryBudget < 0 {
