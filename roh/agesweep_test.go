@@ -38,6 +38,7 @@ func TestAgeSweepsMatchWorker(t *testing.T) {
 		cfg.MemoryBudget = tc.budget
 		cfg.TempDir = t.TempDir()
 		cfg.AgeWholeChromosome = tc.whole
+		cfg.AgeWholeShare = 0 // compare windows with FitWindows
 		res, _ := runCollector(t, cfg, tc.ns, contigs, bs, fs, false)
 		vc := *cfg
 		if err := vc.Validate(); err != nil {

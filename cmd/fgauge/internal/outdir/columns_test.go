@@ -31,7 +31,7 @@ func TestColumnsDeclareHeaders(t *testing.T) {
 	}
 	tot := stats.NewTotals(&stats.Config{Samples: []string{"a"}, PopOf: []int{0}, PopNames: []string{"herd"}})
 	h, _ := tot.SampleTable()
-	rr := &roh.Result{Classes: roh.DefaultConfig().Classes, Samples: []string{"a"}}
+	rr := &roh.Result{Classes: roh.DefaultConfig().Classes, Samples: []string{"a"}, AgeRates: roh.DefaultAgeConfig().Rates}
 	h2, _ := rr.SampleTable()
 	h = append(append(h, h2...), PedigreeColumn.Name)
 	if got, want := strings.Join(byFile["samples.tsv"], "\t"), strings.Join(h, "\t"); got != want {
