@@ -84,7 +84,8 @@ type ageTable struct {
 type ageScratch struct {
 	alpha []float64 // m per window site
 	sd    []float64 // draw term per window site
-	flag  []uint8   // per window site: 1 in an age window, 2 also its first site
+	flag  []uint8   // per window site: 1 in an age window, 3 its first site
+	em    []float64 // emission pairs per window site (kept by the recomputed forward for backward)
 }
 
 // ageChrom is the age fit of one chromosome.
@@ -289,6 +290,7 @@ func (a *ageChrom) forwardWindow(g geometry, w *window, s int, sm *ageSample, sc
 		sc.alpha = grow(sc.alpha, m*n)
 		sc.sd = grow(sc.sd, n)
 		sc.flag = grow(sc.flag, n)
+		sc.em = grow(sc.em, 2*n)
 	} else {
 		copy(ck[:m], sm.fp[:m])
 		ck[m] = 0
@@ -301,6 +303,8 @@ func (a *ageChrom) forwardWindow(g geometry, w *window, s int, sm *ageSample, sc
 	rho := sm.rho[:m:m]
 	p := sm.fp[:m:m]
 	vu := a.tab.vu
+	rows := a.tab.rows
+	gw := w.geno[s*g.ww : (s+1)*g.ww]
 	for lt := 0; lt < w.n; lt++ {
 		c := w.cm[lt]
 		for sm.fIv < len(sm.iv) && sm.iv[sm.fIv][1] < c {
@@ -315,7 +319,17 @@ func (a *ageChrom) forwardWindow(g geometry, w *window, s int, sm *ageSample, sc
 			continue
 		}
 		i := w.t0 + lt
-		eA, eN := a.emPair(g, w, s, lt)
+		var eA, eN float64
+		if w.nPL == 0 {
+			c := uint8(gw[lt>>5]>>(uint(lt&31)*2)) & 3
+			row := rows[8*lt : 8*lt+8 : 8*lt+8]
+			eA, eN = float64(row[c]), float64(row[4+c])
+		} else {
+			eA, eN = a.emPair(g, w, s, lt)
+		}
+		if keep {
+			sc.em[2*lt], sc.em[2*lt+1] = eA, eN
+		}
 		if !sm.fIn {
 			sm.fIn, sm.fLo = true, i
 			for l := range p {
@@ -332,18 +346,31 @@ func (a *ageChrom) forwardWindow(g geometry, w *window, s int, sm *ageSample, sc
 			}
 			continue
 		}
-		row := vu[2*m*lt : 2*m*(lt+1) : 2*m*(lt+1)]
-		stay, leave := row[:m:m], row[m:2*m:2*m]
-		draw := 0.0
-		for k, v := range p {
-			draw += leave[k] * v
-		}
-		for l := range p {
-			e := eA
-			if l == last {
-				e = eN
+		var draw float64
+		if m == m9 {
+			// the default grid: constant bounds, same operations
+			row := (*[2 * m9]float64)(vu[2*m9*lt:])
+			p9, r9 := (*[m9]float64)(p), (*[m9]float64)(rho)
+			for k := 0; k < m9; k++ {
+				draw += row[m9+k] * p9[k]
 			}
-			p[l] = e * (stay[l]*p[l] + rho[l]*draw)
+			for l := 0; l < m9-1; l++ {
+				p9[l] = eA * (row[l]*p9[l] + r9[l]*draw)
+			}
+			p9[m9-1] = eN * (row[m9-1]*p9[m9-1] + r9[m9-1]*draw)
+		} else {
+			row := vu[2*m*lt : 2*m*(lt+1) : 2*m*(lt+1)]
+			stay, leave := row[:m:m], row[m:2*m:2*m]
+			for k, v := range p {
+				draw += leave[k] * v
+			}
+			for l := range p {
+				e := eA
+				if l == last {
+					e = eN
+				}
+				p[l] = e * (stay[l]*p[l] + rho[l]*draw)
+			}
 		}
 		if keep {
 			copy(sc.alpha[m*lt:m*lt+m], p)
@@ -417,35 +444,71 @@ func (a *ageChrom) backwardWindow(g geometry, w *window, s int, sm *ageSample, s
 			sm.bIn = false
 			continue
 		}
-		row := vu[2*m*lt : 2*m*(lt+1) : 2*m*(lt+1)]
-		stay, leave := row[:m:m], row[m:2*m:2*m]
 		sd := sc.sd[lt]
-		eA, eN := a.emPair(g, w, s, lt)
-		var wsum, z float64
-		for l := range bt {
-			e := eA
-			if l == last {
-				e = eN
+		eA, eN := sc.em[2*lt], sc.em[2*lt+1]
+		if m == m9 {
+			// the default grid: constant bounds, same operations
+			row := (*[2 * m9]float64)(vu[2*m9*lt:])
+			b9, c9, r9, rr9 := (*[m9]float64)(bt), (*[m9]float64)(cur), (*[m9]float64)(rho), (*[m9]float64)(rr[:m9])
+			su, co := (*[m9]float64)(sm.sums[:m9]), (*[m9]float64)(sm.counts[:m9])
+			var wsum, z float64
+			for l := 0; l < m9; l++ {
+				e := eA
+				if l == m9-1 {
+					e = eN
+				}
+				gg := c9[l] * b9[l]
+				bl := e * b9[l]
+				pb := r9[l] * bl
+				wsum += pb
+				rr9[l] = pb * sd
+				z += gg
+				c9[l] = gg
+				b9[l] = row[l] * bl
 			}
-			gg := cur[l] * bt[l]
-			bl := e * bt[l]
-			pb := rho[l] * bl
-			wsum += pb
-			rr[l] = pb * sd
-			z += gg
-			cur[l] = gg
-			bt[l] = stay[l] * bl
-		}
-		inv := 1 / z
-		sp := span[lt] * inv
-		for l := range bt {
-			gg := cur[l]
-			sm.counts[l] += rr[l] * inv
-			sm.sums[l] += gg * sp
-			if run != nil && l < last {
-				run.sum[l] += gg * inv
+			inv := 1 / z
+			sp := span[lt] * inv
+			for l := 0; l < m9; l++ {
+				gg := c9[l]
+				co[l] += rr9[l] * inv
+				su[l] += gg * sp
+				b9[l] += row[m9+l] * wsum
 			}
-			bt[l] += leave[l] * wsum
+			if run != nil {
+				rs := (*[m9]float64)(run.sum[:m9])
+				for l := 0; l < m9-1; l++ {
+					rs[l] += c9[l] * inv
+				}
+			}
+		} else {
+			row := vu[2*m*lt : 2*m*(lt+1) : 2*m*(lt+1)]
+			stay, leave := row[:m:m], row[m:2*m:2*m]
+			var wsum, z float64
+			for l := range bt {
+				e := eA
+				if l == last {
+					e = eN
+				}
+				gg := cur[l] * bt[l]
+				bl := e * bt[l]
+				pb := rho[l] * bl
+				wsum += pb
+				rr[l] = pb * sd
+				z += gg
+				cur[l] = gg
+				bt[l] = stay[l] * bl
+			}
+			inv := 1 / z
+			sp := span[lt] * inv
+			for l := range bt {
+				gg := cur[l]
+				sm.counts[l] += rr[l] * inv
+				sm.sums[l] += gg * sp
+				if run != nil && l < last {
+					run.sum[l] += gg * inv
+				}
+				bt[l] += leave[l] * wsum
+			}
 		}
 		if (sm.bHi-i)%rescaleEvery == 0 {
 			zz := 0.0

@@ -32,6 +32,7 @@ type rohFlags struct {
 	noAges     bool
 	ageMargin  float64
 	ageWhole   bool
+	ageShare   float64
 }
 
 // rohHelp is appended to the scan help.
@@ -114,6 +115,8 @@ func addROHFlags(fs *flag.FlagSet) *rohFlags {
 		"age classes: cM added on both sides of each run to make the windows the model is fitted in")
 	fs.BoolVar(&f.ageWhole, "age-whole-chromosome", false,
 		"age classes: fit on whole chromosomes instead of windows around runs (slower; also sees autozygosity the detector missed)")
+	fs.Float64Var(&f.ageShare, "age-whole-share", d.AgeWholeShare,
+		"age classes: a sample whose windows cover at least this share of a chromosome is fitted on the whole chromosome (0: never); repairs the underestimate of heavily inbred animals at up to 1/share times the cost")
 	return f
 }
 
@@ -139,6 +142,7 @@ func (f *rohFlags) config() (*roh.Config, error) {
 	}
 	c.AgeMarginCM = f.ageMargin
 	c.AgeWholeChromosome = f.ageWhole
+	c.AgeWholeShare = f.ageShare
 	c.Classes = nil
 	for _, s := range strings.Split(f.classes, ",") {
 		if s = strings.TrimSpace(s); s == "" {
