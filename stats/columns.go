@@ -58,6 +58,7 @@ var columns = func() []ColumnDoc {
 		{s, "hwe_midp", "mid-p: hwe_p - P(observed)/2 (Graffelman & Moreno 2013, Stat Appl Genet Mol Biol 12:433); NA with --hwe-method chisq"},
 		{s, "hwe_p_fewer_het", "one-sided p against fewer heterozygotes than Hardy-Weinberg expects: P(n_het <= observed) given the allele counts; chisq method: normal approximation P(Z >= z), z = sign(f)*sqrt(X^2)"},
 		{s, "hwe_p_more_het", "one-sided p against more heterozygotes than Hardy-Weinberg expects: P(n_het >= observed) given the allele counts; chisq method: normal approximation P(Z <= z)"},
+		{s, "alt_freq_lik", "alternate-allele frequency by EM from the genotype likelihoods (PL/GL) of every sample, Hardy-Weinberg prior, tolerance 1e-12 (Kim et al. 2011, BMC Bioinformatics 12:231; Li 2011, Bioinformatics 27:2987); NA when the record has no likelihoods or --no-likelihood-f. When present, het_expected and f_site use it (n = samples with informative likelihoods) instead of alt_freq; the hard-call counts, Ho and the HWE tests do not change"},
 
 		{ps, "chrom", "chromosome name"},
 		{ps, "pos", "1-based position"},
@@ -86,6 +87,10 @@ var columns = func() []ColumnDoc {
 		{sm, "polymorphic_sites_called", "diagnostic: sites polymorphic in the frequencies used (0 < p < 1) where the sample has a diploid call; every F column above averages or sums over these sites"},
 		{sm, "homozygous_share", "diagnostic: share of the sample's calls at polymorphic_sites_called that are homozygous; NA without such sites"},
 		{sm, "homozygous_share_under_hwe", "diagnostic: the homozygous share Hardy-Weinberg predicts at the same sites, mean of 1 - 2pq*2n/(2n-1) with n the called individuals behind p (factor 1 for --freqs/--freqs-from-info); f_hom is how far homozygous_share exceeds it, as a fraction of the distance from it to 1; NA without such sites"},
+		{sm, "f_lik", "maximum-likelihood F from the genotype likelihoods (PL/GL), the EM of Vieira, Fumagalli, Albrechtsen & Nielsen 2013 (Genome Res 23:1852), kept in [0,1], at site frequencies chosen by --f-lik-freqs (default: the likelihood EM frequency, alt_freq_lik, per population with --populations; --freqs/--freqs-from-info frequencies when given); not biased by low depth as the hard-call estimators are; NA without likelihoods"},
+		{sm, "f_lik_se", "asymptotic standard error of f_lik, 1/sqrt of the observed information; NA when f_lik is 0 or 1 or NA"},
+		{sm, "depth_mean", "mean read depth per call: from FORMAT DP (missing DP left out) when the input has it, else implied by the likelihoods (the PL gap from the homozygous call to the heterozygote / 10 log10 2, a proxy that reads a few percent low); NA without either"},
+		{sm, "depth_source", "where depth_mean comes from: dp (FORMAT DP) or pl (likelihoods); NA without either"},
 		{sm, "flags", "comma-separated warnings, '.' when none: no_calls (no diploid call), low_call_rate (call_rate below --min-call-rate), het_rate_outlier (het_rate more than 3 SD from the cohort mean; possible contamination, sample mix-up or a different population), estimators_disagree (f_hom > 0.1 while f_uniting_gametes < 0 or the reverse: look at frequencies and data quality before reading either)"},
 
 		{po, "population", "population name; the last row, all_pooled, is every sample assigned to a population"},

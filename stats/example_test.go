@@ -45,10 +45,10 @@ func ExampleWorker() {
 	fmt.Print(sites.String())
 	fmt.Println(freqs)
 	// Output:
-	// chrom	pos	ref	alt	n_hom_ref	n_het	n_hom_alt	n_missing	n_haploid	alt_freq	maf	call_rate	het_observed	het_expected	f_site	hwe_p	hwe_midp	hwe_p_fewer_het	hwe_p_more_het
-	// chr1	100	A	G	1	1	1	0	0	0.5	0.5	1	0.3333333333333333	0.6	0.4444444444444444	1	0.7	0.6000000000000001	1
-	// chr1	200	A	G	2	1	0	0	0	0.16666666666666666	0.16666666666666666	1	0.3333333333333333	0.3333333333333333	0	1	0.5	1	1
-	// chr1	300	A	G	0	1	1	1	0	0.75	0.25	0.6666666666666666	0.5	0.5	0	1	0.5	1	1
+	// chrom	pos	ref	alt	n_hom_ref	n_het	n_hom_alt	n_missing	n_haploid	alt_freq	maf	call_rate	het_observed	het_expected	f_site	hwe_p	hwe_midp	hwe_p_fewer_het	hwe_p_more_het	alt_freq_lik
+	// chr1	100	A	G	1	1	1	0	0	0.5	0.5	1	0.3333333333333333	0.6	0.4444444444444444	1	0.7	0.6000000000000001	1	NA
+	// chr1	200	A	G	2	1	0	0	0	0.16666666666666666	0.16666666666666666	1	0.3333333333333333	0.3333333333333333	0	1	0.5	1	1	NA
+	// chr1	300	A	G	0	1	1	1	0	0.75	0.25	0.6666666666666666	0.5	0.5	0	1	0.5	1	1	NA
 	// [0.5 0.16666666666666666 0.75]
 }
 

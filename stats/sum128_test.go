@@ -124,3 +124,53 @@ func BenchmarkSum128Add(b *testing.B) {
 	}
 	_ = s
 }
+
+// TestFixedBits checks the integer conversion of fixed against fixedFloat
+// (RoundToEven(Ldexp(v, 64)) in float64, the earlier definition) on
+// values of every binary exponent that matters, rounding ties, both signs,
+// zeros, subnormals, infinities and NaN.
+func TestFixedBits(t *testing.T) {
+	rng := rand.New(rand.NewPCG(11, 12))
+	vs := []float64{0, math.Copysign(0, -1), math.SmallestNonzeroFloat64, -math.SmallestNonzeroFloat64,
+		math.Inf(1), math.Inf(-1), math.NaN(), math.MaxFloat64, -math.MaxFloat64, 1, -1, 0.5, 0.25, 0.75,
+		math.Ldexp(1, 62), math.Ldexp(1, 63), math.Ldexp(1, 126), math.Ldexp(1, 127), -math.Ldexp(1, 126)}
+	for e := -1100; e <= 140; e++ {
+		for k := 0; k < 40; k++ {
+			m := 1 + rng.Float64()
+			if k < 4 {
+				// ties and near ties at the rounding position
+				m = 1 + float64(k)*0.5
+			}
+			v := math.Ldexp(m, e)
+			vs = append(vs, v, -v, math.Nextafter(v, 0), math.Nextafter(v, math.Inf(1)))
+		}
+		// exact half-grid points: (2j+1) * 2^-65
+		vs = append(vs, math.Ldexp(float64(2*rng.IntN(1<<20)+1), -fracBits-1), math.Ldexp(float64(2*rng.IntN(1<<20)+1), e))
+	}
+	for _, v := range vs {
+		if got, want := fixed(v), fixedFloat(v); got != want {
+			t.Fatalf("fixed(%v) = %+v, fixedFloat gives %+v", v, got, want)
+		}
+	}
+}
+
+// BenchmarkFixed converts values typical of the per-site tables.
+func BenchmarkFixed(b *testing.B) {
+	vs := []float64{0.125, -0.97, 3.5, 0.0021, 417.25, -1.5e-7, 0.33333333333333331}
+	b.Run("bits", func(b *testing.B) {
+		var s Sum128
+		for b.Loop() {
+			for _, v := range vs {
+				s.AddSum(fixed(v))
+			}
+		}
+	})
+	b.Run("float", func(b *testing.B) {
+		var s Sum128
+		for b.Loop() {
+			for _, v := range vs {
+				s.AddSum(fixedFloat(v))
+			}
+		}
+	})
+}

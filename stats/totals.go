@@ -80,6 +80,29 @@ const (
 var lambdaDivisor = distuv.ChiSquared{K: 1}.Quantile(0.5)
 
 func (h *HWESummary) add(r *HWEResult) {
+	pb, cb := hweBins(r)
+	h.addBinned(r, pb, cb)
+}
+
+// hweBins returns the histogram bins of a test's p-value and chi-square
+// statistic (cb is meaningless when ChiSq is NaN).
+func hweBins(r *HWEResult) (pb, cb int32) {
+	pb = int32(pMaxBin)
+	if p := r.P; p > 0 {
+		pb = int32(math.Min(math.Floor(-math.Log10(p)*pBinsPerUnit), pMaxBin))
+		if pb < 0 {
+			pb = 0
+		}
+	}
+	cb = int32(chiZeroBin)
+	if x := r.ChiSq; x > 0 {
+		cb = int32(math.Max(math.Floor((math.Log10(x)-chiMinLog10)*chiBinsPerDec), 0))
+	}
+	return pb, cb
+}
+
+// addBinned is add with the bins of r already computed by hweBins.
+func (h *HWESummary) addBinned(r *HWEResult, pb, cb int32) {
 	h.Tested++
 	p := r.P
 	if p < 1e-3 {
@@ -91,18 +114,7 @@ func (h *HWESummary) add(r *HWEResult) {
 	if p < 1e-10 {
 		h.Below[2]++
 	}
-	pb := int32(pMaxBin)
-	if p > 0 {
-		pb = int32(math.Min(math.Floor(-math.Log10(p)*pBinsPerUnit), pMaxBin))
-		if pb < 0 {
-			pb = 0
-		}
-	}
 	h.PHist[pb]++
-	cb := int32(chiZeroBin)
-	if x := r.ChiSq; x > 0 {
-		cb = int32(math.Max(math.Floor((math.Log10(x)-chiMinLog10)*chiBinsPerDec), 0))
-	}
 	if !math.IsNaN(r.ChiSq) {
 		h.ChiHist[cb]++
 	}
@@ -144,16 +156,21 @@ type Totals struct {
 	Blocks    map[BlockKey]*BlockAcc
 	HWETally  HWESummary
 	Freq      FreqCounts
+
+	// LikFreqs is Config.LikFreqs; Lik is the genotype-likelihood state
+	// (f_lik summaries, depth), nil when no record carried PL, GL or DP.
+	LikFreqs LikFreqSource
+	Lik      *LikAcc
 }
 
 func newTotals(cfg *Config) *Totals {
 	t := &Totals{
 		Samples: cfg.Samples, PopOf: cfg.PopOf, PopNames: cfg.PopNames,
 		HWEMethod: cfg.HWEMethod, Freqs: cfg.Freqs, JackknifeBlockBP: cfg.JackknifeBlockBP,
-		MinCallRate: cfg.MinCallRate,
-		PerSample:   make([]SampleAcc, len(cfg.Samples)),
-		Blocks:      map[BlockKey]*BlockAcc{},
-		HWETally:    HWESummary{ChiHist: map[int32]int64{}, PHist: map[int32]int64{}},
+		MinCallRate: cfg.MinCallRate, LikFreqs: cfg.LikFreqs,
+		PerSample: make([]SampleAcc, len(cfg.Samples)),
+		Blocks:    map[BlockKey]*BlockAcc{},
+		HWETally:  HWESummary{ChiHist: map[int32]int64{}, PHist: map[int32]int64{}},
 	}
 	if t.HWEMethod == "" {
 		t.HWEMethod = "exact"
@@ -185,7 +202,7 @@ func (t *Totals) Merge(o *Totals) error {
 		return fmt.Errorf("stats: merge: sample lists differ: %w", ErrIncompatible)
 	case !slices.Equal(t.PopOf, o.PopOf) || !slices.Equal(t.PopNames, o.PopNames):
 		return fmt.Errorf("stats: merge: populations differ: %w", ErrIncompatible)
-	case t.HWEMethod != o.HWEMethod || t.Freqs != o.Freqs || t.JackknifeBlockBP != o.JackknifeBlockBP:
+	case t.HWEMethod != o.HWEMethod || t.Freqs != o.Freqs || t.JackknifeBlockBP != o.JackknifeBlockBP || t.LikFreqs != o.LikFreqs:
 		return fmt.Errorf("stats: merge: HWE method, frequency source or jackknife block differ: %w", ErrIncompatible)
 	case len(t.Groups) != len(o.Groups):
 		return fmt.Errorf("stats: merge: population groups differ: %w", ErrIncompatible)
@@ -268,6 +285,16 @@ func (t *Totals) Merge(o *Totals) error {
 	}
 	for i, v := range of.PanelMet {
 		f.PanelMet[i] |= v
+	}
+	switch {
+	case o.Lik == nil:
+	case t.Lik == nil:
+		t.Lik = NewLikAcc(len(o.Lik.FLik))
+		fallthrough
+	default:
+		if err := t.Lik.Merge(o.Lik); err != nil {
+			return fmt.Errorf("stats: merge: %w: %w", err, ErrIncompatible)
+		}
 	}
 	return nil
 }
@@ -463,7 +490,9 @@ func (t *Totals) SampleTable() (header []string, rows [][]string) {
 			itoa(a.Counts[3]), itoa(a.Counts[4]+a.Counts[5]),
 			ftoa(e.callRate), ftoa(e.hetRate),
 			ftoa(e.fHom), ftoa(e.fGRM), ftoa(e.fExcess), ftoa(e.fUniting), ftoa(e.fVanRad),
-			itoa(e.informative), ftoa(e.homShare), ftoa(e.homShareHWE), v.flags[i].String())
+			itoa(e.informative), ftoa(e.homShare), ftoa(e.homShareHWE))
+		row = t.appendLikColumns(row, i)
+		row = append(row, v.flags[i].String())
 		rows = append(rows, row)
 	}
 	return header, rows
@@ -487,4 +516,41 @@ func freqGroups(cfg *Config) ([]int32, []GroupBase) {
 		}
 	}
 	return of, make([]GroupBase, np+1)
+}
+
+// appendLikColumns appends sample i's f_lik, f_lik_se, depth_mean and
+// depth_source (NA without likelihoods or depth).
+func (t *Totals) appendLikColumns(row []string, i int) []string {
+	f := FLik{F: nan, SE: nan}
+	depth, src := nan, DepthNone
+	if t.Lik != nil {
+		f = t.Lik.FLik[i].Estimate()
+		depth, src = t.Lik.Depth[i].Mean()
+	}
+	srcText := numfmt.NA
+	if src != DepthNone {
+		srcText = src.String()
+	}
+	return append(row, ftoa(f.F), ftoa(f.SE), ftoa(depth), srcText)
+}
+
+// FLik returns sample i's f_lik (F NaN without likelihoods).
+func (t *Totals) FLik(i int) FLik {
+	if t.Lik == nil {
+		return FLik{F: nan, SE: nan}
+	}
+	return t.Lik.FLik[i].Estimate()
+}
+
+// CohortDepth returns the cohort's mean depth per call, pooled over
+// samples: from FORMAT DP when any call carried it, else implied by the
+// likelihoods (DepthAcc.Mean); NaN and DepthNone without either.
+func (t *Totals) CohortDepth() (float64, DepthSource) {
+	var all DepthAcc
+	if t.Lik != nil {
+		for i := range t.Lik.Depth {
+			all.Merge(&t.Lik.Depth[i])
+		}
+	}
+	return all.Mean()
 }

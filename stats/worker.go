@@ -88,6 +88,7 @@ type Worker struct {
 	contigName func(id int) string
 	t          *Totals
 	cache      *hweCache
+	sites      *siteCache
 	nPop       int
 	tabOf      []int32 // per sample: index into tabs
 	tabs       []siteTab
@@ -102,6 +103,7 @@ type Worker struct {
 	chromBytes []byte
 	lastBlock  BlockKey
 	block      *BlockAcc
+	lik        likWorker
 }
 
 // NewWorker returns a Worker for cfg; contigName maps vcfscan chromosome
@@ -109,10 +111,12 @@ type Worker struct {
 func NewWorker(cfg *Config, contigName func(id int) string) *Worker {
 	w := &Worker{cfg: cfg, contigName: contigName, t: newTotals(cfg), lastChrom: -1}
 	w.cache = newHWECache(cfg.HWEMethod == "chisq", 1<<14)
+	w.sites = newSiteCache(1 << 13)
 	w.nPop = len(cfg.PopNames)
 	if cfg.PopOf == nil {
 		w.nPop = 0
 	}
+	w.initLik()
 	w.tabOf = w.t.GroupOf
 	nt := len(w.t.Base)
 	w.tabs = make([]siteTab, nt)
@@ -131,8 +135,15 @@ func NewWorker(cfg *Config, contigName func(id int) string) *Worker {
 }
 
 // Totals returns the worker's accumulated state (not a copy: stop calling
-// ProcessBatch before using it).
-func (w *Worker) Totals() *Totals { return w.t }
+// ProcessBatch before using it). Its likelihood state (Lik) is the
+// worker's own unless ShareLikelihoods was called: then the caller puts
+// the shared state in the merged totals.
+func (w *Worker) Totals() *Totals {
+	if w.lik.private {
+		w.t.Lik = w.lik.shared.Acc()
+	}
+	return w.t
+}
 
 // ProcessBatch computes the statistics of every record of b in order. For
 // each record it appends its sites.tsv row to sites and its
@@ -143,7 +154,9 @@ func (w *Worker) Totals() *Totals { return w.t }
 // room for len(b.Records) values.
 func (w *Worker) ProcessBatch(b *vcfscan.Batch, sites, popSites *bytes.Buffer, freqs []float64) {
 	for i := range b.Records {
-		freqs[i] = w.record(&b.Records[i], b.Calls(i), sites, popSites)
+		lf := w.likSite(b, i)
+		freqs[i] = w.record(&b.Records[i], b.Calls(i), lf, sites, popSites)
+		w.likAdd(b, i, freqs[i])
 	}
 }
 
@@ -155,7 +168,7 @@ func (w *Worker) chrom(id int) {
 	}
 }
 
-func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSites *bytes.Buffer) float64 {
+func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, lf SiteFreq, sites, popSites *bytes.Buffer) float64 {
 	t := w.t
 	cfg := w.cfg
 	w.chrom(rec.ChromID)
@@ -187,16 +200,25 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 		cohortP = float64(n1+2*n2) / float64(2*nCalled)
 	}
 
-	// Site statistics and row.
-	ho, he, fsite, hwe := siteStats(n0, n1, n2, w.cache)
-	if hwe.Computed {
-		t.HWETally.add(&hwe)
+	// Site statistics and row (cached by counts, see siteCache). With
+	// likelihoods, He and so f_site are taken at the likelihood frequency
+	// (not a function of the counts, so not cached).
+	si := w.site(n0, n1, n2, cnt[vcfscan.HaploidRef]+cnt[vcfscan.HaploidAlt], len(calls))
+	if si.hwe.Computed {
+		t.HWETally.addBinned(&si.hwe, si.pBin, si.chiBin)
+	}
+	he, fsite, fsiteFixed := si.he, si.fsite, si.fsiteFixed
+	if lf.Samples > 0 {
+		he, fsite = likSiteHet(si.ho, lf)
+		if !math.IsNaN(fsite) {
+			fsiteFixed = fixed(fsite)
+		}
 	}
 	if !math.IsNaN(fsite) {
-		t.HWETally.FSite.Add(fsite)
+		t.HWETally.FSite.AddSum(fsiteFixed)
 		t.HWETally.FSiteN++
 	}
-	w.siteRow(sites, rec, &cnt, len(calls), cohortP, ho, he, fsite, &hwe)
+	w.siteRow(sites, rec, &cnt, si, lf, len(calls), cohortP, he, fsite)
 
 	// Populations: per-population rows and sums, WC components.
 	if w.nPop > 0 {
@@ -218,7 +240,7 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 	}
 	switch cfg.Freqs {
 	case FreqCohort:
-		w.tabs[0].fill(cohortP, nCorr(nCalled), base)
+		w.tabs[0] = *si.cohortTab(cohortP, nCalled, base)
 	case FreqPopulation:
 		for k := 0; k < w.nPop; k++ {
 			c := &w.popCnt[k]
@@ -462,7 +484,7 @@ func (w *Worker) blockFor(pos int64) *BlockAcc {
 	return b
 }
 
-func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64, nSel int, p, ho, he, fsite float64, hwe *HWEResult) {
+func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64, si *siteInfo, lf SiteFreq, nSel int, p, he, fsite float64) {
 	if sites == nil {
 		return
 	}
@@ -481,7 +503,23 @@ func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64
 	haploid := cnt[vcfscan.HaploidRef] + cnt[vcfscan.HaploidAlt]
 	b = append(b, '\t')
 	b = strconv.AppendInt(b, haploid, 10)
-	called := cnt[0] + cnt[1] + cnt[2]
+	if lf.Samples > 0 {
+		b = appendSiteFloats(b, cnt[vcfscan.HomRef]+cnt[vcfscan.Heterozygous]+cnt[vcfscan.HomAlt], haploid, nSel, p, si.ho, he, fsite, &si.hwe)
+	} else {
+		b = append(b, w.sites.rows[si.rowOff:si.rowEnd]...)
+	}
+	b = appendFloat(b, lf.AltFreq)
+	b = append(b, '\n')
+	sites.Write(b)
+	w.scratch = b
+}
+
+// appendSiteFloats appends the float columns of a sites.tsv row, from
+// alt_freq to hwe_p_more_het (alt_freq_lik follows), each after a tab: all are functions of the
+// site's diploid counts (called of them), its haploid calls (call_rate
+// counts them as calls) and the number of selected samples nSel, so
+// siteCache keeps them formatted under that key.
+func appendSiteFloats(b []byte, called, haploid int64, nSel int, p, ho, he, fsite float64, hwe *HWEResult) []byte {
 	b = appendFloat(b, p)
 	maf := nan
 	if !math.IsNaN(p) {
@@ -500,9 +538,7 @@ func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64
 	b = appendFloat(b, hwe.MidP)
 	b = appendFloat(b, hwe.Deficit)
 	b = appendFloat(b, hwe.Excess)
-	b = append(b, '\n')
-	sites.Write(b)
-	w.scratch = b
+	return b
 }
 
 // appendFloat appends a tab and x in shortest round-trip form, or NA.

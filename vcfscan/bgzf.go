@@ -66,6 +66,7 @@ type bgzfJob struct {
 	raw      []byte  // the raw blocks, back to back
 	ends     []int   // end of each block in raw
 	coffs    []int64 // file offset of each block
+	buf      []byte  // backing array of out, which starts bgzfHeadroom bytes in
 	out      []byte
 	lo, hi   int // part of out to deliver (regions trim the first/last block)
 	err      error
@@ -75,13 +76,22 @@ type bgzfJob struct {
 
 func (j *bgzfJob) reset() {
 	j.raw, j.ends, j.coffs = j.raw[:0], j.ends[:0], j.coffs[:0]
-	j.out = j.out[:0]
+	j.out = nil
+	if cap(j.buf) >= bgzfHeadroom+bgzfMaxBlock {
+		j.out = j.buf[bgzfHeadroom:bgzfHeadroom]
+	}
 	j.err, j.terminal, j.lo, j.hi = nil, false, 0, -1
 }
 
 // bgzfJobBlocks is the number of blocks a job carries when reading the
 // whole stream.
 const bgzfJobBlocks = 16
+
+// bgzfHeadroom is the room left in front of a job's inflated bytes, where
+// the chunker puts the end of the previous job's last (partial) line so
+// that the job's buffer becomes a batch's text without a copy (see
+// Reader.chunkLoopDirect).
+const bgzfHeadroom = 128 << 10
 
 // bgzfReader decompresses BGZF blocks on several goroutines and delivers the
 // bytes in order. Memory is bounded by a fixed number of jobs in flight.
@@ -326,19 +336,18 @@ func (z *bgzfReader) readChunks() {
 
 func (z *bgzfReader) inflateLoop() {
 	defer z.wg.Done()
-	var fr io.ReadCloser
-	br := bytes.NewReader(nil)
+	f := new(inflater)
 	for j := range z.work {
-		j.err = z.inflate(j, &fr, br)
+		j.err = z.inflate(j, f)
 		j.done <- struct{}{}
 	}
 }
 
 // inflate decompresses the blocks of j into j.out, checking the CRC32 and
 // ISIZE of each.
-func (z *bgzfReader) inflate(j *bgzfJob, fr *io.ReadCloser, br *bytes.Reader) error {
+func (z *bgzfReader) inflate(j *bgzfJob, f *inflater) error {
 	for k := range j.ends {
-		if err := z.inflateBlock(j, k, fr, br); err != nil {
+		if err := z.inflateBlock(j, k, f); err != nil {
 			return err
 		}
 	}
@@ -351,7 +360,9 @@ func (z *bgzfReader) inflate(j *bgzfJob, fr *io.ReadCloser, br *bytes.Reader) er
 	return nil
 }
 
-func (z *bgzfReader) inflateBlock(j *bgzfJob, k int, fr *io.ReadCloser, br *bytes.Reader) error {
+// inflateBlock decodes block k of j with the whole-block inflater straight
+// to its place at the end of j.out.
+func (z *bgzfReader) inflateBlock(j *bgzfJob, k int, f *inflater) error {
 	raw := j.raw[blockStart(j, k):j.ends[k]]
 	coff := j.coffs[k]
 	xlen := int(binary.LittleEndian.Uint16(raw[10:12]))
@@ -362,36 +373,22 @@ func (z *bgzfReader) inflateBlock(j *bgzfJob, k int, fr *io.ReadCloser, br *byte
 		return z.blockErr(coff, ErrLimit, "block claims %d uncompressed bytes, more than the limit of %d; raise --guard-block-bytes if the file is genuine", isize, z.maxISize)
 	}
 	at := len(j.out)
-	if cap(j.out) < at+isize+1 {
-		no := make([]byte, at, max(at+isize+1, len(j.ends)*bgzfMaxBlock+1))
-		copy(no, j.out)
-		j.out = no
+	if cap(j.out) < at+isize {
+		nb := make([]byte, bgzfHeadroom+max(at+isize, len(j.ends)*bgzfMaxBlock))
+		copy(nb[bgzfHeadroom:], j.out)
+		j.buf = nb
+		j.out = nb[bgzfHeadroom : bgzfHeadroom+at]
 	}
-	out := j.out[at : at+isize+1]
-	br.Reset(cdata)
-	if *fr == nil {
-		*fr = flate.NewReader(br)
-	} else if err := (*fr).(flate.Resetter).Reset(br, nil); err != nil {
-		return z.blockErr(coff, ErrMalformed, "resetting inflater: %v", err)
-	}
-	n := 0
-	for {
-		m, err := (*fr).Read(out[n:])
-		n += m
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return z.blockErr(coff, ErrMalformed, "deflate data is corrupt: %v", err)
-		}
-		if n == len(out) {
-			return z.blockErr(coff, ErrChecksum, "block inflates to more than its ISIZE of %d bytes; the file is damaged", isize)
-		}
-	}
-	if br.Len() != 0 {
-		return z.blockErr(coff, ErrMalformed, "%d bytes of the block follow the end of its deflate data", br.Len())
-	}
-	if n != isize {
+	out := j.out[at : at+isize]
+	n, used, err := f.inflate(out, cdata)
+	switch {
+	case errors.Is(err, errInflateTooLong):
+		return z.blockErr(coff, ErrChecksum, "block inflates to more than its ISIZE of %d bytes; the file is damaged", isize)
+	case err != nil:
+		return z.blockErr(coff, ErrMalformed, "deflate data is corrupt (%v); the file is damaged", err)
+	case used != len(cdata):
+		return z.blockErr(coff, ErrMalformed, "%d bytes of the block follow the end of its deflate data", len(cdata)-used)
+	case n != isize:
 		return z.blockErr(coff, ErrChecksum, "block inflates to %d bytes but its ISIZE says %d; the file is damaged", n, isize)
 	}
 	if got := crc32.ChecksumIEEE(out[:n]); got != wantCRC {
@@ -429,6 +426,42 @@ func (z *bgzfReader) Read(p []byte) (int, error) {
 		}
 		z.cur = j
 	}
+}
+
+// take hands over the inflated bytes of the next job, or what Read left of
+// the current one, without copying: the bytes are buf[lo:hi], and buf has
+// at least bgzfHeadroom bytes before lo that the caller may use. The job
+// keeps spare (which may be nil) for its next blocks. A job of empty
+// blocks gives a nil buf and keeps its own buffer. take and Read must not
+// be mixed after the first take.
+func (z *bgzfReader) take(spare []byte) (buf []byte, lo, hi int, err error) {
+	if z.err != nil {
+		return nil, 0, 0, z.err
+	}
+	j := z.cur
+	z.cur = nil
+	if j == nil {
+		j = <-z.order
+		if j.terminal {
+			z.err = j.err
+			return nil, 0, 0, z.err
+		}
+		<-j.done
+		if j.err != nil {
+			z.err = j.err
+			z.free <- j
+			return nil, 0, 0, z.err
+		}
+	}
+	if j.lo >= j.hi { // only empty blocks
+		z.free <- j
+		return nil, 0, 0, nil
+	}
+	buf = j.buf[:bgzfHeadroom+j.hi]
+	lo, hi = bgzfHeadroom+j.lo, bgzfHeadroom+j.hi
+	j.buf, j.out = spare, nil
+	z.free <- j
+	return buf, lo, hi, nil
 }
 
 // Close stops the pipeline; a Read running or to come ends with an error

@@ -57,6 +57,10 @@ type Reader struct {
 	total      int64
 	bz         *bgzfReader
 	text       io.Reader
+	// direct: the chunker takes inflated blocks from bz without copying
+	// (chunkLoopDirect), starting with directCarry.
+	direct      bool
+	directCarry []byte
 
 	// ordered stage state (used by Next only)
 	contigIdx  map[string]int
@@ -245,7 +249,15 @@ func newReader(src io.Reader, name, path string, opt Options, total int64) (*Rea
 	}
 	// Hand the chunker what the header reader buffered, then the stream
 	// itself, so that large reads skip the extra copy through bufio.
-	r.text = drainBuffered(tb, src2)
+	if r.bz != nil && len(opt.Regions) == 0 && opt.BatchSize == 0 && opt.chunkBytes == 0 {
+		// Inflated blocks become batch text in place (chunkLoopDirect);
+		// what the header reader buffered starts the first chunk.
+		head, _ := tb.Peek(tb.Buffered())
+		r.directCarry = append([]byte(nil), head...)
+		r.direct = true
+	} else {
+		r.text = drainBuffered(tb, src2)
+	}
 	r.start(p)
 	return r, nil
 }
@@ -359,7 +371,12 @@ func (r *Reader) start(tmpl *vcfParser) {
 		p.fmtBuf = nil
 		go r.parseLoop(&p)
 	}
-	go r.chunkLoop()
+	if r.direct {
+		go r.chunkLoopDirect(r.bz, r.directCarry)
+		r.directCarry = nil
+	} else {
+		go r.chunkLoop()
+	}
 }
 
 func (r *Reader) newBatch() *Batch {
@@ -480,6 +497,8 @@ func (r *Reader) parseLoop(p *vcfParser) {
 		b.GT = b.GT[:0]
 		b.PL = b.PL[:0]
 		b.HasPL = b.HasPL[:0]
+		b.DP = b.DP[:0]
+		b.HasDP = b.HasDP[:0]
 		b.Skipped = [NumSkipReasons]int64{}
 		b.Read, b.Masked = 0, 0
 		b.NSamples = p.nOut

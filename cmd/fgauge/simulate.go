@@ -18,7 +18,9 @@ import (
 func simulateHelp() string {
 	var b strings.Builder
 	b.WriteString(`Drops genomes through a pedigree and writes, to the output folder:
-  simulated.vcf.gz (+ .tbi)  BGZF VCF of the observed calls
+  simulated.vcf.gz (+ .tbi)  BGZF VCF of the observed calls (GT:DP:PL with --depth)
+  truth_genotypes.vcf.gz     with --depth: the true genotypes (GT only, + .tbi), to check
+                             estimators at low depth (scan both and compare)
   truth_samples.tsv          sample replicate design class f_pedigree f_realized autozygous_bp n_segments
   truth_segments.tsv         sample chrom start end length_bp start_cm end_cm n_sites, one line per
                              autozygous segment (both copies from the same founder chromosome copy)
@@ -107,7 +109,7 @@ func runSimulate(ctx context.Context, env *runEnv, args []string) error {
 	pieceCM := fs.Float64("ancestral-segment-cm", 0.5, "mean length in cM of the ancestral pieces of founder chromosomes")
 	gErr := fs.Float64("genotype-error", 0, "chance a call is replaced by another genotype")
 	miss := fs.Float64("missing-rate", 0, "chance a call is set missing")
-	depth := fs.Float64("depth", 0, "mean read depth; > 0 simulates reads and writes GT:DP:PL")
+	depth := fs.Float64("depth", 0, "mean read depth; > 0 simulates Poisson reads with --read-error and writes GT:DP:PL (GT the most likely genotype, PL by the binomial read model) and truth_genotypes.vcf.gz")
 	readErr := fs.Float64("read-error", 0.01, "per-base error of simulated reads (with --depth)")
 	truthOnly := fs.Bool("truth-only", false, "skip sites and the VCF; write only the truth tables and the pedigree")
 	ages := fs.Bool("ages", false, "record the common ancestor and age of every autozygous stretch (see below)")
@@ -226,6 +228,13 @@ func writeSimulation(dir string, res *genedrop.Result) ([]string, error) {
 			return nil, fmt.Errorf("writing %s: %w", p, err)
 		}
 		paths = append(paths, p)
+		if res.Config.Depth > 0 {
+			p := filepath.Join(dir, "truth_genotypes.vcf.gz")
+			if err := genedrop.WriteTruthVCFBGZF(p, res); err != nil {
+				return nil, fmt.Errorf("writing %s: %w", p, err)
+			}
+			paths = append(paths, p)
+		}
 	}
 	for _, t := range []struct {
 		name string

@@ -172,7 +172,14 @@ type reportView struct {
 	SampleTableNote string
 	PageDir         bool
 	Unknown         []string
-	AgeMeans        []ageMean // cohort mean per age band; nil without age classes
+	AgeMeans        []ageMean  // cohort mean per age band; nil without age classes
+	Depth           *depthView // when run.json has a depth section
+}
+
+// depthView is run.json's depth section as the report shows it.
+type depthView struct {
+	Mean, Source, Threshold, OneAllele string
+	Low, HasLikelihoods                bool
 }
 
 // Write reads the scan output folder outDir and writes outDir/report.html
@@ -229,6 +236,10 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 	}
 	v.Unknown = c.unknown
 	v.AgeMeans = c.ageMeans()
+	if dp := d.info.Depth; dp != nil {
+		v.Depth = &depthView{Mean: fmtG(float64(dp.Mean)), Source: dp.Source, Threshold: fmtG(dp.LowThreshold),
+			OneAllele: fmtPct(float64(dp.HetOneAlleleRate)), Low: dp.Low, HasLikelihoods: dp.RecordsWithLikelihoods > 0}
+	}
 	builders := []struct {
 		dst   **figure
 		build func() (figure, error)

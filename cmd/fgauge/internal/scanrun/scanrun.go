@@ -113,8 +113,13 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		read.RequireSorted = true
 		read.WantPL = rohCfg.Method == "hmm"
 	}
+	rohPL := read.WantPL // the HMM detector reads the likelihoods
 	if len(read.Regions) > 0 {
 		read.RequireSorted = true
+	}
+	if !cfg.Stats.NoLikelihoods {
+		// f_lik, alt_freq_lik and depth_mean; GT-only records cost nothing.
+		read.WantPL, read.WantDP = true, true
 	}
 	if err := cfg.Stats.check(); err != nil {
 		return nil, err
@@ -233,9 +238,11 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		}
 	})
 	workers := make([]*stats.Worker, cfg.Threads)
+	lik := stats.NewLikShared(len(samples))
 	var wg sync.WaitGroup
 	for i := range workers {
 		w := stats.NewWorker(scfg, contigs.name)
+		w.ShareLikelihoods(lik)
 		workers[i] = w
 		wg.Add(1)
 		g.Go(func() error {
@@ -276,7 +283,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 				if rc != nil {
 					contigs.feed(rc)
 				}
-				if err := writeChunk(c, sitesZ, popZ, sink); err != nil {
+				if err := writeChunk(c, sitesZ, popZ, sink, rohPL); err != nil {
 					return err
 				}
 				b := c.batch
@@ -327,6 +334,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 			return nil, err
 		}
 	}
+	totals.Lik = lik.Acc()
 	var rres *roh.Result
 	if rc != nil {
 		if rres, err = rc.Finish(); err != nil {
@@ -423,8 +431,10 @@ func waitOrCancel(ctx context.Context, wait func() error) error {
 	}
 }
 
-// writeChunk writes one batch's site rows and feeds the ROH collector, in input order.
-func writeChunk(c *siteChunk, sitesZ, popZ io.Writer, rc batchSink) error {
+// writeChunk writes one batch's site rows and feeds the ROH collector, in
+// input order; without withPL the collector does not see the likelihoods
+// (read for f_lik, not for the rule-based detector).
+func writeChunk(c *siteChunk, sitesZ, popZ io.Writer, rc batchSink, withPL bool) error {
 	if _, err := sitesZ.Write(c.sites.Bytes()); err != nil {
 		return err
 	}
@@ -434,7 +444,13 @@ func writeChunk(c *siteChunk, sitesZ, popZ io.Writer, rc batchSink) error {
 		}
 	}
 	if rc != nil {
-		return rc.AddBatch(c.batch, c.freqs)
+		b := c.batch
+		if !withPL && len(b.PL) > 0 {
+			nb := *b
+			nb.PL, nb.HasPL = nil, nil
+			b = &nb
+		}
+		return rc.AddBatch(b, c.freqs)
 	}
 	return nil
 }
