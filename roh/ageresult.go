@@ -92,9 +92,12 @@ type AgeSummary struct {
 	Generations []float64 `json:"generations"`
 	// Columns are the samples.tsv columns f_within_<G>g, in the order of
 	// AgeGenerations.
-	Columns           []string  `json:"columns"`
-	MarginCM          float64   `json:"margin_cm"`
-	WholeChromosome   bool      `json:"whole_chromosome"`
+	Columns         []string `json:"columns"`
+	MarginCM        float64  `json:"margin_cm"`
+	WholeChromosome bool     `json:"whole_chromosome"`
+	// WholeShare: samples whose windows covered at least this share of a
+	// chromosome were fitted on the whole chromosome.
+	WholeShare        float64   `json:"whole_chromosome_share"`
 	MeanRounds        float64   `json:"-"`
 	CohortMeanByClass []float64 `json:"cohort_mean_by_class"` // per class, mean over samples of its share of the covered length (NaN -> null omitted)
 }
@@ -104,7 +107,7 @@ func (r *Result) ageSummary() *AgeSummary {
 	if r.AgeRates == nil {
 		return nil
 	}
-	a := &AgeSummary{MarginCM: r.AgeMarginCM, WholeChromosome: r.AgeWhole}
+	a := &AgeSummary{MarginCM: r.AgeMarginCM, WholeChromosome: r.AgeWhole, WholeShare: r.AgeWholeShare}
 	for _, x := range r.AgeRates {
 		a.Generations = append(a.Generations, x/2)
 	}

@@ -475,6 +475,7 @@ func (c *Collector) Finish() (*Result, error) {
 		AgeRates:      c.ageRates(),
 		AgeMarginCM:   c.cfg.AgeMarginCM,
 		AgeWhole:      c.cfg.AgeWholeChromosome && c.cfg.Ages != nil,
+		AgeWholeShare: c.cfg.AgeWholeShare,
 		Excluded:      c.excluded,
 	}
 	for _, ch := range c.chroms {

@@ -60,6 +60,7 @@ type Result struct {
 	AgeRates      []float64        // rates of the autozygous age classes (per Morgan); nil when the age classes are off
 	AgeMarginCM   float64          // Config.AgeMarginCM
 	AgeWhole      bool             // Config.AgeWholeChromosome
+	AgeWholeShare float64          // Config.AgeWholeShare
 	Chroms        []ChromResult    // autosomes with at least one site, in input order
 	Excluded      map[string]int64 // non-autosomal contigs -> sites seen
 }
@@ -70,7 +71,7 @@ type Result struct {
 func (r *Result) Merge(o *Result) error {
 	if r.Method != o.Method || !slices.Equal(r.Samples, o.Samples) || !slices.Equal(r.Classes, o.Classes) ||
 		r.GenotypeError != o.GenotypeError || r.CMPerMB != o.CMPerMB || r.Fit != o.Fit || !slices.Equal(r.AgeRates, o.AgeRates) ||
-		r.AgeMarginCM != o.AgeMarginCM || r.AgeWhole != o.AgeWhole {
+		r.AgeMarginCM != o.AgeMarginCM || r.AgeWhole != o.AgeWhole || r.AgeWholeShare != o.AgeWholeShare {
 		return fmt.Errorf("roh: cannot merge results of different samples or settings")
 	}
 	have := map[string]bool{}

@@ -226,7 +226,7 @@ func combineROH(ls []loadedState, threads int) (*roh.Result, error) {
 	f := ls[0].st
 	r := &roh.Result{Method: f.ROH.Method, Samples: f.ROH.Samples, Classes: f.ROH.Classes,
 		GenotypeError: f.ROH.GenotypeError, CMPerMB: f.ROH.CMPerMB, Fit: f.ROH.Fit, Excluded: map[string]int64{},
-		AgeRates: f.ROH.AgeRates, AgeMarginCM: f.ROH.AgeMarginCM, AgeWhole: f.ROH.AgeWhole}
+		AgeRates: f.ROH.AgeRates, AgeMarginCM: f.ROH.AgeMarginCM, AgeWhole: f.ROH.AgeWhole, AgeWholeShare: f.ROH.AgeWholeShare}
 	var pieceOrder []string
 	pieces := map[string][]roh.Piece{}
 	for _, l := range ls {
