@@ -653,11 +653,21 @@ func TestAgesPedigreeF(t *testing.T) {
 				if mode == "whole" {
 					f = w.Fit(tabs[c], cfg)
 				} else {
+					// as the scan does (Config.AgeWholeShare): a sample
+					// whose windows cover a quarter of the chromosome's
+					// genetic length is fitted on the whole chromosome
 					wins := AgeWindows(a.ch.cm, ranges[c][s], 1)
+					cm := a.ch.cm
+					in := 0.0
 					for _, x := range wins {
 						nWin += x[1] - x[0]
+						in += cm[x[1]-1] - cm[x[0]]
 					}
-					f = w.FitWindows(tabs[c], cfg, wins)
+					if in >= DefaultConfig().AgeWholeShare*(cm[len(cm)-1]-cm[0]) {
+						f = w.Fit(tabs[c], cfg)
+					} else {
+						f = w.FitWindows(tabs[c], cfg, wins)
+					}
 				}
 				nAll += len(a.ch.pos)
 				for l, v := range f.ClassBP {
