@@ -161,6 +161,9 @@ type Totals struct {
 	// (f_lik summaries, depth), nil when no record carried PL, GL or DP.
 	LikFreqs LikFreqSource
 	Lik      *LikAcc
+	// Sex holds the sex-check evidence and the count of non-PAR X, Y and
+	// MT sites, which stay out of the per-sample autosomal statistics.
+	Sex SexTotals
 }
 
 func newTotals(cfg *Config) *Totals {
@@ -171,6 +174,7 @@ func newTotals(cfg *Config) *Totals {
 		PerSample: make([]SampleAcc, len(cfg.Samples)),
 		Blocks:    map[BlockKey]*BlockAcc{},
 		HWETally:  HWESummary{ChiHist: map[int32]int64{}, PHist: map[int32]int64{}},
+		Sex:       newSexTotals(cfg),
 	}
 	if t.HWEMethod == "" {
 		t.HWEMethod = "exact"
@@ -208,6 +212,9 @@ func (t *Totals) Merge(o *Totals) error {
 		return fmt.Errorf("stats: merge: population groups differ: %w", ErrIncompatible)
 	}
 	t.Sites += o.Sites
+	if err := t.Sex.merge(&o.Sex); err != nil {
+		return err
+	}
 	for i := range t.PerSample {
 		a, b := &t.PerSample[i], &o.PerSample[i]
 		for k := range a.Counts {
@@ -314,9 +321,10 @@ func (t *Totals) estimates(i int) sampleEstimates {
 	e.called = a.Counts[0] + a.Counts[1] + a.Counts[2]
 	e.informative = base.Sites - a.Uncalled
 	e.homInformative = e.informative - a.HetInformative
-	// A haploid call is a call for call_rate (a male's X is called, not
-	// missing), though it stays out of every diploid statistic.
-	e.callRate = ratio(float64(e.called+a.Counts[vcfscan.HaploidRef]+a.Counts[vcfscan.HaploidAlt]), float64(t.Sites))
+	// A haploid call is a call for call_rate, though it stays out of every
+	// diploid statistic; non-PAR X, Y and MT sites are not counted at all
+	// (the sex columns describe them).
+	e.callRate = ratio(float64(e.called+a.Counts[vcfscan.HaploidRef]+a.Counts[vcfscan.HaploidAlt]), float64(t.Sites-t.Sex.other()))
 	e.hetRate = ratio(float64(a.Counts[1]), float64(e.called))
 	var sums [nSums]float64
 	for k := range sums {
@@ -366,10 +374,14 @@ const (
 	// FlagEstimatorsDisagree: f_hom > 0.1 while f_uniting_gametes < 0,
 	// or the reverse.
 	FlagEstimatorsDisagree
+	// FlagSexMismatch: given and inferred sex both known and different.
+	FlagSexMismatch
+	// FlagSexNeither: the X (and Y) pattern fits neither sex.
+	FlagSexNeither
 	numFlags = iota
 )
 
-var flagNames = [numFlags]string{"no_calls", "low_call_rate", "het_rate_outlier", "estimators_disagree"}
+var flagNames = [numFlags]string{"no_calls", "low_call_rate", "het_rate_outlier", "estimators_disagree", "sex_mismatch", "sex_fits_neither"}
 
 // Has reports whether every flag of g is set in f.
 func (f SampleFlags) Has(g SampleFlags) bool { return f&g == g }
@@ -412,10 +424,14 @@ type sampleView struct {
 	est   []sampleEstimates
 	band  HetRateBand
 	flags []SampleFlags
+	sex   *SexView // nil without non-PAR X or Y sites
 }
 
 func (t *Totals) view() *sampleView {
 	v := &sampleView{est: make([]sampleEstimates, len(t.PerSample)), flags: make([]SampleFlags, len(t.PerSample))}
+	if t.HasSexCheck() {
+		v.sex = t.Sexes()
+	}
 	// Cohort mean and SD of het_rate for het_rate_outlier (fixed order).
 	var sum, sum2, m float64
 	for i := range t.PerSample {
@@ -451,6 +467,9 @@ func (t *Totals) view() *sampleView {
 		if (e.fHom > 0.1 && e.fUniting < 0) || (e.fUniting > 0.1 && e.fHom < 0) {
 			f |= FlagEstimatorsDisagree
 		}
+		if v.sex != nil {
+			f |= t.sexFlags(v.sex, i)
+		}
 		v.flags[i] = f
 	}
 	return v
@@ -469,12 +488,18 @@ func (t *Totals) CallRate(i int) float64 { return t.estimates(i).callRate }
 // one row per selected sample, in order. The population column is present
 // only with populations ("NA" for unlisted samples).
 func (t *Totals) SampleTable() (header []string, rows [][]string) {
-	if t.PopOf != nil {
-		header = strings.Split(headerLine(FileSamples), "\t")
-	} else {
-		header = strings.Split(headerLine(FileSamples, "population"), "\t")
+	var skip []string
+	if t.PopOf == nil {
+		skip = append(skip, "population")
 	}
 	v := t.view()
+	switch {
+	case v.sex == nil:
+		skip = append(skip, sexColumnNames...)
+	case t.Sex.Given == nil:
+		skip = append(skip, "sex_given")
+	}
+	header = strings.Split(headerLine(FileSamples, skip...), "\t")
 	for i := range t.PerSample {
 		a := &t.PerSample[i]
 		e := &v.est[i]
@@ -492,6 +517,9 @@ func (t *Totals) SampleTable() (header []string, rows [][]string) {
 			ftoa(e.fHom), ftoa(e.fGRM), ftoa(e.fExcess), ftoa(e.fUniting), ftoa(e.fVanRad),
 			itoa(e.informative), ftoa(e.homShare), ftoa(e.homShareHWE))
 		row = t.appendLikColumns(row, i)
+		if v.sex != nil {
+			row = append(row, t.sexColumns(v.sex, i)...)
+		}
 		row = append(row, v.flags[i].String())
 		rows = append(rows, row)
 	}

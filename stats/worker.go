@@ -6,6 +6,7 @@ import (
 	"math"
 	"strconv"
 
+	"fgauge/stats/sexcheck"
 	"fgauge/vcfscan"
 )
 
@@ -104,12 +105,18 @@ type Worker struct {
 	lastBlock  BlockKey
 	block      *BlockAcc
 	lik        likWorker
+
+	// Sex chromosomes (sexsites.go).
+	contig   sexcheck.Contig
+	deferX   bool
+	deferred []Deferred
+	xcache   *XHWECache
 }
 
 // NewWorker returns a Worker for cfg; contigName maps vcfscan chromosome
 // ids to names. cfg must have been validated and must not change.
 func NewWorker(cfg *Config, contigName func(id int) string) *Worker {
-	w := &Worker{cfg: cfg, contigName: contigName, t: newTotals(cfg), lastChrom: -1}
+	w := &Worker{cfg: cfg, contigName: contigName, t: newTotals(cfg), lastChrom: -1, deferX: cfg.Sex.DeferX()}
 	w.cache = newHWECache(cfg.HWEMethod == "chisq", 1<<14)
 	w.sites = newSiteCache(1 << 13)
 	w.nPop = len(cfg.PopNames)
@@ -152,10 +159,24 @@ func (w *Worker) Totals() *Totals {
 // record i (NaN when none), and adds the record's per-sample and
 // per-population contributions to the worker's totals. freqs must have
 // room for len(b.Records) values.
+//
+// Records on non-PAR X and Y and on the mitochondrion take sexRecord
+// instead (see SexConfig); X rows waiting for the sexes are listed by
+// Deferred.
 func (w *Worker) ProcessBatch(b *vcfscan.Batch, sites, popSites *bytes.Buffer, freqs []float64) {
+	w.deferred = w.deferred[:0]
 	for i := range b.Records {
+		rec := &b.Records[i]
+		w.chrom(rec.ChromID)
+		if w.contig.Kind != sexcheck.Autosome {
+			if k := w.contig.KindAt(rec.Pos); k != sexcheck.Autosome {
+				w.t.Sites++
+				freqs[i] = w.sexRecord(k, i, rec, b.Calls(i), sites)
+				continue
+			}
+		}
 		lf := w.likSite(b, i)
-		freqs[i] = w.record(&b.Records[i], b.Calls(i), lf, sites, popSites)
+		freqs[i] = w.record(rec, b.Calls(i), lf, sites, popSites)
 		w.likAdd(b, i, freqs[i])
 	}
 }
@@ -165,6 +186,7 @@ func (w *Worker) chrom(id int) {
 		w.lastChrom = id
 		w.chromName = w.contigName(id)
 		w.chromBytes = append(w.chromBytes[:0], w.chromName...)
+		w.contig = w.cfg.Sex.contig(w.chromName)
 	}
 }
 
@@ -509,6 +531,9 @@ func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64
 		b = append(b, w.sites.rows[si.rowOff:si.rowEnd]...)
 	}
 	b = appendFloat(b, lf.AltFreq)
+	if w.cfg.Sex.XColumns {
+		b = append(b, xNA...)
+	}
 	b = append(b, '\n')
 	sites.Write(b)
 	w.scratch = b
@@ -546,10 +571,23 @@ func appendFloat(b []byte, x float64) []byte {
 	return numfmt.AppendFloat(append(b, '\t'), x)
 }
 
-// SitesHeader is the header line of sites.tsv (no trailing newline).
+// SitesHeader is the header line of sites.tsv (no trailing newline),
+// without the male-count columns of non-PAR X rows.
 func SitesHeader() string {
-	return headerLine(FileSites)
+	return headerLine(FileSites, xSiteColumns...)
 }
+
+// SitesHeaderFor is the header line of sites.tsv for cfg: with the
+// male-count columns when cfg.Sex.XColumns.
+func SitesHeaderFor(cfg *Config) string {
+	if cfg.Sex.XColumns {
+		return headerLine(FileSites)
+	}
+	return SitesHeader()
+}
+
+// xSiteColumns are the sites.tsv columns of non-PAR X rows only.
+var xSiteColumns = []string{"n_male_ref", "n_male_alt", "n_male_het_error", "n_sex_unknown"}
 
 // PopSitesHeader is the header line of sites_by_population.tsv.
 func PopSitesHeader() string {

@@ -174,6 +174,7 @@ type reportView struct {
 	Unknown         []string
 	AgeMeans        []ageMean  // cohort mean per age band; nil without age classes
 	Depth           *depthView // when run.json has a depth section
+	Sex             *sexView   // nil without the sex columns
 }
 
 // depthView is run.json's depth section as the report shows it.
@@ -269,6 +270,16 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 			}
 		}
 		*b.dst = &f
+	}
+	sv, err := c.sexSection()
+	if err != nil {
+		return nil, fmt.Errorf("report: sex check: %w", err)
+	}
+	if sv != nil {
+		v.Sex = sv
+		if sv.Fig.Note != "" {
+			v.Aggregated = append(v.Aggregated, sv.Fig.Title+": "+sv.Fig.Note)
+		}
 	}
 	v.HasPops = d.pops != nil || d.pairs != nil
 	if d.pops != nil {

@@ -34,6 +34,7 @@ type Run struct {
 	Records     Records                  `json:"records"`
 	ROH         *roh.Summary             `json:"roh,omitempty"` // without --no-roh
 	Samples     Samples                  `json:"samples"`
+	Sex         *stats.SexSummary        `json:"sex,omitempty"`    // with non-PAR X or Y sites
 	Shards      *Shards                  `json:"shards,omitempty"` // merges only
 	Sites       *stats.SitesSummary      `json:"sites,omitempty"`
 	Version     string                   `json:"version"`
@@ -183,6 +184,7 @@ func Build(stderr io.Writer, f *Facts, totals *stats.Totals, rres *roh.Result) *
 		Input:       Input{Path: f.InputPath, SizeBytes: f.InputSize, Format: f.InputFormat},
 		Records:     Records{Read: f.Read, Kept: f.Kept, Skipped: skipped, MaskedCalls: f.Masked},
 		Samples:     Samples{InFile: len(f.SamplesInFile), Kept: len(f.Samples), Excluded: excluded, HetRateBand: ptr(totals.HetRateBand())},
+		Sex:         totals.SexSummary(),
 		Sites:       totals.Summary(),
 		Depth:       depthSummary(totals),
 		Warnings:    warnings,
