@@ -86,6 +86,9 @@ func NewCollector(cfg *Config, samples []string, contigs []vcfscan.Contig) (*Col
 func (c *Collector) setGeometry() {
 	hmm := c.cfg.Method == MethodHMM && !c.cfg.Fit && !c.whole && !c.raw
 	c.geo = newGeometry(len(c.samples), c.cfg.MemoryBudget, hmm)
+	if c.ageOn() {
+		c.geo.age = ageCkLen(len(c.cfg.Ages.Rates) + 1)
+	}
 	c.mem = memBudget{limit: c.cfg.MemoryBudget, reserve: 6 * c.geo.bytes(false)}
 }
 
@@ -469,6 +472,10 @@ func (c *Collector) Finish() (*Result, error) {
 		CMPerMB:       c.cfg.CMPerMB,
 		Fit:           c.cfg.Fit,
 		MapUsed:       c.cfg.Map != nil,
+		AgeRates:      c.ageRates(),
+		AgeMarginCM:   c.cfg.AgeMarginCM,
+		AgeWhole:      c.cfg.AgeWholeChromosome && c.cfg.Ages != nil,
+		AgeWholeShare: c.cfg.AgeWholeShare,
 		Excluded:      c.excluded,
 	}
 	for _, ch := range c.chroms {

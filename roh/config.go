@@ -81,6 +81,28 @@ type Config struct {
 	// fitted HMM (Fit) and the rules detector still join each chromosome
 	// in memory for detection, whatever the budget.
 	MemoryBudget int64
+	// Ages, when not nil, fits the age-class model (ages.go) per sample
+	// and chromosome after the HMM's runs are found, for the
+	// f_within_<G>g columns of samples.tsv and the age class of each run.
+	// Its GenotypeError and MaxGapBP are taken from GenotypeError and
+	// MaxGapKB. The rules detector writes NA for them.
+	Ages *AgeConfig
+	// AgeMarginCM widens each run by this many cM on both sides to make
+	// the windows the age model is fitted in (see AgeWindows).
+	AgeMarginCM float64
+	// AgeWholeChromosome fits the age model on whole chromosomes instead
+	// of windows around runs: slower (every site of every sample, about
+	// 6 to 20 EM rounds of a 9-state chain), and it sees autozygosity the
+	// two-state detector missed.
+	AgeWholeChromosome bool
+	// AgeWholeShare: a sample whose windows cover at least this share of
+	// a chromosome's genetic length is fitted on that whole chromosome
+	// (its cost is then at most 1/AgeWholeShare times the windowed one).
+	// Outside windows everything counts as non-autozygous, which
+	// underestimates heavily inbred animals; this repairs most of it. 0
+	// turns it off.
+	AgeWholeShare float64
+
 	// TempDir is the folder of those temporary files; "" means the
 	// system's (os.TempDir). Files are removed from the folder as soon as
 	// they are created, so none is left behind, even on interrupt.
@@ -131,6 +153,9 @@ func DefaultConfig() *Config {
 		FitIterations:   20,
 		Classes:         []float64{1, 2, 4, 8, 16},
 		MaxGapKB:        1000,
+		Ages:            DefaultAgeConfig(),
+		AgeMarginCM:     1,
+		AgeWholeShare:   0.25,
 		Rules: Rules{
 			MaxHet:        1,
 			MaxMissing:    2,
@@ -286,6 +311,26 @@ func (c *Config) Validate() error {
 	}
 	if c.Threads < 1 {
 		c.Threads = 1
+	}
+	if c.Ages != nil {
+		a := *c.Ages
+		a.Rates = append([]float64(nil), a.Rates...)
+		a.Start = append([]float64(nil), a.Start...)
+		if len(a.Start) == 0 {
+			a.Start = nil
+		}
+		a.GenotypeError = c.GenotypeError
+		a.MaxGapBP = int64(c.MaxGapKB * 1000)
+		if err := a.Validate(); err != nil {
+			return bad("%v", err)
+		}
+		c.Ages = &a
+		if !(c.AgeMarginCM >= 0) || math.IsInf(c.AgeMarginCM, 0) {
+			return bad("age window margin %g cM: want a number >= 0", c.AgeMarginCM)
+		}
+		if !(c.AgeWholeShare >= 0 && c.AgeWholeShare <= 1) {
+			return bad("age whole-chromosome share %g: want a value in [0, 1]", c.AgeWholeShare)
+		}
 	}
 	if c.MemoryBudget < 0 {
 		return bad("memory budget %d bytes: want a positive number (0 for the default)", c.MemoryBudget)

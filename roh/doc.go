@@ -43,6 +43,13 @@
 // detector join each chromosome in memory for detection (N/4 bytes a
 // site plus 50 to 84 bytes a site per worker).
 //
+// The age classes (Config.Ages, agesweep.go) add 96 bytes per sample to
+// each window (the EM's forward checkpoint, spilled with the window),
+// keep the chromosome's windows until their fit is done (two sweeps per
+// EM round, read back from disk when spilled), and take per worker one
+// window's scratch (about 90 bytes a site of one window) and per sample
+// O(classes + runs): nothing grows with the chromosome length.
+//
 // Speed: see BenchmarkSweeps (each sweep alone), BenchmarkDetect,
 // BenchmarkShapes (100 x 1 M against 1,000 x 100 k) and
 // BenchmarkBoundedMemory (the two memory-target shapes).

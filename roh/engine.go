@@ -67,6 +67,7 @@ type task struct {
 // workScratch is one worker's reusable buffers.
 type workScratch struct {
 	sweep sweepScratch
+	age   ageScratch
 	hmm   hmmScratch // whole-chromosome passes (Fit, rules)
 }
 
@@ -147,6 +148,8 @@ type chromRun struct {
 	fitF      []float64
 	fitRate   []float64
 	res       ChromResult
+	age       *ageChrom // nil when the age classes are off
+	ageBP     []int64   // per sample, per class (see ChromResult.AgeBP)
 	done      chan struct{}
 }
 
@@ -157,6 +160,9 @@ func (c *Collector) newChromRun(id int) *chromRun {
 	}
 	if m := c.cfg.Map.Chrom(r.name); m != nil && len(m.Pos) > 0 {
 		r.cmMap, r.mapSource = m, "genetic_map"
+	}
+	if c.ageOn() {
+		r.age = newAgeChrom(c.cfg.Ages)
 	}
 	go r.run()
 	return r
@@ -217,9 +223,15 @@ func (r *chromRun) run() {
 				}
 			})
 		}
+		if r.age != nil {
+			r.age.note(w)
+		}
 		if err := r.store(w); err != nil {
 			c.setErr(err)
 		}
+	}
+	if r.age != nil {
+		r.age.finishSpan()
 	}
 	if c.raw || c.failed() || ns == 0 || len(r.wins) == 0 {
 		return
@@ -407,7 +419,7 @@ func (r *chromRun) sweeps() error {
 			}
 		})
 		r.unload(w)
-		if w.off < 0 {
+		if w.off < 0 && r.age == nil {
 			c.mem.release(w.size)
 			c.putWindow(w)
 			r.wins[k] = nil
@@ -415,6 +427,11 @@ func (r *chromRun) sweeps() error {
 	}
 	for s := range r.acc {
 		r.acc[s].close(&r.perSample[s])
+	}
+	if r.age != nil {
+		err := r.ageFit()
+		r.releaseAll()
+		return err
 	}
 	return nil
 }
@@ -428,7 +445,9 @@ func (r *chromRun) wholePasses() error {
 	if err != nil {
 		return err
 	}
-	r.releaseAll()
+	if r.age == nil {
+		r.releaseAll()
+	}
 	c.prepare(ch)
 	ns := c.geo.ns
 	if c.cfg.Fit && c.cfg.Method == MethodHMM {
@@ -441,6 +460,12 @@ func (r *chromRun) wholePasses() error {
 			r.perSample[s] = c.detectWhole(ch, s, &sc.hmm, r.fitF, r.fitRate)
 		}
 	})
+	if r.age != nil {
+		ch = nil
+		err := r.ageFit()
+		r.releaseAll()
+		return err
+	}
 	return nil
 }
 
@@ -484,7 +509,7 @@ func (r *chromRun) materialize() (*chromData, error) {
 // result collects the chromosome's summary and runs (sample-major).
 func (r *chromRun) result() ChromResult {
 	res := ChromResult{Name: r.name, Length: r.length, NSites: r.nSites, FirstPos: r.firstPos, LastPos: r.lastPos,
-		MapSource: r.mapSource, FitF: r.fitF, FitRate: r.fitRate}
+		MapSource: r.mapSource, FitF: r.fitF, FitRate: r.fitRate, AgeBP: r.ageBP}
 	for _, rs := range r.perSample {
 		res.Runs = append(res.Runs, rs...)
 	}

@@ -61,8 +61,8 @@ func ExampleResult_SampleTable() {
 	fmt.Println(strings.Join(h, "\t"))
 	fmt.Println(strings.Join(rows[0], "\t"))
 	// Output:
-	// n_runs	roh_total_bp	f_roh	f_roh_gt_1mb	f_roh_gt_2mb	f_roh_gt_4mb	f_roh_gt_8mb	f_roh_gt_16mb
-	// 1	5050001	0.5050001	0.5050001	0.5050001	0.5050001	0	0
+	// n_runs	roh_total_bp	f_roh	f_roh_gt_1mb	f_roh_gt_2mb	f_roh_gt_4mb	f_roh_gt_8mb	f_roh_gt_16mb	f_within_2g	f_within_4g	f_within_8g	f_within_16g	f_within_32g	f_within_64g	f_within_128g	f_within_256g
+	// 1	5050001	0.5050001	0.5050001	0.5050001	0.5050001	0	0	0.04753231618794203	0.138920941898489	0.28877951396132706	0.4332045155975819	0.488547709530288	0.4985918632857084	0.5019271318630933	0.5041899540709496
 }
 
 func ExampleResult_WriteRuns() {
@@ -74,8 +74,8 @@ func ExampleResult_WriteRuns() {
 	res, _ := c.Finish()
 	res.WriteRuns(os.Stdout)
 	// Output:
-	// sample	chrom	start	end	length_bp	length_cm	n_sites	n_het	n_missing	mean_posterior_autozygous	generations_back
-	// calf_07	1	1950000	7000000	5050001	5.05	203	0	0	NA	9.900990099009901
+	// sample	chrom	start	end	length_bp	length_cm	n_sites	n_het	n_missing	mean_posterior_autozygous	generations_back	age_class_generations	age_class_posterior
+	// calf_07	1	1950000	7000000	5050001	5.05	203	0	0	NA	9.900990099009901	NA	NA
 }
 
 func ExampleResult_Summary() {

@@ -20,6 +20,11 @@ type Run struct {
 	NSites         int     // sites in the run, including heterozygous and missing calls
 	NHet, NMissing int     // heterozygous and missing calls inside the run
 	Quality        float64 // runs.tsv mean_posterior_autozygous: mean posterior of autozygosity over the run's sites (HMM); NaN for rules
+	// AgeClass is 1 + the index (in Result.AgeRates) of the autozygous
+	// age class with the highest mean posterior over the run's sites, 0
+	// when the age classes were not fitted; AgePosterior is that mean.
+	AgeClass     int
+	AgePosterior float64
 }
 
 // LengthBP is End-Start+1.
@@ -34,6 +39,10 @@ type ChromResult struct {
 	MapSource         string // "genetic_map" or "cm_per_mb"
 	Runs              []Run  // sample-major, by start within a sample
 	FitF, FitRate     []float64
+	// AgeBP holds, per sample (K+1 entries each, sample-major), the
+	// per-class posterior lengths of the age-class model in units of
+	// 1/AgeUnit bp (AgeFit.ClassBP); nil when not fitted.
+	AgeBP []int64
 }
 
 // Result is the outcome of detection over a whole input (or a shard of
@@ -48,6 +57,10 @@ type Result struct {
 	CMPerMB       float64
 	Fit           bool
 	MapUsed       bool             // a genetic map was given (see ChromResult.MapSource)
+	AgeRates      []float64        // rates of the autozygous age classes (per Morgan); nil when the age classes are off
+	AgeMarginCM   float64          // Config.AgeMarginCM
+	AgeWhole      bool             // Config.AgeWholeChromosome
+	AgeWholeShare float64          // Config.AgeWholeShare
 	Chroms        []ChromResult    // autosomes with at least one site, in input order
 	Excluded      map[string]int64 // non-autosomal contigs -> sites seen
 }
@@ -57,7 +70,8 @@ type Result struct {
 // input order gives the output of one pass.
 func (r *Result) Merge(o *Result) error {
 	if r.Method != o.Method || !slices.Equal(r.Samples, o.Samples) || !slices.Equal(r.Classes, o.Classes) ||
-		r.GenotypeError != o.GenotypeError || r.CMPerMB != o.CMPerMB || r.Fit != o.Fit {
+		r.GenotypeError != o.GenotypeError || r.CMPerMB != o.CMPerMB || r.Fit != o.Fit || !slices.Equal(r.AgeRates, o.AgeRates) ||
+		r.AgeMarginCM != o.AgeMarginCM || r.AgeWhole != o.AgeWhole || r.AgeWholeShare != o.AgeWholeShare {
 		return fmt.Errorf("roh: cannot merge results of different samples or settings")
 	}
 	have := map[string]bool{}
@@ -140,7 +154,11 @@ func appendF(b []byte, x float64) []byte { return numfmt.AppendFloat(b, x) }
 // by sample (in sample order), then chromosome (input order), then start.
 func (r *Result) WriteRuns(w io.Writer) error {
 	bw := bufio.NewWriterSize(w, 64*1024)
-	bw.WriteString(strings.Join(columnNames("runs.tsv"), "\t") + "\n")
+	head := columnNames("runs.tsv")
+	if r.AgeRates != nil {
+		head = append(head, AgeRunColumns...)
+	}
+	bw.WriteString(strings.Join(head, "\t") + "\n")
 	// index runs by sample
 	type ref struct{ c, i int }
 	bySample := make([][]ref, len(r.Samples))
@@ -186,6 +204,9 @@ func (r *Result) WriteRuns(w io.Writer) error {
 			buf = appendF(buf, run.Quality)
 			buf = append(buf, '\t')
 			buf = appendF(buf, gen)
+			if r.AgeRates != nil {
+				buf = r.appendAge(buf, run)
+			}
 			buf = append(buf, '\n')
 			if _, err := bw.Write(buf); err != nil {
 				return fmt.Errorf("writing runs: %w", err)
@@ -255,10 +276,20 @@ func (r *Result) SampleTable() (header []string, rows [][]string) {
 	for _, mb := range r.Classes {
 		header = append(header, ClassColumn(mb))
 	}
-	for _, st := range r.SampleStats() {
+	var within [][]float64
+	if r.AgeRates != nil {
+		for _, g := range AgeGenerations {
+			header = append(header, AgeColumn(g))
+		}
+		within = r.FWithin()
+	}
+	for s, st := range r.SampleStats() {
 		row := []string{strconv.Itoa(st.NRuns), strconv.FormatInt(st.TotalBP, 10), fmtF(st.FROH)}
 		for _, v := range st.ByClass {
 			row = append(row, fmtF(v))
+		}
+		for _, v := range within {
+			row = append(row, fmtF(v[s]))
 		}
 		rows = append(rows, row)
 	}
@@ -291,6 +322,8 @@ type Summary struct {
 	RunsCounted        int      `json:"runs_counted"`
 	RunsWritten        int      `json:"runs_written"`
 	SitesUsed          int      `json:"sites_used"`
+	// AgeClasses describes the age-class model (absent when it is off).
+	AgeClasses *AgeSummary `json:"age_classes,omitempty"`
 }
 
 // ClassColumns returns the samples.tsv column of each length class, in
@@ -340,6 +373,7 @@ func (r *Result) Summary() *Summary {
 		ClassesMB:       r.Classes,
 		CMPerMB:         r.CMPerMB,
 	}
+	m.AgeClasses = r.ageSummary()
 	if r.MapUsed {
 		if mapMissing == nil {
 			mapMissing = []string{}
@@ -412,11 +446,26 @@ func ClassColumnDoc(mb float64) ColumnDoc {
 
 // ColumnDocs documents the columns this package writes, for the default
 // length classes; other classes follow the f_roh_gt_1mb pattern
-// (ClassColumnDoc).
+// (ClassColumnDoc). The age-class columns (ageColumns, AgeColumnDoc)
+// follow the other columns of their file.
 func ColumnDocs() []ColumnDoc {
-	d := append([]ColumnDoc(nil), columns...)
+	var d []ColumnDoc
+	for _, c := range columns {
+		if c.File == "runs.tsv" {
+			d = append(d, c)
+		}
+	}
+	d = append(d, ageColumns...)
+	for _, c := range columns {
+		if c.File != "runs.tsv" {
+			d = append(d, c)
+		}
+	}
 	for _, mb := range DefaultConfig().Classes {
 		d = append(d, ClassColumnDoc(mb))
+	}
+	for _, g := range AgeGenerations {
+		d = append(d, AgeColumnDoc(g))
 	}
 	return d
 }

@@ -26,6 +26,7 @@ type geometry struct {
 	ww  int  // 64-bit words per sample per window (w/32)
 	nb  int  // checkpoint blocks per window (w/blockSites)
 	hmm bool // windows carry HMM sweep data (bp, checkpoints)
+	age int  // numbers per sample of the age fit's checkpoint (window.ageCk), 0 when off
 }
 
 // windowSites picks W for ns samples and a memory budget: at most 4,096
@@ -66,6 +67,9 @@ type window struct {
 	bp   []uint64  // ns*ww: Viterbi flags, 2 bits a site (see forwardPair); after sweep 2 the path, 1 bit a site (see reversePair)
 	ckF  []float64 // ns*nb*2: forward values (scaled) after the site before each block
 	ckB  []float64 // ns*nb*2: backward values (scaled) at the last site of each block
+	// ageCk holds, per sample, the age fit's forward state at the
+	// window's first site (see ageChrom.forwardWindow).
+	ageCk []float64
 
 	off  int64 // file offset of the spilled data, or -1 while in memory
 	size int64 // bytes of the in-memory buffers (for the budget)
@@ -83,6 +87,9 @@ func (g geometry) alloc(w *window) {
 		w.bp = make([]uint64, g.ns*g.ww)
 		w.ckF = make([]float64, g.ns*g.nb*2)
 		w.ckB = make([]float64, g.ns*g.nb*2)
+	}
+	if g.age > 0 {
+		w.ageCk = make([]float64, g.ns*g.age)
 	}
 	w.off = -1
 	w.size = g.bytes(false)
@@ -104,6 +111,7 @@ func (g geometry) bytes(pl bool) int64 {
 	if pl {
 		b += int64(3 * g.w * g.ns)
 	}
+	b += int64(g.ns*g.age) * 8
 	return b
 }
 
@@ -118,7 +126,7 @@ func (w *window) reset(k, t0 int, cmPrev float64) {
 // drop forgets a window's buffers (its data are on disk, or no longer
 // needed).
 func (w *window) drop() {
-	w.pos, w.freq, w.cm, w.u, w.plSite, w.geno, w.pl, w.bp, w.ckF, w.ckB = nil, nil, nil, nil, nil, nil, nil, nil, nil, nil
+	w.pos, w.freq, w.cm, w.u, w.plSite, w.geno, w.pl, w.bp, w.ckF, w.ckB, w.ageCk = nil, nil, nil, nil, nil, nil, nil, nil, nil, nil, nil
 }
 
 // code returns sample s's call at window site lt.
@@ -153,7 +161,21 @@ func (g geometry) sections(w *window) [][]byte {
 	if w.nPL > 0 {
 		s = append(s, w.pl)
 	}
+	if g.age > 0 {
+		s = append(s, asBytes(w.ageCk))
+	}
 	return s
+}
+
+// ageCkOffset is the offset of w.ageCk within the window's spilled data:
+// the last section.
+func (g geometry) ageCkOffset(w *window) int64 {
+	secs := g.sections(w)
+	var off int64
+	for _, b := range secs[:len(secs)-1] {
+		off += int64(len(b))
+	}
+	return off
 }
 
 // maxWindowSites caps W.

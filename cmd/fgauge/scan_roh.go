@@ -29,6 +29,10 @@ type rohFlags struct {
 	minSites   int
 	minSitesMb float64
 	edgeSites  int
+	noAges     bool
+	ageMargin  float64
+	ageWhole   bool
+	ageShare   float64
 }
 
 // rohHelp is appended to the scan help.
@@ -48,6 +52,23 @@ const rohHelp = `Runs of homozygosity:
   HMM needs no such change.
   generations_back = 100/(2*length_cm) is only a rough expectation: run
   lengths from one ancestor vary widely.
+Age classes (on with the HMM; --no-age-classes turns them off):
+  After the runs are found, each sample's autozygosity is split by age with
+  the multiple-class model of Druet & Gautier 2017 (Mol Ecol 26:5820): eight
+  autozygous classes with rates R_k = 4, 8, ..., 512 per Morgan (segments of
+  mean 100/R_k cM) and one non-autozygous class, mixing proportions fitted
+  per sample and chromosome by EM. Class k stands for common ancestors about
+  G = R_k/2 generations back (G = 2, 4, ..., 256). samples.tsv gains
+  f_within_<G>g: the expected share of the covered length autozygous from
+  ancestors at most G generations back, i.e. an inbreeding coefficient whose
+  base population lies G generations back, so it grows with G. runs.tsv
+  gains each run's most probable class (age_class_generations) and its mean
+  posterior (age_class_posterior). By default the model is fitted in
+  windows around the runs (--age-margin-cm on each side) and everything
+  outside them counts as non-autozygous, so the older classes see only the
+  old sharing next to runs; --age-whole-chromosome fits every site (about
+  30 times the cost of the two-state detector). The rules detector writes
+  NA for them.
   Caution: F_ROH and runs describe the genotyped data; they are not on their
   own a basis for mating, culling or clinical decisions about consanguinity,
   which belong to licensed practitioners under local regulations.
@@ -88,6 +109,14 @@ func addROHFlags(fs *flag.FlagSet) *rohFlags {
 		"rules: minimum density of a run, in sites per Mb of its length")
 	fs.IntVar(&f.edgeSites, "rules-edge-hom-sites", d.Rules.EdgeHomSites,
 		"rules: homozygous calls needed between a tolerated heterozygote and the run's end, else the run stops before it (0: off)")
+	fs.BoolVar(&f.noAges, "no-age-classes", false,
+		"skip the age classes (no f_within_<G>g columns, no age_class_* columns in runs.tsv)")
+	fs.Float64Var(&f.ageMargin, "age-margin-cm", d.AgeMarginCM,
+		"age classes: cM added on both sides of each run to make the windows the model is fitted in")
+	fs.BoolVar(&f.ageWhole, "age-whole-chromosome", false,
+		"age classes: fit on whole chromosomes instead of windows around runs (slower; also sees autozygosity the detector missed)")
+	fs.Float64Var(&f.ageShare, "age-whole-share", d.AgeWholeShare,
+		"age classes: a sample whose windows cover at least this share of a chromosome is fitted on the whole chromosome (0: never); repairs the underestimate of heavily inbred animals at up to 1/share times the cost")
 	return f
 }
 
@@ -108,6 +137,12 @@ func (f *rohFlags) config() (*roh.Config, error) {
 	c.MaxGapKB = f.maxGapKB
 	c.Rules = roh.Rules{MaxHet: f.maxHet, MaxMissing: f.maxMissing, MinKB: f.minKB, MinSites: f.minSites, MinSitesPerMb: f.minSitesMb,
 		EdgeHomSites: f.edgeSites}
+	if f.noAges {
+		c.Ages = nil
+	}
+	c.AgeMarginCM = f.ageMargin
+	c.AgeWholeChromosome = f.ageWhole
+	c.AgeWholeShare = f.ageShare
 	c.Classes = nil
 	for _, s := range strings.Split(f.classes, ",") {
 		if s = strings.TrimSpace(s); s == "" {

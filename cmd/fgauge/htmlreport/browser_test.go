@@ -72,7 +72,7 @@ func TestBrowserRendersReport(t *testing.T) {
 	checkHeadlines(t, dir, dom)
 
 	// every plot rendered, with at least one SVG path per data mark
-	want := map[string]bool{"fig_estimators": true, "fig_roh_classes": true, "fig_run_lengths": true, "fig_painting": true,
+	want := map[string]bool{"fig_estimators": true, "fig_roh_classes": true, "fig_age_classes": true, "fig_run_lengths": true, "fig_painting": true,
 		"fig_hwe_qq": true, "fig_f_site": true, "fig_pop_fis": true, "fig_pop_fst": true, "fig_quality": true}
 	for _, m := range reFigure.FindAllStringSubmatch(dom, -1) {
 		id, body := m[1], m[5]

@@ -30,8 +30,8 @@ func TestDemoScanSnapshot(t *testing.T) {
 	s := string(b)
 	checkHeadlines(t, dir, s)
 	figs := reFigure.FindAllStringSubmatch(s, -1)
-	if len(figs) != 9 {
-		t.Errorf("%d figures, want 9", len(figs))
+	if len(figs) != 10 {
+		t.Errorf("%d figures, want 10", len(figs))
 	}
 	for _, m := range figs {
 		if strings.Contains(m[5], `data-empty="1"`) || m[3] == "0" {

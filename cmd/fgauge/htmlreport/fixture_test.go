@@ -29,7 +29,8 @@ type fixtureOpts struct {
 var fixtureSampleHeader = []string{"sample", "population", "sites_called", "n_hom_ref", "n_het", "n_hom_alt", "n_missing", "n_haploid",
 	"call_rate", "het_rate", "f_hom", "f_grm", "f_excess_hom", "f_uniting_gametes", "f_vanraden",
 	"polymorphic_sites_called", "homozygous_share", "homozygous_share_under_hwe", "flags", "n_runs", "roh_total_bp", "f_roh", "f_roh_gt_1mb", "f_roh_gt_2mb",
-	"f_roh_gt_4mb", "f_roh_gt_8mb", "f_roh_gt_16mb", "f_pedigree"}
+	"f_roh_gt_4mb", "f_roh_gt_8mb", "f_roh_gt_16mb", "f_within_2g", "f_within_4g", "f_within_8g", "f_within_16g",
+	"f_within_32g", "f_within_64g", "f_within_128g", "f_within_256g", "f_pedigree"}
 
 var fixtureChroms = []struct {
 	name string
@@ -124,6 +125,11 @@ func writeFixture(t testing.TB, dir string, o fixtureOpts) []string {
 			"flags": flags, "n_runs": strconv.Itoa(nRuns), "roh_total_bp": g(total), "f_roh": g(froh),
 			"f_roh_gt_1mb": g(cls(1)), "f_roh_gt_2mb": g(cls(2)), "f_roh_gt_4mb": g(cls(4)), "f_roh_gt_8mb": g(cls(8)),
 			"f_roh_gt_16mb": g(cls(16)), "f_pedigree": g(math.Max(0, froh-0.01+0.02*rng.NormFloat64())), "unknown_extra_column": "zzz",
+		}
+		// age classes: cumulative shares growing with G to a bit above
+		// F_ROH (no random draws, so the other columns keep their values)
+		for _, gen := range []int{2, 4, 8, 16, 32, 64, 128, 256} {
+			vals["f_within_"+strconv.Itoa(gen)+"g"] = g(1.1 * froh * (1 - math.Pow(0.5, float64(gen)/8)))
 		}
 		if i == 1 {
 			vals["f_hom"] = "NA"

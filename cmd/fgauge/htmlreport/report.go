@@ -110,7 +110,7 @@ type sampleRowView struct {
 }
 
 type figures struct {
-	Estimators, Classes, RunLengths, Painting, QQ, FSite, PopFIS, FST, Quality *figure
+	Estimators, Classes, Ages, RunLengths, Painting, QQ, FSite, PopFIS, FST, Quality *figure
 }
 
 type strTable struct {
@@ -172,6 +172,7 @@ type reportView struct {
 	SampleTableNote string
 	PageDir         bool
 	Unknown         []string
+	AgeMeans        []ageMean  // cohort mean per age band; nil without age classes
 	Depth           *depthView // when run.json has a depth section
 	Sex             *sexView   // nil without the sex columns
 }
@@ -235,6 +236,7 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 		v.Command = shellJoin(append([]string{"fgauge"}, cl[1:]...))
 	}
 	v.Unknown = c.unknown
+	v.AgeMeans = c.ageMeans()
 	if dp := d.info.Depth; dp != nil {
 		v.Depth = &depthView{Mean: fmtG(float64(dp.Mean)), Source: dp.Source, Threshold: fmtG(dp.LowThreshold),
 			OneAllele: fmtPct(float64(dp.HetOneAlleleRate)), Low: dp.Low, HasLikelihoods: dp.RecordsWithLikelihoods > 0}
@@ -245,6 +247,7 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 	}{
 		{&v.Fig.Estimators, c.figEstimators},
 		{&v.Fig.Classes, c.figClasses},
+		{&v.Fig.Ages, c.figAges},
 		{&v.Fig.RunLengths, c.figRunLengths},
 		{&v.Fig.Painting, c.figPainting},
 		{&v.Fig.QQ, c.figQQ},

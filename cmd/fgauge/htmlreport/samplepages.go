@@ -43,6 +43,7 @@ type sampleView struct {
 	Basics          []namedCell
 	Ests            []estView
 	Classes         []namedCell
+	Ages            []ageView // autozygosity by age band; nil without age classes
 	Pedigree        *pedigreeView
 	Flags           []flagView
 	Runs            []runView
@@ -289,6 +290,7 @@ func (c *cohort) sampleView(i int, stem string, g genomeLayout, cr map[string]ra
 	for _, cl := range c.classes {
 		v.Classes = append(v.Classes, namedCell{cl.Col, "runs of at least " + fmtMb(cl.MinMb), newCell(c.col(cl.Col)[i])})
 	}
+	v.Ages = c.sampleAges(i)
 	if _, ok := c.cols["f_pedigree"]; ok {
 		ped := c.col("f_pedigree")[i]
 		gen := c.col("f_roh")[i]

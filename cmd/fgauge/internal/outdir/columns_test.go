@@ -35,7 +35,7 @@ func TestColumnsDeclareHeaders(t *testing.T) {
 		Sex: stats.SexConfig{Given: []sexcheck.Sex{sexcheck.Male}}})
 	tot.Sex.Sites.X = 1
 	h, _ := tot.SampleTable()
-	rr := &roh.Result{Classes: roh.DefaultConfig().Classes, Samples: []string{"a"}}
+	rr := &roh.Result{Classes: roh.DefaultConfig().Classes, Samples: []string{"a"}, AgeRates: roh.DefaultAgeConfig().Rates}
 	h2, _ := rr.SampleTable()
 	h = append(append(h, h2...), PedigreeColumn.Name)
 	if got, want := strings.Join(byFile["samples.tsv"], "\t"), strings.Join(h, "\t"); got != want {

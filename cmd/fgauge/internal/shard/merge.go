@@ -229,7 +229,8 @@ func combine(ls []loadedState, cfg *MergeConfig, mem *runsummary.Memory) (*merge
 func combineROH(ls []loadedState, cfg *MergeConfig, mem *runsummary.Memory) (*roh.Result, error) {
 	f := ls[0].st
 	r := &roh.Result{Method: f.ROH.Method, Samples: f.ROH.Samples, Classes: f.ROH.Classes,
-		GenotypeError: f.ROH.GenotypeError, CMPerMB: f.ROH.CMPerMB, Fit: f.ROH.Fit, Excluded: map[string]int64{}}
+		GenotypeError: f.ROH.GenotypeError, CMPerMB: f.ROH.CMPerMB, Fit: f.ROH.Fit, Excluded: map[string]int64{},
+		AgeRates: f.ROH.AgeRates, AgeMarginCM: f.ROH.AgeMarginCM, AgeWhole: f.ROH.AgeWhole, AgeWholeShare: f.ROH.AgeWholeShare}
 	var pieceOrder []string
 	pieces := map[string][]roh.PieceRef{}
 	for _, l := range ls {
