@@ -83,3 +83,18 @@ func FuzzParseDesignAndChromosomes(f *testing.F) {
 		}
 	})
 }
+
+// BenchmarkGeneDropAges: the same gene drop with ages recorded and
+// ancestral epochs (lineage tracing of every autozygous stretch).
+func BenchmarkGeneDropAges(b *testing.B) {
+	cfg := benchConfig()
+	cfg.NoSites = true
+	cfg.Replicates = 20
+	cfg.AncestralEpochs = []Epoch{{16, 20, 0.3}, {64, 10, 0.3}, {256, 5, 0.3}}
+	b.ReportAllocs()
+	for i := 0; i < b.N; i++ {
+		if _, err := Run(cfg); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -91,6 +91,13 @@ type Config struct {
 	// NoSites skips sites and genotypes: only the identity-by-descent
 	// truth is simulated (fast, for gene-drop checks).
 	NoSites bool
+	// AncestralEpochs adds layers of old shared ancestry behind the
+	// founders (see Epoch); it changes the founder mosaics and implies
+	// Ages. Empty by default (outputs as without it).
+	AncestralEpochs []Epoch
+	// Ages records the common ancestor of every autozygous stretch
+	// (Result.AgedSegments, Result.Ages; see AgedSegment).
+	Ages bool
 
 	// Pedigree to drop genomes through; Designs are built-in pedigrees
 	// added to it. At least one of them is needed.
@@ -149,6 +156,9 @@ func (c *Config) normalize() error {
 		return fmt.Errorf("%w: minimum MAF %v outside [0, 0.5)", ErrConfig, c.MinMAF)
 	case c.Depth < 0 || c.ReadError < 0 || c.ReadError >= 0.5:
 		return fmt.Errorf("%w: depth must be >= 0 and read error in [0, 0.5)", ErrConfig)
+	}
+	if err := c.checkEpochs(); err != nil {
+		return err
 	}
 	var genome float64
 	for _, ch := range c.Chromosomes {

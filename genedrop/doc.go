@@ -19,6 +19,10 @@
 //     or a supplied piecewise-linear map (chrom, pos, cM).
 //   - Observation: genotype error and missing rates, or low-depth reads
 //     with phred-scaled genotype likelihoods (PL).
+//   - Optional truth (ages.go, coancestry.go): ancestral epochs that give
+//     founders old shared stretches of controlled age (Epoch), the common
+//     ancestor and age of every autozygous stretch (AgedSegment,
+//     SampleAges), and the realized coancestry of pairs (PairTruth).
 //
 // Run is deterministic for a given Config.Seed. Results stay in memory
 // (Result) and are written by WriteVCF, WriteVCFBGZF and the truth writers.

@@ -87,3 +87,55 @@ func ExampleWriteSamplesTruth() {
 	// sample	replicate	design	class	f_pedigree	f_realized	autozygous_bp	n_segments
 	// half_sib_r1_focal focal 0.125
 }
+
+// With Ages, every autozygous stretch carries its common ancestor and age;
+// Result.Ages splits each animal's autozygosity by age.
+func ExampleAgedSegment() {
+	d, _ := genedrop.ParseDesign("first_cousin")
+	res, err := genedrop.Run(genedrop.Config{
+		Seed:        3,
+		Chromosomes: []genedrop.Chromosome{{Name: "1", LengthBP: 300_000_000, LengthCM: 300}},
+		Designs:     []genedrop.Design{d},
+		Replicates:  20,
+		NoSites:     true,
+		Ages:        true,
+	})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	ages := map[float64]bool{}
+	for _, g := range res.AgedSegments {
+		ages[g.Generations()] = true
+	}
+	fmt.Println(ages)
+	// Output: map[3:true]
+}
+
+// Coancestry gives the realized coancestry of two simulated animals: here
+// a sire and his daughter, whose coancestry is 1/4 whatever the meioses.
+func ExampleResult_Coancestry() {
+	d, _ := genedrop.ParseDesign("parent_offspring")
+	res, err := genedrop.Run(genedrop.Config{Seed: 4, Designs: []genedrop.Design{d}, NoSites: true})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	c, err := res.Coancestry("parent_offspring_r1_sire", "parent_offspring_r1_daughter")
+	fmt.Println(c, err)
+	// Output: 0.25 <nil>
+}
+
+func ExampleParseEpochs() {
+	eps, err := genedrop.ParseEpochs("16:20:0.3,64:10:0.3,256:5:0.3")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	var f float64
+	for _, e := range eps {
+		f += e.ExpectedF()
+	}
+	fmt.Printf("%d epochs, expected ancient F of a founder %.4f\n", len(eps), f)
+	// Output: 3 epochs, expected ancient F of a founder 0.0315
+}

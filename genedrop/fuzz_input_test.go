@@ -47,3 +47,30 @@ func FuzzParseDesign(f *testing.F) {
 		}
 	})
 }
+
+// FuzzParseEpochs: any accepted epoch list has positive sizes and shares
+// summing to at most 1; rejections wrap ErrConfig.
+func FuzzParseEpochs(f *testing.F) {
+	for _, s := range []string{"16:20:0.3,64:10:0.3,256:5:0.3", "8:1:1", "8:10", "0:1:0.5", "8:10:NaN", "8:10:0.7,9:9:0.7", ""} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		es, err := ParseEpochs(s)
+		if err != nil {
+			if !errors.Is(err, ErrConfig) {
+				t.Fatalf("error %v does not wrap ErrConfig", err)
+			}
+			return
+		}
+		var sum float64
+		for _, e := range es {
+			if e.Generations < 1 || e.Haplotypes < 1 || !(e.Share > 0 && e.Share <= 1) {
+				t.Fatalf("%q accepted as %+v", s, e)
+			}
+			sum += e.Share
+		}
+		if sum > 1+1e-9 {
+			t.Fatalf("%q accepted with shares summing to %v", s, sum)
+		}
+	})
+}

@@ -67,12 +67,22 @@ type Result struct {
 	Pedigree    *pedigree.Pedigree // the pedigree used (with replicates)
 	Samples     []SampleTruth      // in pedigree order (parents first), = VCF order
 	Segments    []Segment          // sorted by sample, chrom, start
+	// AgedSegments (only with Config.Ages or AncestralEpochs): autozygous
+	// stretches with one common ancestor each, pedigree and ancestral,
+	// sorted by sample, chrom, start; Ages is indexed like Samples.
+	AgedSegments []AgedSegment
+	Ages         []SampleAges
 
 	sites []siteSet
 	// haps[i][c][h]: haplotype h (0 from sire, 1 from dam) of animal i on chromosome c.
 	haps [][][2][]seg
 	// founders[label][c]: mosaic of ancestral haplotypes for founder copy label.
 	founders [][][]ancSeg
+	// origin[i][c][h]: which copy of the parent (Label 0 or 1) each piece
+	// of haplotype h came from (only when ages are recorded).
+	origin [][][2][]seg
+	// epochs[label][c]: ancestral epoch pieces of founder copy label.
+	epochs [][][]epochPiece
 }
 
 type ancSeg struct {
@@ -108,13 +118,18 @@ func Run(cfg Config) (*Result, error) {
 
 	dropRNG := rand.New(rand.NewPCG(cfg.Seed, 0x9e3779b97f4a7c15))
 	res.geneDrop(dropRNG)
+	if len(cfg.AncestralEpochs) > 0 {
+		res.makeEpochPieces(rand.New(rand.NewPCG(cfg.Seed, 0x2545f4914f6cdd1d)))
+	}
 
 	if !cfg.NoSites {
 		siteRNG := rand.New(rand.NewPCG(cfg.Seed, 0x5851f42d4c957f2d))
 		res.makeSites(siteRNG)
 	}
 	founderRNG := rand.New(rand.NewPCG(cfg.Seed, 0x14057b7ef767814f))
-	if !cfg.NoSites {
+	if !cfg.NoSites && len(cfg.AncestralEpochs) > 0 {
+		res.makeEpochMosaics(founderRNG)
+	} else if !cfg.NoSites {
 		res.makeFounderMosaics(founderRNG)
 	}
 
@@ -141,6 +156,9 @@ func Run(cfg Config) (*Result, error) {
 		}
 		st.FRealized = float64(st.AutozygousBP) / float64(genomeBP)
 		res.Samples[i] = st
+	}
+	if cfg.agesOn() {
+		res.recordAges()
 	}
 	return res, nil
 }
@@ -191,9 +209,16 @@ func (r *Result) geneDrop(rng *rand.Rand) {
 	n := p.Len()
 	nc := len(r.Chromosomes)
 	r.haps = make([][][2][]seg, n)
+	ages := r.Config.agesOn()
+	if ages {
+		r.origin = make([][][2][]seg, n)
+	}
 	var label int32
 	for i := 0; i < n; i++ {
 		r.haps[i] = make([][2][]seg, nc)
+		if ages {
+			r.origin[i] = make([][2][]seg, nc)
+		}
 		parents := [2]int{p.Sire(i), p.Dam(i)}
 		for h, par := range parents {
 			if par < 0 {
@@ -205,7 +230,11 @@ func (r *Result) geneDrop(rng *rand.Rand) {
 			}
 			for c := 0; c < nc; c++ {
 				ph := r.haps[par][c]
-				r.haps[i][c][h] = gamete(rng, ph[0], ph[1], r.Chromosomes[c].LengthCM)
+				var orig *[]seg
+				if ages {
+					orig = &r.origin[i][c][h]
+				}
+				r.haps[i][c][h] = gamete(rng, ph[0], ph[1], r.Chromosomes[c].LengthCM, orig)
 			}
 		}
 	}
@@ -238,8 +267,9 @@ func HaldaneR(d float64) float64 { return (1 - math.Exp(-2*d)) / 2 }
 // HaldaneD inverts HaldaneR: d = -ln(1 - 2r) / 2 Morgans, for 0 <= r < 1/2.
 func HaldaneD(r float64) float64 { return -math.Log(1-2*r) / 2 }
 
-// gamete recombines the two parental haplotypes a and b.
-func gamete(rng *rand.Rand, a, b []seg, lengthCM float64) []seg {
+// gamete recombines the two parental haplotypes a and b. With orig != nil
+// it also records which of them (Label 0 for a, 1 for b) each piece copies.
+func gamete(rng *rand.Rand, a, b []seg, lengthCM float64, orig *[]seg) []seg {
 	var xbuf [16]float64
 	xs := Crossovers(rng, lengthCM, xbuf[:0])
 	src := [2][]seg{a, b}
@@ -272,6 +302,9 @@ func gamete(rng *rand.Rand, a, b []seg, lengthCM float64) []seg {
 			if s.End >= end {
 				break
 			}
+		}
+		if orig != nil {
+			*orig = append(*orig, seg{End: end, Label: int32(cur)})
 		}
 		cur ^= 1
 	}
@@ -323,25 +356,9 @@ func (r *Result) autozygous(i, c int) []Segment {
 	inRun := false
 	runStart := 0.0
 	flush := func(end float64) {
-		ch := r.Chromosomes[c]
-		s := int64(math.Floor(r.cmToBP(c, runStart))) + 1
-		e := int64(math.Floor(r.cmToBP(c, end)))
-		if end >= ch.LengthCM {
-			e = ch.LengthBP
+		if sg, ok := r.newSegment(i, c, runStart, end); ok {
+			out = append(out, sg)
 		}
-		s = max(s, 1)
-		e = min(e, ch.LengthBP)
-		if e < s {
-			return
-		}
-		sg := Segment{Sample: i, Chrom: c, Start: s, End: e, StartCM: runStart, EndCM: end}
-		if !r.Config.NoSites && r.sites != nil {
-			pos := r.sites[c].pos
-			lo := sort.Search(len(pos), func(k int) bool { return pos[k] >= s })
-			hi := sort.Search(len(pos), func(k int) bool { return pos[k] > e })
-			sg.NSites = hi - lo
-		}
-		out = append(out, sg)
 	}
 	for ja < len(a) && jb < len(b) {
 		end := math.Min(a[ja].End, b[jb].End)
@@ -364,6 +381,31 @@ func (r *Result) autozygous(i, c int) []Segment {
 		flush(start)
 	}
 	return out
+}
+
+// newSegment gives the 1-based inclusive bp bounds of [startCM, endCM) on
+// chromosome c of animal i and the sites inside; false when no whole base
+// falls inside.
+func (r *Result) newSegment(i, c int, startCM, endCM float64) (Segment, bool) {
+	ch := r.Chromosomes[c]
+	s := int64(math.Floor(r.cmToBP(c, startCM))) + 1
+	e := int64(math.Floor(r.cmToBP(c, endCM)))
+	if endCM >= ch.LengthCM {
+		e = ch.LengthBP
+	}
+	s = max(s, 1)
+	e = min(e, ch.LengthBP)
+	if e < s {
+		return Segment{}, false
+	}
+	sg := Segment{Sample: i, Chrom: c, Start: s, End: e, StartCM: startCM, EndCM: endCM}
+	if !r.Config.NoSites && r.sites != nil {
+		pos := r.sites[c].pos
+		lo := sort.Search(len(pos), func(k int) bool { return pos[k] >= s })
+		hi := sort.Search(len(pos), func(k int) bool { return pos[k] > e })
+		sg.NSites = hi - lo
+	}
+	return sg, true
 }
 
 // makeSites draws site positions, alleles and the ancestral pool.

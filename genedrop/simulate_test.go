@@ -145,7 +145,7 @@ func TestHaldaneRoundTrip(t *testing.T) {
 		x1 := x0 + d*100
 		rec := 0
 		for k := 0; k < meioses; k++ {
-			g := gamete(rng, a, b, 300)
+			g := gamete(rng, a, b, 300, nil)
 			if at(g, x0) != at(g, x1) {
 				rec++
 			}

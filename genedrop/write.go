@@ -10,8 +10,8 @@ import (
 	"fgauge/vcfscan"
 )
 
-// header returns the VCF header text.
-func (r *Result) header() []byte {
+// header returns the VCF header text (truth: of the true genotypes).
+func (r *Result) header(truth bool) []byte {
 	cfg := &r.Config
 	b := []byte("##fileformat=VCFv4.3\n")
 	b = fmt.Appendf(b, "##simulation=<tool=fgauge_simulate,seed=%d,site_spacing_bp=%s,ancestral_haplotypes=%d,ancestral_segment_cm=%s,genotype_error=%s,missing_rate=%s,depth=%s>\n",
@@ -22,7 +22,9 @@ func (r *Result) header() []byte {
 	}
 	b = append(b, "##INFO=<ID=POOL_AF,Number=A,Type=Float,Description=\"ALT allele frequency in the simulated ancestral haplotype pool\">\n"...)
 	b = append(b, "##FORMAT=<ID=GT,Number=1,Type=String,Description=\"Genotype\">\n"...)
-	if cfg.Depth > 0 {
+	if truth {
+		b = append(b, "##truth=<description=\"true genotypes, before read sampling and calling\">\n"...)
+	} else if cfg.Depth > 0 {
 		b = append(b, "##FORMAT=<ID=DP,Number=1,Type=Integer,Description=\"Simulated read depth\">\n"...)
 		b = append(b, "##FORMAT=<ID=PL,Number=G,Type=Integer,Description=\"Phred-scaled genotype likelihoods\">\n"...)
 	}
@@ -38,8 +40,9 @@ func ftoa(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 
 var gtText = [...]string{vcfscan.HomRef: "0/0", vcfscan.Heterozygous: "0/1", vcfscan.HomAlt: "1/1", vcfscan.Missing: "./."}
 
-// appendRecord appends one VCF data line for s.
-func (r *Result) appendRecord(b []byte, s *Site) []byte {
+// appendRecord appends one VCF data line for s (truth: its true genotypes,
+// GT only).
+func (r *Result) appendRecord(b []byte, s *Site, truth bool) []byte {
 	b = append(b, r.Chromosomes[s.Chrom].Name...)
 	b = append(b, '\t')
 	b = strconv.AppendInt(b, s.Pos, 10)
@@ -47,13 +50,17 @@ func (r *Result) appendRecord(b []byte, s *Site) []byte {
 	b = append(b, s.Ref, '\t', s.Alt)
 	b = append(b, "\t.\tPASS\tPOOL_AF="...)
 	b = strconv.AppendFloat(b, s.PoolFreq, 'g', 6, 64)
-	depth := s.DP != nil
+	depth := s.DP != nil && !truth
+	calls := s.GT
+	if truth {
+		calls = s.True
+	}
 	if depth {
 		b = append(b, "\tGT:DP:PL"...)
 	} else {
 		b = append(b, "\tGT"...)
 	}
-	for i, g := range s.GT {
+	for i, g := range calls {
 		b = append(b, '\t')
 		b = append(b, gtText[g]...)
 		if depth {
@@ -78,12 +85,12 @@ func (r *Result) appendRecord(b []byte, s *Site) []byte {
 // WriteVCF writes the simulated calls as plain VCF text.
 func WriteVCF(w io.Writer, r *Result) error {
 	bw := bufio.NewWriterSize(w, 1<<16)
-	if _, err := bw.Write(r.header()); err != nil {
+	if _, err := bw.Write(r.header(false)); err != nil {
 		return err
 	}
 	var line []byte
 	err := r.ForEachSite(func(s *Site) error {
-		line = r.appendRecord(line[:0], s)
+		line = r.appendRecord(line[:0], s, false)
 		_, err := bw.Write(line)
 		return err
 	})
@@ -97,7 +104,15 @@ func WriteVCF(w io.Writer, r *Result) error {
 // tabix index to path + ".tbi" (hts-specs, "The Tabix index file
 // format"), both through vcfscan (BGZFWriter, TabixWriter). Output is
 // byte-identical for the same Config.
-func WriteVCFBGZF(path string, r *Result) (err error) {
+func WriteVCFBGZF(path string, r *Result) error { return r.writeVCFBGZF(path, false) }
+
+// WriteTruthVCFBGZF writes the true genotypes (GT only, before read
+// sampling, calling, errors and missing calls) like WriteVCFBGZF: the
+// truth against which estimators on low-depth calls or likelihoods are
+// checked, by scanning both files.
+func WriteTruthVCFBGZF(path string, r *Result) error { return r.writeVCFBGZF(path, true) }
+
+func (r *Result) writeVCFBGZF(path string, truth bool) (err error) {
 	f, err := os.Create(path)
 	if err != nil {
 		return err
@@ -110,7 +125,7 @@ func WriteVCFBGZF(path string, r *Result) (err error) {
 	bw := bufio.NewWriterSize(f, 1<<20)
 	bg := vcfscan.NewBGZFWriter(bw, 6)
 	defer bg.Close()
-	bg.Write(r.header())
+	bg.Write(r.header(truth))
 	if err := bg.Flush(); err != nil {
 		return err
 	}
@@ -121,7 +136,7 @@ func WriteVCFBGZF(path string, r *Result) (err error) {
 		if err != nil {
 			return err
 		}
-		line = r.appendRecord(line[:0], s)
+		line = r.appendRecord(line[:0], s, truth)
 		if _, err := bg.Write(line); err != nil {
 			return err
 		}
@@ -152,12 +167,17 @@ func WriteVCFBGZF(path string, r *Result) (err error) {
 }
 
 // WriteSamplesTruth writes one line per sample: sample replicate design
-// class f_pedigree f_realized autozygous_bp n_segments.
+// class f_pedigree f_realized autozygous_bp n_segments, followed with ages
+// by the truth_samples.tsv columns of TruthColumns.
 func WriteSamplesTruth(w io.Writer, r *Result) error {
 	bw := bufio.NewWriter(w)
-	bw.WriteString("sample\treplicate\tdesign\tclass\tf_pedigree\tf_realized\tautozygous_bp\tn_segments\n")
+	head := []byte("sample\treplicate\tdesign\tclass\tf_pedigree\tf_realized\tautozygous_bp\tn_segments")
+	if r.Ages != nil {
+		head = appendAgeHeader(head)
+	}
+	bw.Write(append(head, '\n'))
 	var b []byte
-	for _, s := range r.Samples {
+	for i, s := range r.Samples {
 		b = append(b[:0], s.ID...)
 		b = append(b, '\t')
 		b = strconv.AppendInt(b, int64(s.Replicate), 10)
@@ -173,6 +193,9 @@ func WriteSamplesTruth(w io.Writer, r *Result) error {
 		b = strconv.AppendInt(b, s.AutozygousBP, 10)
 		b = append(b, '\t')
 		b = strconv.AppendInt(b, int64(s.NSegments), 10)
+		if r.Ages != nil {
+			b = r.appendAgeColumns(b, i)
+		}
 		b = append(b, '\n')
 		bw.Write(b)
 	}
@@ -181,7 +204,12 @@ func WriteSamplesTruth(w io.Writer, r *Result) error {
 
 // WriteSegmentsTruth writes every autozygous segment: sample chrom start
 // end length_bp start_cm end_cm n_sites (start and end 1-based inclusive).
+// With ages it writes Result.AgedSegments instead, with the
+// truth_segments.tsv columns of TruthColumns appended.
 func WriteSegmentsTruth(w io.Writer, r *Result) error {
+	if r.Ages != nil {
+		return writeAgedSegments(w, r)
+	}
 	bw := bufio.NewWriter(w)
 	bw.WriteString("sample\tchrom\tstart\tend\tlength_bp\tstart_cm\tend_cm\tn_sites\n")
 	var b []byte

@@ -48,6 +48,13 @@ type Config struct {
 	JackknifeBlockBP int64
 	// MinCallRate flags samples below it (low_call_rate).
 	MinCallRate float64
+	// LikFreqs chooses the site frequencies of f_lik.
+	LikFreqs LikFreqSource
+	// NoLikelihoods leaves PL/GL and DP unused: no f_lik, alt_freq_lik
+	// or depth (and He, f_site from hard calls).
+	NoLikelihoods bool
+	// Sex is the treatment of the sex chromosomes (zero: none).
+	Sex SexConfig
 }
 
 // DefaultJackknifeBlockBP is the default jackknife window: 5 Mb.
@@ -71,6 +78,12 @@ func (c *Config) Validate() error {
 	}
 	if c.Freqs == FreqPanel && c.Panel == nil {
 		return errors.New("stats: panel frequencies need a panel")
+	}
+	if c.LikFreqs < 0 || int(c.LikFreqs) >= len(LikFreqNames) {
+		return fmt.Errorf("stats: f_lik frequency source %d out of range", c.LikFreqs)
+	}
+	if c.Sex.Given != nil && len(c.Sex.Given) != len(c.Samples) {
+		return fmt.Errorf("stats: %d given sexes for %d samples", len(c.Sex.Given), len(c.Samples))
 	}
 	if c.JackknifeBlockBP < 0 {
 		return fmt.Errorf("stats: jackknife block %d bp: must be positive", c.JackknifeBlockBP)

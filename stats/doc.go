@@ -14,6 +14,9 @@
 // Methods implemented, each cited where it is coded:
 //   - exact Hardy-Weinberg test (Wigginton, Cutler & Abecasis 2005) with
 //     mid-p (Graffelman & Moreno 2013) and one-sided variants;
+//   - exact X-chromosomal Hardy-Weinberg test (Graffelman & Weir 2016),
+//     over a per-site tally of female genotypes and male alleles (XTally);
+//     sex inference and pseudo-autosomal regions live in stats/sexcheck;
 //   - expected heterozygosity with Nei's (1978) small-sample correction;
 //   - Weir & Cockerham (1984) F-statistics with a block jackknife;
 //   - per-sample F estimators of Yang et al. (2011) and VanRaden (2008),

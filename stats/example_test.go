@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"fgauge/stats"
+	"fgauge/stats/sexcheck"
 	"fgauge/vcfscan"
 )
 
@@ -45,10 +46,10 @@ func ExampleWorker() {
 	fmt.Print(sites.String())
 	fmt.Println(freqs)
 	// Output:
-	// chrom	pos	ref	alt	n_hom_ref	n_het	n_hom_alt	n_missing	n_haploid	alt_freq	maf	call_rate	het_observed	het_expected	f_site	hwe_p	hwe_midp	hwe_p_fewer_het	hwe_p_more_het
-	// chr1	100	A	G	1	1	1	0	0	0.5	0.5	1	0.3333333333333333	0.6	0.4444444444444444	1	0.7	0.6000000000000001	1
-	// chr1	200	A	G	2	1	0	0	0	0.16666666666666666	0.16666666666666666	1	0.3333333333333333	0.3333333333333333	0	1	0.5	1	1
-	// chr1	300	A	G	0	1	1	1	0	0.75	0.25	0.6666666666666666	0.5	0.5	0	1	0.5	1	1
+	// chrom	pos	ref	alt	n_hom_ref	n_het	n_hom_alt	n_missing	n_haploid	alt_freq	maf	call_rate	het_observed	het_expected	f_site	hwe_p	hwe_midp	hwe_p_fewer_het	hwe_p_more_het	alt_freq_lik
+	// chr1	100	A	G	1	1	1	0	0	0.5	0.5	1	0.3333333333333333	0.6	0.4444444444444444	1	0.7	0.6000000000000001	1	NA
+	// chr1	200	A	G	2	1	0	0	0	0.16666666666666666	0.16666666666666666	1	0.3333333333333333	0.3333333333333333	0	1	0.5	1	1	NA
+	// chr1	300	A	G	0	1	1	1	0	0.75	0.25	0.6666666666666666	0.5	0.5	0	1	0.5	1	1	NA
 	// [0.5 0.16666666666666666 0.75]
 }
 
@@ -142,4 +143,29 @@ func ExampleHWEChiSq() {
 	r := stats.HWEChiSq(120, 60, 20)
 	fmt.Printf("p=%.4g\n", r.P)
 	// Output: p=0.004678
+}
+
+// Example of the X-chromosomal exact test: 40 females (9 AA, 18 AB,
+// 13 BB) and 30 males (11 A, 19 B). Values as printed by
+// testdata/tools/xhwe_exact.R (base R full enumeration) for these counts.
+func ExampleHWEExactX() {
+	r := stats.HWEExactX(9, 18, 13, 11, 19)
+	fmt.Printf("p=%.4f midp=%.4f deficit=%.4f excess=%.4f\n", r.P, r.MidP, r.Deficit, r.Excess)
+	// Output: p=0.5951 midp=0.5821 deficit=0.3437 excess=0.7649
+}
+
+// An X site of the invented goat cooperative: the worker counts each
+// call by the sample's sex (males hemizygous however coded), then tests.
+func ExampleXTally() {
+	sexes := []sexcheck.Sex{sexcheck.Female, sexcheck.Female, sexcheck.Female, sexcheck.Male, sexcheck.Male, sexcheck.Male}
+	calls := []vcfscan.Geno{vcfscan.HomRef, vcfscan.Heterozygous, vcfscan.HomAlt, vcfscan.HaploidAlt, vcfscan.HomRef, vcfscan.Heterozygous}
+	var x stats.XTally
+	maleHet := make([]int64, len(calls))
+	x.AddCalls(sexes, calls, maleHet)
+	r := x.Row(stats.NewXHWECache(0))
+	fmt.Println(r.Female, r.MaleRef, r.MaleAlt, r.MaleHet, maleHet)
+	fmt.Printf("alt_freq=%.3f p=%.4f\n", r.AltFreq, r.HWE.P)
+	// Output:
+	// [1 1 1] 1 1 1 [0 0 0 0 0 1]
+	// alt_freq=0.500 p=1.0000
 }

@@ -156,16 +156,25 @@ type Totals struct {
 	Blocks    map[BlockKey]*BlockAcc
 	HWETally  HWESummary
 	Freq      FreqCounts
+
+	// LikFreqs is Config.LikFreqs; Lik is the genotype-likelihood state
+	// (f_lik summaries, depth), nil when no record carried PL, GL or DP.
+	LikFreqs LikFreqSource
+	Lik      *LikAcc
+	// Sex holds the sex-check evidence and the count of non-PAR X, Y and
+	// MT sites, which stay out of the per-sample autosomal statistics.
+	Sex SexTotals
 }
 
 func newTotals(cfg *Config) *Totals {
 	t := &Totals{
 		Samples: cfg.Samples, PopOf: cfg.PopOf, PopNames: cfg.PopNames,
 		HWEMethod: cfg.HWEMethod, Freqs: cfg.Freqs, JackknifeBlockBP: cfg.JackknifeBlockBP,
-		MinCallRate: cfg.MinCallRate,
-		PerSample:   make([]SampleAcc, len(cfg.Samples)),
-		Blocks:      map[BlockKey]*BlockAcc{},
-		HWETally:    HWESummary{ChiHist: map[int32]int64{}, PHist: map[int32]int64{}},
+		MinCallRate: cfg.MinCallRate, LikFreqs: cfg.LikFreqs,
+		PerSample: make([]SampleAcc, len(cfg.Samples)),
+		Blocks:    map[BlockKey]*BlockAcc{},
+		HWETally:  HWESummary{ChiHist: map[int32]int64{}, PHist: map[int32]int64{}},
+		Sex:       newSexTotals(cfg),
 	}
 	if t.HWEMethod == "" {
 		t.HWEMethod = "exact"
@@ -197,12 +206,15 @@ func (t *Totals) Merge(o *Totals) error {
 		return fmt.Errorf("stats: merge: sample lists differ: %w", ErrIncompatible)
 	case !slices.Equal(t.PopOf, o.PopOf) || !slices.Equal(t.PopNames, o.PopNames):
 		return fmt.Errorf("stats: merge: populations differ: %w", ErrIncompatible)
-	case t.HWEMethod != o.HWEMethod || t.Freqs != o.Freqs || t.JackknifeBlockBP != o.JackknifeBlockBP:
+	case t.HWEMethod != o.HWEMethod || t.Freqs != o.Freqs || t.JackknifeBlockBP != o.JackknifeBlockBP || t.LikFreqs != o.LikFreqs:
 		return fmt.Errorf("stats: merge: HWE method, frequency source or jackknife block differ: %w", ErrIncompatible)
 	case len(t.Groups) != len(o.Groups):
 		return fmt.Errorf("stats: merge: population groups differ: %w", ErrIncompatible)
 	}
 	t.Sites += o.Sites
+	if err := t.Sex.merge(&o.Sex); err != nil {
+		return err
+	}
 	for i := range t.PerSample {
 		a, b := &t.PerSample[i], &o.PerSample[i]
 		for k := range a.Counts {
@@ -281,6 +293,16 @@ func (t *Totals) Merge(o *Totals) error {
 	for i, v := range of.PanelMet {
 		f.PanelMet[i] |= v
 	}
+	switch {
+	case o.Lik == nil:
+	case t.Lik == nil:
+		t.Lik = NewLikAcc(len(o.Lik.FLik))
+		fallthrough
+	default:
+		if err := t.Lik.Merge(o.Lik); err != nil {
+			return fmt.Errorf("stats: merge: %w: %w", err, ErrIncompatible)
+		}
+	}
 	return nil
 }
 
@@ -299,9 +321,10 @@ func (t *Totals) estimates(i int) sampleEstimates {
 	e.called = a.Counts[0] + a.Counts[1] + a.Counts[2]
 	e.informative = base.Sites - a.Uncalled
 	e.homInformative = e.informative - a.HetInformative
-	// A haploid call is a call for call_rate (a male's X is called, not
-	// missing), though it stays out of every diploid statistic.
-	e.callRate = ratio(float64(e.called+a.Counts[vcfscan.HaploidRef]+a.Counts[vcfscan.HaploidAlt]), float64(t.Sites))
+	// A haploid call is a call for call_rate, though it stays out of every
+	// diploid statistic; non-PAR X, Y and MT sites are not counted at all
+	// (the sex columns describe them).
+	e.callRate = ratio(float64(e.called+a.Counts[vcfscan.HaploidRef]+a.Counts[vcfscan.HaploidAlt]), float64(t.Sites-t.Sex.other()))
 	e.hetRate = ratio(float64(a.Counts[1]), float64(e.called))
 	var sums [nSums]float64
 	for k := range sums {
@@ -351,10 +374,14 @@ const (
 	// FlagEstimatorsDisagree: f_hom > 0.1 while f_uniting_gametes < 0,
 	// or the reverse.
 	FlagEstimatorsDisagree
+	// FlagSexMismatch: given and inferred sex both known and different.
+	FlagSexMismatch
+	// FlagSexNeither: the X (and Y) pattern fits neither sex.
+	FlagSexNeither
 	numFlags = iota
 )
 
-var flagNames = [numFlags]string{"no_calls", "low_call_rate", "het_rate_outlier", "estimators_disagree"}
+var flagNames = [numFlags]string{"no_calls", "low_call_rate", "het_rate_outlier", "estimators_disagree", "sex_mismatch", "sex_fits_neither"}
 
 // Has reports whether every flag of g is set in f.
 func (f SampleFlags) Has(g SampleFlags) bool { return f&g == g }
@@ -397,10 +424,14 @@ type sampleView struct {
 	est   []sampleEstimates
 	band  HetRateBand
 	flags []SampleFlags
+	sex   *SexView // nil without non-PAR X or Y sites
 }
 
 func (t *Totals) view() *sampleView {
 	v := &sampleView{est: make([]sampleEstimates, len(t.PerSample)), flags: make([]SampleFlags, len(t.PerSample))}
+	if t.HasSexCheck() {
+		v.sex = t.Sexes()
+	}
 	// Cohort mean and SD of het_rate for het_rate_outlier (fixed order).
 	var sum, sum2, m float64
 	for i := range t.PerSample {
@@ -436,6 +467,9 @@ func (t *Totals) view() *sampleView {
 		if (e.fHom > 0.1 && e.fUniting < 0) || (e.fUniting > 0.1 && e.fHom < 0) {
 			f |= FlagEstimatorsDisagree
 		}
+		if v.sex != nil {
+			f |= t.sexFlags(v.sex, i)
+		}
 		v.flags[i] = f
 	}
 	return v
@@ -454,12 +488,18 @@ func (t *Totals) CallRate(i int) float64 { return t.estimates(i).callRate }
 // one row per selected sample, in order. The population column is present
 // only with populations ("NA" for unlisted samples).
 func (t *Totals) SampleTable() (header []string, rows [][]string) {
-	if t.PopOf != nil {
-		header = strings.Split(headerLine(FileSamples), "\t")
-	} else {
-		header = strings.Split(headerLine(FileSamples, "population"), "\t")
+	var skip []string
+	if t.PopOf == nil {
+		skip = append(skip, "population")
 	}
 	v := t.view()
+	switch {
+	case v.sex == nil:
+		skip = append(skip, sexColumnNames...)
+	case t.Sex.Given == nil:
+		skip = append(skip, "sex_given")
+	}
+	header = strings.Split(headerLine(FileSamples, skip...), "\t")
 	for i := range t.PerSample {
 		a := &t.PerSample[i]
 		e := &v.est[i]
@@ -475,7 +515,12 @@ func (t *Totals) SampleTable() (header []string, rows [][]string) {
 			itoa(a.Counts[3]), itoa(a.Counts[4]+a.Counts[5]),
 			ftoa(e.callRate), ftoa(e.hetRate),
 			ftoa(e.fHom), ftoa(e.fGRM), ftoa(e.fExcess), ftoa(e.fUniting), ftoa(e.fVanRad),
-			itoa(e.informative), ftoa(e.homShare), ftoa(e.homShareHWE), v.flags[i].String())
+			itoa(e.informative), ftoa(e.homShare), ftoa(e.homShareHWE))
+		row = t.appendLikColumns(row, i)
+		if v.sex != nil {
+			row = append(row, t.sexColumns(v.sex, i)...)
+		}
+		row = append(row, v.flags[i].String())
 		rows = append(rows, row)
 	}
 	return header, rows
@@ -499,4 +544,41 @@ func freqGroups(cfg *Config) ([]int32, []GroupBase) {
 		}
 	}
 	return of, make([]GroupBase, np+1)
+}
+
+// appendLikColumns appends sample i's f_lik, f_lik_se, depth_mean and
+// depth_source (NA without likelihoods or depth).
+func (t *Totals) appendLikColumns(row []string, i int) []string {
+	f := FLik{F: nan, SE: nan}
+	depth, src := nan, DepthNone
+	if t.Lik != nil {
+		f = t.Lik.FLik[i].Estimate()
+		depth, src = t.Lik.Depth[i].Mean()
+	}
+	srcText := numfmt.NA
+	if src != DepthNone {
+		srcText = src.String()
+	}
+	return append(row, ftoa(f.F), ftoa(f.SE), ftoa(depth), srcText)
+}
+
+// FLik returns sample i's f_lik (F NaN without likelihoods).
+func (t *Totals) FLik(i int) FLik {
+	if t.Lik == nil {
+		return FLik{F: nan, SE: nan}
+	}
+	return t.Lik.FLik[i].Estimate()
+}
+
+// CohortDepth returns the cohort's mean depth per call, pooled over
+// samples: from FORMAT DP when any call carried it, else implied by the
+// likelihoods (DepthAcc.Mean); NaN and DepthNone without either.
+func (t *Totals) CohortDepth() (float64, DepthSource) {
+	var all DepthAcc
+	if t.Lik != nil {
+		for i := range t.Lik.Depth {
+			all.Merge(&t.Lik.Depth[i])
+		}
+	}
+	return all.Mean()
 }

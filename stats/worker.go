@@ -6,6 +6,7 @@ import (
 	"math"
 	"strconv"
 
+	"fgauge/stats/sexcheck"
 	"fgauge/vcfscan"
 )
 
@@ -103,18 +104,26 @@ type Worker struct {
 	chromBytes []byte
 	lastBlock  BlockKey
 	block      *BlockAcc
+	lik        likWorker
+
+	// Sex chromosomes (sexsites.go).
+	contig   sexcheck.Contig
+	deferX   bool
+	deferred []Deferred
+	xcache   *XHWECache
 }
 
 // NewWorker returns a Worker for cfg; contigName maps vcfscan chromosome
 // ids to names. cfg must have been validated and must not change.
 func NewWorker(cfg *Config, contigName func(id int) string) *Worker {
-	w := &Worker{cfg: cfg, contigName: contigName, t: newTotals(cfg), lastChrom: -1}
+	w := &Worker{cfg: cfg, contigName: contigName, t: newTotals(cfg), lastChrom: -1, deferX: cfg.Sex.DeferX()}
 	w.cache = newHWECache(cfg.HWEMethod == "chisq", 1<<14)
 	w.sites = newSiteCache(1 << 13)
 	w.nPop = len(cfg.PopNames)
 	if cfg.PopOf == nil {
 		w.nPop = 0
 	}
+	w.initLik()
 	w.tabOf = w.t.GroupOf
 	nt := len(w.t.Base)
 	w.tabs = make([]siteTab, nt)
@@ -133,8 +142,15 @@ func NewWorker(cfg *Config, contigName func(id int) string) *Worker {
 }
 
 // Totals returns the worker's accumulated state (not a copy: stop calling
-// ProcessBatch before using it).
-func (w *Worker) Totals() *Totals { return w.t }
+// ProcessBatch before using it). Its likelihood state (Lik) is the
+// worker's own unless ShareLikelihoods was called: then the caller puts
+// the shared state in the merged totals.
+func (w *Worker) Totals() *Totals {
+	if w.lik.private {
+		w.t.Lik = w.lik.shared.Acc()
+	}
+	return w.t
+}
 
 // ProcessBatch computes the statistics of every record of b in order. For
 // each record it appends its sites.tsv row to sites and its
@@ -143,9 +159,25 @@ func (w *Worker) Totals() *Totals { return w.t }
 // record i (NaN when none), and adds the record's per-sample and
 // per-population contributions to the worker's totals. freqs must have
 // room for len(b.Records) values.
+//
+// Records on non-PAR X and Y and on the mitochondrion take sexRecord
+// instead (see SexConfig); X rows waiting for the sexes are listed by
+// Deferred.
 func (w *Worker) ProcessBatch(b *vcfscan.Batch, sites, popSites *bytes.Buffer, freqs []float64) {
+	w.deferred = w.deferred[:0]
 	for i := range b.Records {
-		freqs[i] = w.record(&b.Records[i], b.Calls(i), sites, popSites)
+		rec := &b.Records[i]
+		w.chrom(rec.ChromID)
+		if w.contig.Kind != sexcheck.Autosome {
+			if k := w.contig.KindAt(rec.Pos); k != sexcheck.Autosome {
+				w.t.Sites++
+				freqs[i] = w.sexRecord(k, i, rec, b.Calls(i), sites)
+				continue
+			}
+		}
+		lf := w.likSite(b, i)
+		freqs[i] = w.record(rec, b.Calls(i), lf, sites, popSites)
+		w.likAdd(b, i, freqs[i])
 	}
 }
 
@@ -154,10 +186,11 @@ func (w *Worker) chrom(id int) {
 		w.lastChrom = id
 		w.chromName = w.contigName(id)
 		w.chromBytes = append(w.chromBytes[:0], w.chromName...)
+		w.contig = w.cfg.Sex.contig(w.chromName)
 	}
 }
 
-func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSites *bytes.Buffer) float64 {
+func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, lf SiteFreq, sites, popSites *bytes.Buffer) float64 {
 	t := w.t
 	cfg := w.cfg
 	w.chrom(rec.ChromID)
@@ -189,16 +222,25 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, sites, popSit
 		cohortP = float64(n1+2*n2) / float64(2*nCalled)
 	}
 
-	// Site statistics and row (cached by counts, see siteCache).
+	// Site statistics and row (cached by counts, see siteCache). With
+	// likelihoods, He and so f_site are taken at the likelihood frequency
+	// (not a function of the counts, so not cached).
 	si := w.site(n0, n1, n2, cnt[vcfscan.HaploidRef]+cnt[vcfscan.HaploidAlt], len(calls))
 	if si.hwe.Computed {
 		t.HWETally.addBinned(&si.hwe, si.pBin, si.chiBin)
 	}
-	if !math.IsNaN(si.fsite) {
-		t.HWETally.FSite.AddSum(si.fsiteFixed)
+	he, fsite, fsiteFixed := si.he, si.fsite, si.fsiteFixed
+	if lf.Samples > 0 {
+		he, fsite = likSiteHet(si.ho, lf)
+		if !math.IsNaN(fsite) {
+			fsiteFixed = fixed(fsite)
+		}
+	}
+	if !math.IsNaN(fsite) {
+		t.HWETally.FSite.AddSum(fsiteFixed)
 		t.HWETally.FSiteN++
 	}
-	w.siteRow(sites, rec, &cnt, si)
+	w.siteRow(sites, rec, &cnt, si, lf, len(calls), cohortP, he, fsite)
 
 	// Populations: per-population rows and sums, WC components.
 	if w.nPop > 0 {
@@ -464,7 +506,7 @@ func (w *Worker) blockFor(pos int64) *BlockAcc {
 	return b
 }
 
-func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64, si *siteInfo) {
+func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64, si *siteInfo, lf SiteFreq, nSel int, p, he, fsite float64) {
 	if sites == nil {
 		return
 	}
@@ -483,14 +525,22 @@ func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64
 	haploid := cnt[vcfscan.HaploidRef] + cnt[vcfscan.HaploidAlt]
 	b = append(b, '\t')
 	b = strconv.AppendInt(b, haploid, 10)
-	b = append(b, w.sites.rows[si.rowOff:si.rowEnd]...)
+	if lf.Samples > 0 {
+		b = appendSiteFloats(b, cnt[vcfscan.HomRef]+cnt[vcfscan.Heterozygous]+cnt[vcfscan.HomAlt], haploid, nSel, p, si.ho, he, fsite, &si.hwe)
+	} else {
+		b = append(b, w.sites.rows[si.rowOff:si.rowEnd]...)
+	}
+	b = appendFloat(b, lf.AltFreq)
+	if w.cfg.Sex.XColumns {
+		b = append(b, xNA...)
+	}
 	b = append(b, '\n')
 	sites.Write(b)
 	w.scratch = b
 }
 
 // appendSiteFloats appends the float columns of a sites.tsv row, from
-// alt_freq to hwe_p_more_het, each after a tab: all are functions of the
+// alt_freq to hwe_p_more_het (alt_freq_lik follows), each after a tab: all are functions of the
 // site's diploid counts (called of them), its haploid calls (call_rate
 // counts them as calls) and the number of selected samples nSel, so
 // siteCache keeps them formatted under that key.
@@ -521,10 +571,23 @@ func appendFloat(b []byte, x float64) []byte {
 	return numfmt.AppendFloat(append(b, '\t'), x)
 }
 
-// SitesHeader is the header line of sites.tsv (no trailing newline).
+// SitesHeader is the header line of sites.tsv (no trailing newline),
+// without the male-count columns of non-PAR X rows.
 func SitesHeader() string {
-	return headerLine(FileSites)
+	return headerLine(FileSites, xSiteColumns...)
 }
+
+// SitesHeaderFor is the header line of sites.tsv for cfg: with the
+// male-count columns when cfg.Sex.XColumns.
+func SitesHeaderFor(cfg *Config) string {
+	if cfg.Sex.XColumns {
+		return headerLine(FileSites)
+	}
+	return SitesHeader()
+}
+
+// xSiteColumns are the sites.tsv columns of non-PAR X rows only.
+var xSiteColumns = []string{"n_male_ref", "n_male_alt", "n_male_het_error", "n_sex_unknown"}
 
 // PopSitesHeader is the header line of sites_by_population.tsv.
 func PopSitesHeader() string {

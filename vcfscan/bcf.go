@@ -789,6 +789,33 @@ func (d *bcfDecoder) decode(rec []byte, index int64, b *Batch) (kept bool, reaso
 		}
 		calls[j] = code
 	}
+	var likOut []uint16
+	if d.opt.WantPL {
+		src, isGL := pl, false
+		if !pl.ok {
+			src, isGL = gl, true
+		}
+		b.HasPL = append(b.HasPL, src.ok)
+		likOut = plRoom(b, len(b.Records), nOut, src.ok)
+		if src.ok && src.n > 0 {
+			for j, s := range d.sel {
+				if err := d.likelihoods(likOut[3*j:3*j+3], src, s, isGL, calls[j], index); err != nil {
+					b.GT = b.GT[:base]
+					return false, 0, err
+				}
+			}
+		}
+	}
+	if d.opt.WantDP {
+		b.HasDP = append(b.HasDP, dp.ok)
+		if out := dpRoom(b, len(b.Records), nOut, dp.ok); dp.ok && dp.n > 0 {
+			for j, s := range d.sel {
+				if v, ok := d.sampleNumber(dp, s); ok && v >= 0 && v <= math.MaxInt32 {
+					out[j] = int32(v)
+				}
+			}
+		}
+	}
 	if d.opt.MinGQ > 0 || d.opt.MinDP > 0 {
 		minGQ, minDP := float64(d.opt.MinGQ), float64(d.opt.MinDP)
 		for j, s := range d.sel {
@@ -809,19 +836,9 @@ func (d *bcfDecoder) decode(rec []byte, index int64, b *Batch) (kept bool, reaso
 			if masked {
 				calls[j] = Missing
 				b.Masked++
-			}
-		}
-	}
-	if d.opt.WantPL {
-		src, isGL := pl, false
-		if !pl.ok {
-			src, isGL = gl, true
-		}
-		b.HasPL = append(b.HasPL, src.ok)
-		out := plRoom(b, len(b.Records), nOut, src.ok)
-		if src.ok && src.n > 0 {
-			for j, s := range d.sel {
-				d.likelihoods(out[3*j:3*j+3], src, s, isGL)
+				if likOut != nil {
+					clear(likOut[3*j : 3*j+3]) // masked: no information
+				}
 			}
 		}
 	}
@@ -891,56 +908,75 @@ func (d *bcfDecoder) fail(index int64, field string, sentinel error, format stri
 }
 
 // likelihoods fills dst (0/0, 0/1, 1/1) from the PL or GL values of file
-// sample s with the rules of decodeLikelihoods: three present values are
-// stored as they are, a haploid pair (R, A) as (R, 65535, A), anything
-// else (a missing value, other counts) as zeros. GL is converted to phred
-// as round(-10*GL).
-func (d *bcfDecoder) likelihoods(dst []uint16, f bcfField, s int, gl bool) {
-	var v [3]uint16
-	m := 0
+// sample s, whose call is coded code, with the rules of
+// decodeLikelihoods: values the specification does not allow are an
+// error naming the record, missing elements are counted and stored as
+// zeros. GL is converted to phred as round(-10*GL).
+func (d *bcfDecoder) likelihoods(dst []uint16, f bcfField, s int, gl bool, code Geno, index int64) error {
+	dst[0], dst[1], dst[2] = 0, 0, 0
+	var v [3]float64
+	n, missing := 0, false
 	base := s * f.n
-	switch f.typ {
-	case bcfTypeInt8, bcfTypeInt16, bcfTypeInt32:
-		// Integers (PL as htslib writes it) need no decimal round trip.
-		for k := 0; k < f.n; k++ {
-			x := bcfInt(f.data, f.typ, base+k)
-			if x == bcfIntVectorEnd {
-				break
-			}
-			if m == 3 || x == bcfIntMissing {
-				return // a missing value, or more than three values
-			}
-			fx := float64(x)
-			if gl {
-				fx = math.Round(-10 * fx)
-			}
-			v[m] = clampU16(fx)
-			m++
-		}
-	case bcfTypeFloat:
-		for k := 0; k < f.n; k++ {
-			if binary.LittleEndian.Uint32(f.data[4*(base+k):]) == bcfFloatVectorEnd {
-				break
-			}
-			x, ok := d.bcfNumber(f.data, f.typ, base+k)
-			if m == 3 || !ok {
-				return
-			}
-			if gl {
-				x = math.Round(-10 * x)
-			}
-			v[m] = clampU16(x)
-			m++
-		}
-	default:
-		return // text likelihoods are not numbers we decode
+	key := "PL"
+	if gl {
+		key = "GL"
 	}
-	switch m {
-	case 3:
-		dst[0], dst[1], dst[2] = v[0], v[1], v[2]
-	case 2:
-		dst[0], dst[1], dst[2] = v[0], math.MaxUint16, v[1]
+	bad := func(problem string) error {
+		return d.fail(index, key, ErrMalformed, "sample %d: %s", s+1, problem)
 	}
+	for k := 0; k < f.n; k++ {
+		var x float64
+		switch f.typ {
+		case bcfTypeInt8, bcfTypeInt16, bcfTypeInt32:
+			// Integers (PL as htslib writes it) need no decimal round trip.
+			xi := bcfInt(f.data, f.typ, base+k)
+			if xi == bcfIntVectorEnd {
+				k = f.n
+				continue
+			}
+			if xi == bcfIntMissing {
+				n++
+				missing = true
+				continue
+			}
+			x = float64(xi)
+		case bcfTypeFloat:
+			bits := binary.LittleEndian.Uint32(f.data[4*(base+k):])
+			if bits == bcfFloatVectorEnd {
+				k = f.n
+				continue
+			}
+			if bits == bcfFloatMissing {
+				n++
+				missing = true
+				continue
+			}
+			var ok bool
+			if x, ok = d.bcfNumber(f.data, f.typ, base+k); !ok {
+				return bad("a value is not a number")
+			}
+		default:
+			return nil // text likelihoods are not numbers we decode
+		}
+		if problem := likValueProblem(x, gl); problem != "" {
+			return bad(problem)
+		}
+		if n < 3 {
+			v[n] = x
+		}
+		n++
+	}
+	if n == 0 {
+		return nil
+	}
+	missing, problem := storeLikelihoods(dst, &v, n, missing, gl, code)
+	if missing && d.st != nil {
+		d.st.addWarn(warnLikMissing, index, 1)
+	}
+	if problem != "" {
+		return bad(problem)
+	}
+	return nil
 }
 
 // bcfGT8 maps the two int8 values of a diploid GT vector to the call code,

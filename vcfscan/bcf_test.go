@@ -229,8 +229,8 @@ func TestBCFDecodeHandMade(t *testing.T) {
 			rec:  bcfRec{alleles: []string{"a", "c"}, fmt: [][]byte{gt(2, 4, 2, 4, 0, 0), gq(19, 0x80, 5)}, nSample: 3},
 			kept: true, gt: []Geno{Missing, Heterozygous, Missing}, filter: "."},
 		{name: "PL and AF", opt: Options{WantPL: true, InfoKey: "AF"},
-			rec:  bcfRec{alleles: []string{"A", "G"}, info: [][]byte{af}, fmt: [][]byte{gt(2, 4, 2, 4, 2, 4), pl16}, nSample: 3},
-			kept: true, gt: []Geno{Heterozygous, Heterozygous, Heterozygous}, pl: []uint16{0, 10, 1000, 5, 65535, 0, 0, 0, 0}, info: 0.25, filter: "."},
+			rec:  bcfRec{alleles: []string{"A", "G"}, info: [][]byte{af}, fmt: [][]byte{gt(2, 4, 4, 0x81, 2, 4), pl16}, nSample: 3},
+			kept: true, gt: []Geno{Heterozygous, HaploidAlt, Heterozygous}, pl: []uint16{0, 10, 1000, 5, 65535, 0, 0, 0, 0}, info: 0.25, filter: "."},
 		// Found by FuzzBCFRecord: a count of 3 with the null type and no values.
 		{name: "PL of null type", opt: Options{WantPL: true},
 			rec:  bcfRec{alleles: []string{"A", "G"}, fmt: [][]byte{gt(2, 4, 2, 4, 2, 4), {0x11, 6, 3<<4 | bcfTypeNull}}, nSample: 3},

@@ -88,6 +88,7 @@ func (r *Reader) nextBCF() (*Batch, error) {
 		b.st = &batchState{done: make(chan struct{}, 1)}
 	}
 	b.Records, b.GT, b.PL, b.HasPL = b.Records[:0], b.GT[:0], b.PL[:0], b.HasPL[:0]
+	b.DP, b.HasDP = b.DP[:0], b.HasDP[:0]
 	b.Skipped = [NumSkipReasons]int64{}
 	b.Read, b.Masked = 0, 0
 	b.arena = b.arena[:0]

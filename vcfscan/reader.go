@@ -497,6 +497,8 @@ func (r *Reader) parseLoop(p *vcfParser) {
 		b.GT = b.GT[:0]
 		b.PL = b.PL[:0]
 		b.HasPL = b.HasPL[:0]
+		b.DP = b.DP[:0]
+		b.HasDP = b.HasDP[:0]
 		b.Skipped = [NumSkipReasons]int64{}
 		b.Read, b.Masked = 0, 0
 		b.NSamples = p.nOut

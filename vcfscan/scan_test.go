@@ -361,7 +361,8 @@ func TestMaskingAndLikelihoods(t *testing.T) {
 	if res.masked != 2 {
 		t.Errorf("masked %d, want 2", res.masked)
 	}
-	wantPL := []uint16{0, 30, 300, 40, 0, 50, 300, 30, 0, 1, 20, 300, 0, 0, 0, 30, 65535, 2, 0, 0, 0, 0, 0, 0, 0, 0, 0}
+	// Masked calls (DP 3, GQ 5) carry no likelihoods: zeros.
+	wantPL := []uint16{0, 30, 300, 0, 0, 0, 0, 0, 0, 1, 20, 300, 0, 0, 0, 30, 65535, 2, 0, 0, 0, 0, 0, 0, 0, 0, 0}
 	if !reflect.DeepEqual(res.pls, wantPL) {
 		t.Errorf("PL %v, want %v", res.pls, wantPL)
 	}

@@ -96,6 +96,11 @@ type Record struct {
 // (or GL); if any record of the batch did, PL holds three phred-scaled
 // likelihoods per call (0/0, 0/1, 1/1) in the same layout times three
 // (zeros for records without), else PL is empty (len 0, possibly not nil).
+// Likelihoods of calls masked by MinGQ/MinDP are zeros (no information).
+// When Options.WantDP is set, HasDP[i] says whether record i carried
+// FORMAT DP; if any record of the batch did, DP holds one depth per call in
+// the layout of GT (-1 for a missing value and for records without DP),
+// else DP is empty.
 type Batch struct {
 	Seq      int64 // 0,1,2,... in input order
 	Records  []Record
@@ -103,6 +108,8 @@ type Batch struct {
 	GT       []Geno
 	PL       []uint16
 	HasPL    []bool
+	DP       []int32
+	HasDP    []bool
 	// Skipped counts the records of this stretch of input that the policy
 	// removed, by reason; Read counts all data records seen.
 	Skipped [NumSkipReasons]int64
@@ -127,6 +134,7 @@ type Options struct {
 	ExcludeSamples  []string // drop these samples (applied after Samples); unknown names are an error
 	InfoKey         string   // INFO key to read into Record.InfoValue (e.g. "AF")
 	WantPL          bool     // decode PL/GL into Batch.PL when present
+	WantDP          bool     // decode FORMAT DP into Batch.DP when present
 	Regions         []Region // restrict to these regions via the index
 	BatchSize       int      // at most this many data lines per batch; 0 means batches of about 2 MiB of text
 	// RequireSorted makes Next fail with ErrUnsorted when a position goes

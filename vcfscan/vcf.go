@@ -22,10 +22,11 @@ const (
 	warnPolyploid
 	warnBlankLine
 	warnContigNotInHeader
+	warnLikMissing
 	numWarnKinds
 )
 
-var warnNames = [...]string{"haploid_calls", "polyploid_calls_as_missing", "blank_lines", "contig_not_in_header"}
+var warnNames = [...]string{"haploid_calls", "polyploid_calls_as_missing", "blank_lines", "contig_not_in_header", "likelihoods_with_missing_values_as_missing"}
 
 // chromBlock is a run of consecutive records on one chromosome in a chunk.
 type chromBlock struct {
@@ -240,7 +241,7 @@ func (p *vcfParser) fastLine(b *Batch, data []byte, lineNo int64) (used int, ok 
 		return 0, false, nil
 	}
 	p.parseFormat(data[tabs[7]+1 : tabs[8]])
-	if p.gtIdx != 0 || (p.opt.WantPL && (p.plIdx >= 0 || p.glIdx >= 0)) {
+	if p.gtIdx != 0 || (p.opt.WantPL && (p.plIdx >= 0 || p.glIdx >= 0)) || (p.opt.WantDP && p.dpIdx >= 0) {
 		return 0, false, nil
 	}
 	b.Read++
@@ -257,6 +258,10 @@ func (p *vcfParser) fastLine(b *Batch, data []byte, lineNo int64) (used int, ok 
 	if p.opt.WantPL {
 		b.HasPL = append(b.HasPL, false)
 		plRoom(b, ri, p.nOut, false)
+	}
+	if p.opt.WantDP {
+		b.HasDP = append(b.HasDP, false)
+		dpRoom(b, ri, p.nOut, false)
 	}
 	base := len(b.GT)
 	b.GT = growGeno(b.GT, p.nOut)
@@ -460,10 +465,16 @@ func (p *vcfParser) parseLine(b *Batch, line []byte, lineNo int64) error {
 		pl = plRoom(b, ri, p.nOut, has)
 		wantPL = has
 	}
-	if p.gtIdx == 0 && !wantPL && p.opt.MinDP <= 0 && p.opt.MinGQ <= 0 {
+	var dp []int32
+	if p.opt.WantDP {
+		has := p.dpIdx >= 0
+		b.HasDP = append(b.HasDP, has)
+		dp = dpRoom(b, ri, p.nOut, has)
+	}
+	if p.gtIdx == 0 && !wantPL && dp == nil && p.opt.MinDP <= 0 && p.opt.MinGQ <= 0 {
 		return p.fastSamples(gt, samp, lineNo)
 	}
-	return p.slowSamples(b, gt, pl, wantPL, samp, lineNo)
+	return p.slowSamples(b, gt, pl, wantPL, dp, samp, lineNo)
 }
 
 // fastSamples decodes sample columns whose first FORMAT key is GT and
@@ -493,8 +504,8 @@ var gtPair = func() *[65536]Geno {
 }()
 
 // slowSamples decodes sample columns with GT anywhere in FORMAT, masking
-// by DP/GQ and decoding PL/GL.
-func (p *vcfParser) slowSamples(b *Batch, gt []Geno, pl []uint16, wantPL bool, samp []byte, lineNo int64) error {
+// by DP/GQ and decoding PL/GL and (dp not nil) DP.
+func (p *vcfParser) slowSamples(b *Batch, gt []Geno, pl []uint16, wantPL bool, dp []int32, samp []byte, lineNo int64) error {
 	n := len(samp)
 	i := 0
 	minDP, minGQ := float64(p.opt.MinDP), float64(p.opt.MinGQ)
@@ -549,6 +560,17 @@ func (p *vcfParser) slowSamples(b *Batch, gt []Geno, pl []uint16, wantPL bool, s
 				return err
 			}
 		}
+		if wantPL {
+			if err := p.likelihoods(pl[3*o:3*o+3], likV, code, lineNo, j); err != nil {
+				return err
+			}
+		}
+		if dp != nil {
+			dp[o] = -1
+			if v, ok := parseNum(dpV); ok && v >= 0 && v <= math.MaxInt32 {
+				dp[o] = int32(v)
+			}
+		}
 		if code != Missing && (minDP > 0 || minGQ > 0) {
 			masked := false
 			if minDP > 0 {
@@ -564,12 +586,12 @@ func (p *vcfParser) slowSamples(b *Batch, gt []Geno, pl []uint16, wantPL bool, s
 			if masked {
 				code = Missing
 				b.Masked++
+				if wantPL {
+					clear(pl[3*o : 3*o+3]) // masked: no information
+				}
 			}
 		}
 		gt[o] = code
-		if wantPL {
-			decodeLikelihoods(pl[3*o:3*o+3], likV, p.plIdx < 0)
-		}
 	}
 	if i <= n {
 		return p.errf(lineNo, ErrSampleCount, "samples", "expected %d sample columns as in the #CHROM line, found %d", p.nFile, p.nFile+bytes.Count(samp[i:], []byte{'\t'})+1)
@@ -687,7 +709,7 @@ func (p *vcfParser) parseFormat(format []byte) {
 		p.likIdx = p.glIdx
 	}
 	p.lastKey = max(p.gtIdx, p.likIdx)
-	if p.opt.MinDP > 0 {
+	if p.opt.MinDP > 0 || p.opt.WantDP {
 		p.lastKey = max(p.lastKey, p.dpIdx)
 	}
 	if p.opt.MinGQ > 0 {
@@ -712,40 +734,187 @@ func subfield(field []byte, k int) []byte {
 	return field
 }
 
-// decodeLikelihoods fills dst (0/0, 0/1, 1/1) from a PL value, or from GL
-// (log10 likelihoods) converted to phred as round(-10*GL). A haploid list
-// of two values is stored as (R, 65535, A). Absent values give zeros.
-func decodeLikelihoods(dst []uint16, s []byte, gl bool) {
+// likelihoods decodes the PL or GL value s of file sample col into dst
+// (decodeLikelihoods); a value that breaks the VCF specification is an
+// error naming the line, and "." elements are counted and stored as
+// missing.
+func (p *vcfParser) likelihoods(dst []uint16, s []byte, code Geno, lineNo int64, col int) error {
+	gl := p.plIdx < 0
+	missing, problem := decodeLikelihoods(dst, s, gl, code)
+	if missing {
+		p.st.addWarn(warnLikMissing, lineNo, 1)
+	}
+	if problem == "" {
+		return nil
+	}
+	key := "PL"
+	if gl {
+		key = "GL"
+	}
+	name := ""
+	if col < len(p.samples) {
+		name = p.samples[col]
+	}
+	return p.errf(lineNo, ErrMalformed, key, "sample %q: %s %q: %s", name, key, clip(s), problem)
+}
+
+// decodeLikelihoods fills dst (0/0, 0/1, 1/1) from a PL value (VCF 4.4
+// section 1.6.2: Number=G, Integer, phred-scaled), or from GL (log10
+// likelihoods, Float) converted to phred as round(-10*GL), for a call
+// coded code. A haploid list of two values is stored as (R, 65535, A).
+// An absent value or "." gives zeros (no information).
+//
+// The specification allows "." for single missing values: a list with one
+// is stored as zeros and reported with missing set. Anything else it does
+// not allow is a problem (returned as text, dst zeros): a value that is
+// not a number, a PL that is negative or not an integer, a GL above 0,
+// and a count that does not match the call's ploidy (3 for a diploid
+// call, 2 for a haploid one; a missing call may carry either, and other
+// counts, as for polyploid calls, are stored as zeros). Values too large
+// for 16 bits are stored relative to the smallest of the call and capped
+// at 65534: beyond phred 3240 the likelihood is below the smallest
+// float64, so the cap loses nothing.
+func decodeLikelihoods(dst []uint16, s []byte, gl bool, code Geno) (missing bool, problem string) {
+	if !gl && (code <= HomAlt || code == Missing) {
+		if v, ok := plTriple(s); ok {
+			dst[0], dst[1], dst[2] = v[0], v[1], v[2]
+			return false, ""
+		}
+	}
+	return decodeLikelihoodsGeneral(dst, s, gl, code)
+}
+
+// plTriple is the fast path of decodeLikelihoods: three PL integers of at
+// most five digits and at most maxPhred each (what callers write), which
+// the general path would store unchanged. ok is false for anything else.
+func plTriple(s []byte) (v [3]uint16, ok bool) {
+	k, digits := 0, 0
+	x := uint32(0)
+	for _, c := range s {
+		switch {
+		case c >= '0' && c <= '9':
+			x = x*10 + uint32(c-'0')
+			digits++
+			if digits > 5 {
+				return v, false
+			}
+		case c == ',' && digits > 0 && k < 2 && x <= maxPhred:
+			v[k] = uint16(x)
+			k++
+			x, digits = 0, 0
+		default:
+			return v, false
+		}
+	}
+	if k != 2 || digits == 0 || x > maxPhred {
+		return v, false
+	}
+	v[2] = uint16(x)
+	return v, true
+}
+
+// decodeLikelihoodsGeneral is decodeLikelihoods for any value.
+func decodeLikelihoodsGeneral(dst []uint16, s []byte, gl bool, code Geno) (missing bool, problem string) {
 	dst[0], dst[1], dst[2] = 0, 0, 0
 	if len(s) == 0 || (len(s) == 1 && s[0] == '.') {
-		return
+		return false, ""
 	}
-	var v [3]uint16
-	k := 0
-	for len(s) > 0 && k < 3 {
+	var v [3]float64
+	n := 0
+	for s != nil {
 		item := s
 		if c := bytes.IndexByte(s, ','); c >= 0 {
 			item, s = s[:c], s[c+1:]
 		} else {
 			s = nil
 		}
+		n++
+		if len(item) == 1 && item[0] == '.' {
+			missing = true
+			continue
+		}
 		x, ok := parseNum(item)
-		if !ok {
-			return
+		if !ok || x != x {
+			return false, fmt.Sprintf("value %q is not a number", clip(item))
 		}
-		if gl {
-			x = math.Round(-10 * x)
+		if problem := likValueProblem(x, gl); problem != "" {
+			return false, problem
 		}
-		v[k] = clampU16(x)
-		k++
+		if n <= 3 {
+			v[n-1] = x
+		}
 	}
-	switch {
-	case k == 3 && len(s) == 0:
-		dst[0], dst[1], dst[2] = v[0], v[1], v[2]
-	case k == 2:
-		dst[0], dst[1], dst[2] = v[0], math.MaxUint16, v[1]
-	}
+	return storeLikelihoods(dst, &v, n, missing, gl, code)
 }
+
+// likValueProblem checks one likelihood value.
+func likValueProblem(x float64, gl bool) string {
+	switch {
+	case x != x:
+		return "a value is not a number"
+	case gl && x > 0:
+		return fmt.Sprintf("GL value %v is above 0 (a log10 likelihood is at most 0)", x)
+	case !gl && x < 0:
+		return fmt.Sprintf("PL value %v is negative (phred-scaled likelihoods are at least 0)", x)
+	case !gl && (math.IsInf(x, 0) || x != math.Trunc(x)):
+		return fmt.Sprintf("PL value %v is not an integer", x)
+	}
+	return ""
+}
+
+// storeLikelihoods checks the count n of one call's values against its
+// ploidy and stores the first three of v (PL, or GL when gl) as phred
+// integers in dst (see decodeLikelihoods). missing says a value was ".".
+func storeLikelihoods(dst []uint16, v *[3]float64, n int, missing, gl bool, code Geno) (bool, string) {
+	if n == 1 && missing {
+		return false, "" // the whole value is missing (BCF: missing, then end of vector)
+	}
+	switch code {
+	case HomRef, Heterozygous, HomAlt:
+		if n != 3 {
+			return false, fmt.Sprintf("%d values for a diploid call of a biallelic site, want 3", n)
+		}
+	case HaploidRef, HaploidAlt:
+		if n != 2 {
+			return false, fmt.Sprintf("%d values for a haploid call of a biallelic site, want 2", n)
+		}
+	default:
+		if n != 2 && n != 3 {
+			return false, "" // ploidy unknown or above 2: no diploid likelihoods
+		}
+	}
+	if missing {
+		return true, ""
+	}
+	if n == 2 {
+		v[2] = v[1]
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for k := range v {
+		if gl {
+			v[k] = math.Round(-10 * v[k])
+		}
+		lo, hi = min(lo, v[k]), max(hi, v[k])
+	}
+	if math.IsInf(lo, 1) {
+		return false, "" // every genotype impossible: no information
+	}
+	if hi > maxPhred {
+		for k := range v {
+			v[k] -= lo
+		}
+	}
+	for k := range v {
+		dst[k] = uint16(min(v[k], maxPhred))
+	}
+	if n == 2 {
+		dst[1] = math.MaxUint16
+	}
+	return false, ""
+}
+
+// maxPhred is the largest likelihood stored; 65535 marks a haploid pair.
+const maxPhred = math.MaxUint16 - 1
 
 func clampU16(x float64) uint16 {
 	switch {
@@ -911,6 +1080,25 @@ func plRoom(b *Batch, ri, nOut int, has bool) []uint16 {
 	b.PL = growU16(b.PL, need-old)
 	clear(b.PL[old:need])
 	return b.PL[3*ri*nOut : need]
+}
+
+// dpRoom is plRoom for Batch.DP: one depth per call, -1 (missing) for the
+// records of the batch without DP.
+func dpRoom(b *Batch, ri, nOut int, has bool) []int32 {
+	if !has && len(b.DP) == 0 {
+		return nil
+	}
+	old, need := len(b.DP), (ri+1)*nOut
+	if need > cap(b.DP) {
+		t := make([]int32, old, max(need, 2*cap(b.DP)))
+		copy(t, b.DP)
+		b.DP = t
+	}
+	b.DP = b.DP[:need]
+	for i := old; i < need; i++ {
+		b.DP[i] = -1
+	}
+	return b.DP[ri*nOut : need]
 }
 
 func growU16(s []uint16, n int) []uint16 {

@@ -5,12 +5,14 @@ import (
 	"fmt"
 	"text/tabwriter"
 
+	"fgauge/cmd/fgauge/internal/mate"
 	"fgauge/cmd/fgauge/internal/outdir"
 )
 
 const columnsHelp = `Prints one line per output column: the file, the column name and what it
-means, with the citation of each published estimator. --file limits the list
-to one file (e.g. samples.tsv).
+means, with the citation of each published estimator and, for the coancestry
+measures of 'fgauge mate', their base population. --file limits the list to
+one file (e.g. samples.tsv, pairs.tsv).
 `
 
 // runColumns prints one line per output column.
@@ -26,7 +28,11 @@ func runColumns(ctx context.Context, env *runEnv, args []string) error {
 	}
 	tw := tabwriter.NewWriter(env.stdout, 0, 4, 2, ' ', 0)
 	n := 0
-	for _, d := range outdir.Columns() {
+	all := outdir.Columns()
+	for _, d := range mate.ColumnDocs() {
+		all = append(all, outdir.Column{File: d.File, Name: d.Column, Doc: d.Meaning})
+	}
+	for _, d := range all {
 		if *only != "" && d.File != *only {
 			continue
 		}

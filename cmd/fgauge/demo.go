@@ -14,12 +14,16 @@ matings happened (a full-sib mating at Brookend, a half-sib mating at
 Hillside, a sire-daughter mating at Stonegate, a first-cousin mating at
 Fernlea); the rest of the herd is mostly unrelated. Genomes are simulated
 with a fixed seed at SNP-array density, written to DIR, and scanned with
-every statistic, ROH and the pedigree comparison on. Everything is
-invented: no real animals, farms or people.
+every statistic, ROH and the pedigree comparison on. The youngest
+generation's bucks and does are then paired for next season ('fgauge mate'
+with at most 2 does per buck, planned on genomic coancestry) and the plan
+is compared with a random allocation and with a plan made on the herd book
+alone. Everything is invented: no real animals, farms or people.
 
 Files in DIR: cohort.vcf.gz (+ .tbi), pedigree.tsv, herds.tsv (sample, herd),
-truth_samples.tsv and truth_segments.tsv (what the simulation knows), and
-scan/ with the scan's tables and report.html.
+truth_samples.tsv and truth_segments.tsv (what the simulation knows),
+scan/ with the scan's tables and report.html, and mate/ with the mating
+plan (pairs.tsv, allocation.tsv, run.json, mate.html).
 `
 
 // runDemo simulates the demo cohort, scans it and prints a summary.

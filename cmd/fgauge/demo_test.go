@@ -25,6 +25,7 @@ func TestDemo(t *testing.T) {
 		"half-sib mating: both parents by FERN-001", "0.125",
 		"first-cousin mating", "0.062",
 		"Caution:",
+		"Mating plan for next season", "Caution: a mating plan is advice",
 	} {
 		if !strings.Contains(out, want) {
 			t.Errorf("summary lacks %q:\n%s", want, out)
@@ -36,7 +37,8 @@ func TestDemo(t *testing.T) {
 	if code != exitOK || !strings.Contains(out, "Most inbred animals (by genomic ") {
 		t.Errorf("second run: exit %d, stderr %q, summary:\n%s", code, errText, out)
 	}
-	for _, name := range []string{"scan/samples.tsv", "scan/runs.tsv", "cohort.vcf.gz", "cohort.vcf.gz.tbi", "pedigree.tsv", "herds.tsv", "truth_samples.tsv", "truth_segments.tsv"} {
+	for _, name := range []string{"scan/samples.tsv", "scan/runs.tsv", "cohort.vcf.gz", "cohort.vcf.gz.tbi", "pedigree.tsv", "herds.tsv", "truth_samples.tsv", "truth_segments.tsv",
+		"mate/pairs.tsv", "mate/allocation.tsv", "mate/run.json", "mate/mate.html"} {
 		if _, err := os.Stat(filepath.Join(dir, name)); err != nil {
 			t.Error(err)
 		}

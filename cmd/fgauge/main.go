@@ -55,6 +55,7 @@ func commands() map[string]command {
 		"merge":    {"combine shard states into the outputs of a single pass", runMerge},
 		"plan":     {"split an indexed input into shards and write batch scripts", runPlan},
 		"columns":  {"explain every output column in one line", runColumns},
+		"mate":     {"coancestry of sire x dam pairs and the mating plan with the lowest progeny F", runMate},
 	}
 }
 

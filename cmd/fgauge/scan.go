@@ -60,6 +60,8 @@ The flags column of samples.tsv ("." when none):
                        contamination, sample mix-up or another population)
   estimators_disagree  f_hom > 0.1 while f_uniting_gametes < 0, or the
                        reverse: check frequencies and data quality first
+  sex_mismatch         given and inferred sex both known and different
+  sex_fits_neither     the X (and Y) pattern fits neither sex
 
 Cautions: genomic F estimates depend on marker density, the allele-frequency
 reference and genotyping quality; they are not a diagnosis. Decisions about
@@ -84,12 +86,13 @@ type scanOptions struct {
 	excludeFile string
 	stats       *statsFlags
 	roh         *rohFlags
+	sex         *sexFlags
 	shard       *shardFlags
 }
 
 func runScan(ctx context.Context, env *runEnv, args []string) error {
 	o := &scanOptions{}
-	fs := newFlagSet(env.stderr, "scan", "scan INPUT.vcf[.gz]|INPUT.bcf|- -o OUTDIR [options]", scanHelp+"\n"+statsHelp+"\n"+rohHelp)
+	fs := newFlagSet(env.stderr, "scan", "scan INPUT.vcf[.gz]|INPUT.bcf|- -o OUTDIR [options]", scanHelp+"\n"+statsHelp+"\n"+sexHelp()+"\n"+rohHelp)
 	fs.StringVar(&o.out, "o", "", "output folder (created if absent)")
 	fs.StringVar(&o.out, "out", "", "same as -o")
 	fs.BoolVar(&o.force, "force", false, "overwrite results already in OUTDIR")
@@ -111,6 +114,7 @@ func runScan(ctx context.Context, env *runEnv, args []string) error {
 	fs.IntVar(&o.read.Limits.MaxBlockExpand, "guard-block-bytes", lim.MaxBlockExpand, "safety limit: abort the run (exit 2) on a compressed block that expands beyond this many bytes; not a filter")
 	o.stats = addStatsFlags(fs)
 	o.roh = addROHFlags(fs)
+	o.sex = addSexFlags(fs)
 	o.shard = addShardFlags(fs)
 	pos, err := parseInterleaved(fs, args)
 	if err != nil {
@@ -170,9 +174,13 @@ func scan(ctx context.Context, env *runEnv, o *scanOptions) error {
 	if err != nil {
 		return err
 	}
+	sex, err := o.sex.settings(o.roh.species)
+	if err != nil {
+		return err
+	}
 	cfg := scanrun.Config{
 		Input: o.input, Out: o.out, Force: o.force, Threads: o.threads,
-		Read: o.read, Stats: stats, ROH: rohCfg,
+		Read: o.read, Stats: stats, ROH: rohCfg, Sex: sex, PedigreeFile: o.pedigree,
 		StateOut: o.shard.stateOut, SkipIfValidState: o.shard.skipValid,
 		Version: version, CommandLine: env.argv, Stderr: env.stderr,
 		Progress: newProgress(env.stderr, o.noProgress),

@@ -74,7 +74,7 @@ func addROHFlags(fs *flag.FlagSet) *rohFlags {
 	fs.StringVar(&f.classes, "roh-classes", "1,2,4,8,16",
 		"run-length classes in Mb for the f_roh_gt_* columns; the smallest is also the shortest run counted in f_roh")
 	fs.StringVar(&f.species, "species", "",
-		"autosome names and default cM/Mb for one of: "+strings.Join(roh.SpeciesNames(), ", "))
+		"autosome names and default cM/Mb for one of: "+strings.Join(roh.SpeciesNames(), ", ")+"; human also reads contigs 23/24/26 as X/Y/MT and, without --par, recognises the GRCh37/GRCh38 PARs")
 	fs.StringVar(&f.autosomes, "autosomes", "",
 		"comma-separated autosome `LIST` (names with or without 'chr'); overrides --species")
 	fs.Float64Var(&f.maxGapKB, "roh-max-gap-kb", d.MaxGapKB,

@@ -18,6 +18,8 @@ type statsFlags struct {
 	freqsInfo   string
 	minCallRate float64
 	blockMB     float64
+	likFreqs    string
+	noLik       bool
 
 	pops  *stats.Populations // read by prepare
 	panel *stats.Panel
@@ -41,6 +43,23 @@ const statsHelp = `Statistics:
   sample population), Weir & Cockerham 1984 (Evolution 38:1358) F_ST, F_IS
   and F_IT are estimated with block-jackknife standard errors over genomic
   windows of --jackknife-block-mb.
+
+Low depth (genotype likelihoods):
+  When records carry PL (or GL), f_lik is the maximum-likelihood F from the
+  likelihoods (Vieira et al. 2013, Genome Res 23:1852), at site frequencies
+  estimated from the likelihoods by EM (alt_freq_lik in sites.tsv.gz; Kim et
+  al. 2011, BMC Bioinformatics 12:231; Li 2011, Bioinformatics 27:2987).
+  --f-lik-freqs chooses them: auto (default) uses --freqs/--freqs-from-info
+  frequencies when given, else the likelihood EM frequency (per population
+  with --populations); likelihood always the EM frequency; estimators the
+  very frequencies of the hard-call estimators (hard-call frequencies are
+  biased at low depth). With likelihoods, sites.tsv.gz's het_expected and
+  f_site use alt_freq_lik; the genotype counts, het_observed and the HWE
+  tests stay on hard calls. depth_mean in samples.tsv comes from FORMAT DP,
+  else from the likelihoods (depth_source). Below a cohort mean depth of 10
+  hard-call estimators overstate F (heterozygotes seen on one allele look
+  homozygous): run.json, the console and the report then warn (low_depth);
+  read f_lik and f_roh. --no-likelihood-f ignores PL/GL and DP.
 `
 
 // addStatsFlags registers the statistics options on fs.
@@ -52,6 +71,8 @@ func addStatsFlags(fs *flag.FlagSet) *statsFlags {
 	fs.StringVar(&f.freqsInfo, "freqs-from-info", "", "INFO `KEY` (e.g. AF) holding the alternate-allele frequency for the per-sample estimators")
 	fs.Float64Var(&f.minCallRate, "min-call-rate", 0.9, "flag samples whose call rate is below this (low_call_rate)")
 	fs.Float64Var(&f.blockMB, "jackknife-block-mb", 5, "width in Mb of the genomic windows used as jackknife blocks for F-statistic standard errors")
+	fs.StringVar(&f.likFreqs, "f-lik-freqs", "auto", "site frequencies of f_lik: auto, likelihood or estimators (see Low depth below)")
+	fs.BoolVar(&f.noLik, "no-likelihood-f", false, "ignore PL/GL and DP for the statistics: no f_lik, alt_freq_lik or depth_mean, hard-call He and f_site (the ROH HMM still uses PL)")
 	return f
 }
 
@@ -66,6 +87,9 @@ func (f *statsFlags) prepare() error {
 	}
 	if !(f.minCallRate >= 0 && f.minCallRate <= 1) {
 		return usagef("--min-call-rate %v: want a number in [0,1]", f.minCallRate)
+	}
+	if _, ok := likFreqSource(f.likFreqs); !ok {
+		return usagef("--f-lik-freqs %q: want auto, likelihood or estimators", f.likFreqs)
 	}
 	if !(f.blockMB > 0) || f.blockMB*1e6 > 1e15 {
 		return usagef("--jackknife-block-mb %v: want a positive number", f.blockMB)
@@ -99,6 +123,18 @@ func (f *statsFlags) settings() (scanrun.StatsSettings, error) {
 	if err := f.prepare(); err != nil {
 		return scanrun.StatsSettings{}, err
 	}
+	lf, _ := likFreqSource(f.likFreqs)
 	return scanrun.StatsSettings{HWEMethod: f.hweMethod, Populations: f.pops, PopulationsFile: f.populations,
-		Panel: f.panel, InfoKey: f.freqsInfo, MinCallRate: f.minCallRate, JackknifeBlockMB: f.blockMB}, nil
+		Panel: f.panel, InfoKey: f.freqsInfo, MinCallRate: f.minCallRate, JackknifeBlockMB: f.blockMB,
+		LikFreqs: lf, NoLikelihoods: f.noLik}, nil
+}
+
+// likFreqSource maps a --f-lik-freqs value to its source.
+func likFreqSource(v string) (stats.LikFreqSource, bool) {
+	for i, n := range stats.LikFreqNames {
+		if n == v {
+			return stats.LikFreqSource(i), true
+		}
+	}
+	return 0, false
 }

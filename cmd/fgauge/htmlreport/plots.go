@@ -21,7 +21,7 @@ var (
 	colFaint  = color.RGBA{0xb8, 0xc0, 0xc6, 0xff}
 	colShadeA = color.RGBA{0xee, 0xec, 0xe6, 0xff}
 	colShadeB = color.RGBA{0xf8, 0xf6, 0xf1, 0xff}
-	colPoint  = color.RGBA{0x2a, 0x7d, 0x86, 0xa0}
+	colPoint  = color.NRGBA{0x2a, 0x7d, 0x86, 0xa0} // the teal, translucent (NRGBA: not alpha-premultiplied)
 )
 
 // bandColor gives the colour of length band i of n, light (short runs) to

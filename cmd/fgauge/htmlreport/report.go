@@ -172,6 +172,14 @@ type reportView struct {
 	SampleTableNote string
 	PageDir         bool
 	Unknown         []string
+	Depth           *depthView // when run.json has a depth section
+	Sex             *sexView   // nil without the sex columns
+}
+
+// depthView is run.json's depth section as the report shows it.
+type depthView struct {
+	Mean, Source, Threshold, OneAllele string
+	Low, HasLikelihoods                bool
 }
 
 // Write reads the scan output folder outDir and writes outDir/report.html
@@ -227,6 +235,10 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 		v.Command = shellJoin(append([]string{"fgauge"}, cl[1:]...))
 	}
 	v.Unknown = c.unknown
+	if dp := d.info.Depth; dp != nil {
+		v.Depth = &depthView{Mean: fmtG(float64(dp.Mean)), Source: dp.Source, Threshold: fmtG(dp.LowThreshold),
+			OneAllele: fmtPct(float64(dp.HetOneAlleleRate)), Low: dp.Low, HasLikelihoods: dp.RecordsWithLikelihoods > 0}
+	}
 	builders := []struct {
 		dst   **figure
 		build func() (figure, error)
@@ -255,6 +267,16 @@ func buildReport(c *cohort, pages map[int]string) (*reportView, error) {
 			}
 		}
 		*b.dst = &f
+	}
+	sv, err := c.sexSection()
+	if err != nil {
+		return nil, fmt.Errorf("report: sex check: %w", err)
+	}
+	if sv != nil {
+		v.Sex = sv
+		if sv.Fig.Note != "" {
+			v.Aggregated = append(v.Aggregated, sv.Fig.Title+": "+sv.Fig.Note)
+		}
 	}
 	v.HasPops = d.pops != nil || d.pairs != nil
 	if d.pops != nil {

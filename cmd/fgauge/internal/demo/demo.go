@@ -1,6 +1,7 @@
 // Package demo is the built-in demonstration: an invented cooperative of
 // four goat herds (herd book, simulated genomes), scanned through the
-// scanrun API and summarised in plain language. Everything in it is
+// scanrun API, its youngest generation's matings planned through the mate
+// API, and summarised in plain language. Everything in it is
 // invented: no real animals, farms or people.
 package demo
 
@@ -43,8 +44,9 @@ type Config struct {
 
 // Run simulates the demo cohort into cfg.Dir, scans it with every
 // statistic, runs of homozygosity and the pedigree comparison on, writes
-// the report with one page per animal, and prints a summary to
-// cfg.Stdout.
+// the report with one page per animal, plans next season's matings of the
+// youngest generation into cfg.Dir/mate (mate.Run), and prints a summary
+// to cfg.Stdout.
 func Run(ctx context.Context, cfg Config) error {
 	dir := &cfg.Dir
 	if err := os.MkdirAll(*dir, 0o755); err != nil {
@@ -131,8 +133,21 @@ func Run(ctx context.Context, cfg Config) error {
 		fmt.Fprintf(cfg.Stdout, "\nThe scan step did not run (%v); the summary below uses pedigree F only.\n", scanErr)
 	}
 	writeDemoSummary(cfg.Stdout, ped, fpedOf, truthOf, genomic, genomicCol, scanDir, scanErr == nil)
+	mateDir := filepath.Join(*dir, "mate")
+	plan, mateErr := matingStep(ctx, &cfg, vcfPath, mateDir, ped)
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+	if mateErr == nil {
+		writeMatingSummary(cfg.Stdout, plan, mateDir)
+	} else {
+		fmt.Fprintf(cfg.Stdout, "\nThe mating step did not run (%v).\n", mateErr)
+	}
 	if scanErr != nil {
 		return fmt.Errorf("demo: the scan or report step failed: %w", scanErr)
+	}
+	if mateErr != nil {
+		return fmt.Errorf("demo: the mating step failed: %w", mateErr)
 	}
 	return nil
 }
@@ -469,8 +484,9 @@ func writeDemoSummary(w io.Writer, ped *pedigree.Pedigree, fped, truth, genomic 
 		fmt.Fprintln(w, "    to see genomic F and runs of homozygosity next to the pedigree values.")
 	}
 	fmt.Fprintln(w, "  - truth_segments.tsv holds the simulated autozygous stretches, to check runs against.")
-	fmt.Fprintln(w, "  - FERN-001 sired kids in every herd: check coancestries of planned pairs before the next")
-	fmt.Fprintln(w, "    season with 'fgauge pedigree pedigree.tsv --pairs PAIRS.tsv -o f.tsv'.")
+	fmt.Fprintln(w, "  - FERN-001 sired kids in every herd, so many young animals are related: the mating plan below")
+	fmt.Fprintln(w, "    pairs them on their genomic coancestry ('fgauge mate'); 'fgauge pedigree --pairs' gives the")
+	fmt.Fprintln(w, "    pedigree coancestry of any listed pairs.")
 	fmt.Fprintln(w, "\nCaution: genomic or pedigree F is not a decision by itself; mating and culling decisions follow")
 	fmt.Fprintln(w, "the breeding programme's rules, veterinary advice and local regulations.")
 }

@@ -6,6 +6,7 @@ import (
 
 	"fgauge/roh"
 	"fgauge/stats"
+	"fgauge/stats/sexcheck"
 )
 
 // TestColumnsDeclareHeaders: the header lines the tables are written with
@@ -20,7 +21,7 @@ func TestColumnsDeclareHeaders(t *testing.T) {
 		byFile[c.File] = append(byFile[c.File], c.Name)
 	}
 	for file, header := range map[string]string{
-		"sites.tsv.gz":               stats.SitesHeader(),
+		"sites.tsv.gz":               stats.SitesHeaderFor(&stats.Config{Sex: stats.SexConfig{XColumns: true}}),
 		"sites_by_population.tsv.gz": stats.PopSitesHeader(),
 		"populations.tsv":            stats.PopulationsHeader(),
 		"populations_pairwise.tsv":   stats.PairwiseHeader(),
@@ -29,7 +30,10 @@ func TestColumnsDeclareHeaders(t *testing.T) {
 			t.Errorf("%s: declared %q, written %q", file, got, header)
 		}
 	}
-	tot := stats.NewTotals(&stats.Config{Samples: []string{"a"}, PopOf: []int{0}, PopNames: []string{"herd"}})
+	// With every optional column: populations, a given sex and X sites.
+	tot := stats.NewTotals(&stats.Config{Samples: []string{"a"}, PopOf: []int{0}, PopNames: []string{"herd"},
+		Sex: stats.SexConfig{Given: []sexcheck.Sex{sexcheck.Male}}})
+	tot.Sex.Sites.X = 1
 	h, _ := tot.SampleTable()
 	rr := &roh.Result{Classes: roh.DefaultConfig().Classes, Samples: []string{"a"}}
 	h2, _ := rr.SampleTable()

@@ -1,4 +1,4 @@
-// Package outdir is the output folder of a scan or merge: files are
+// Package outdir is the output folder of a scan, merge or mating run: files are
 // written into a hidden staging folder inside OUTDIR and moved into place
 // by Commit only when the whole run succeeded, so a failed or interrupted
 // run leaves no half-written result. It also owns the names of the files
@@ -21,6 +21,15 @@ var Names = []string{
 	"populations.tsv", "populations_pairwise.tsv", "run.json", "report.html", "samples",
 }
 
+// MateNames are the files `fgauge mate` writes into its OUTDIR (see
+// NewFor). run.json is shared by name with Names, but the two kinds of
+// run.json differ, so a folder holding one kind's results is never used
+// for the other's, not even with --force.
+var MateNames = []string{"pairs.tsv", "allocation.tsv", "run.json", "mate.html"}
+
+// kinds are the name lists of every kind of run.
+var kinds = [][]string{Names, MateNames}
+
 // stagingPrefix starts the name of the hidden staging folder in OUTDIR.
 const stagingPrefix = ".fgauge-tmp-"
 
@@ -32,6 +41,7 @@ type Dir struct {
 	tmp     string // OUTDIR/.fgauge-tmp-*
 	created bool   // OUTDIR did not exist before the run
 	files   []string
+	names   []string // the files this kind of run may write
 	lock    *folderLock
 }
 
@@ -39,11 +49,16 @@ type Dir struct {
 // already holds results unless force is set, and an OUTDIR that another
 // run holds (an error wrapping ErrBusy and naming the folder). Call Close
 // (or Abort) when done.
-func New(dir string, force bool) (*Dir, error) {
+func New(dir string, force bool) (*Dir, error) { return NewFor(dir, force, Names) }
+
+// NewFor is New for a run that writes the files names (Names for a scan
+// or merge, MateNames for a mating run). Besides New's checks it refuses,
+// even with force, an OUTDIR holding results of another kind of run.
+func NewFor(dir string, force bool, names []string) (*Dir, error) {
 	if dir == "" {
 		return nil, badinput.Errorf("an output folder is required (-o OUTDIR)")
 	}
-	s := &Dir{final: dir}
+	s := &Dir{final: dir, names: names}
 	st, err := os.Stat(dir)
 	switch {
 	case os.IsNotExist(err):
@@ -67,8 +82,14 @@ func New(dir string, force bool) (*Dir, error) {
 			os.RemoveAll(p)
 		}
 	}
+	if !s.created {
+		if n := foreign(dir, names); n != "" {
+			s.Close()
+			return nil, badinput.Errorf("%s holds the results of another fgauge command (%s); choose another folder", dir, n)
+		}
+	}
 	if !s.created && !force {
-		for _, n := range Names {
+		for _, n := range names {
 			if _, err := os.Stat(filepath.Join(dir, n)); err == nil {
 				s.Close()
 				return nil, badinput.Errorf("%s already holds results (%s); choose another folder or add --force to overwrite", dir, n)
@@ -118,7 +139,7 @@ func (s *Dir) Commit() error {
 	for _, n := range names {
 		made[n] = true
 	}
-	for _, n := range Names {
+	for _, n := range s.names {
 		if !made[n] {
 			if err := os.RemoveAll(filepath.Join(s.final, n)); err != nil {
 				return fmt.Errorf("removing the earlier run's %s: %w", n, err)
@@ -162,6 +183,26 @@ func (s *Dir) Close() {
 
 // Final is OUTDIR.
 func (s *Dir) Final() string { return s.final }
+
+// foreign returns a file in dir that another kind of run writes and a run
+// writing names does not, "" when there is none.
+func foreign(dir string, names []string) string {
+	own := map[string]bool{}
+	for _, n := range names {
+		own[n] = true
+	}
+	for _, k := range kinds {
+		for _, n := range k {
+			if own[n] {
+				continue
+			}
+			if _, err := os.Stat(filepath.Join(dir, n)); err == nil {
+				return n
+			}
+		}
+	}
+	return ""
+}
 
 func (s *Dir) removeCreated() {
 	if s.created {

@@ -81,3 +81,37 @@ func TestLockCommitAbort(t *testing.T) {
 		t.Errorf("Abort left %s: %v", fresh, err)
 	}
 }
+
+// TestNewForKinds: a mating run and a scan never share an OUTDIR (both
+// write a run.json of their own), not even with force; each refuses its
+// own earlier results without force and replaces them with it.
+func TestNewForKinds(t *testing.T) {
+	dir := t.TempDir()
+	os.WriteFile(filepath.Join(dir, "samples.tsv"), []byte("sample\n"), 0o644)
+	if _, err := NewFor(dir, true, MateNames); err == nil || !strings.Contains(err.Error(), "another fgauge command (samples.tsv)") {
+		t.Errorf("mate into a scan folder: %v", err)
+	}
+	mdir := t.TempDir()
+	os.WriteFile(filepath.Join(mdir, "pairs.tsv"), []byte("sire\n"), 0o644)
+	if _, err := New(mdir, true); err == nil || !strings.Contains(err.Error(), "pairs.tsv") {
+		t.Errorf("scan into a mating folder: %v", err)
+	}
+	if _, err := NewFor(mdir, false, MateNames); err == nil || !strings.Contains(err.Error(), "already holds results") {
+		t.Errorf("mate again without force: %v", err)
+	}
+	d, err := NewFor(mdir, true, MateNames)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := WriteFile(d, "allocation.tsv", func(w io.Writer) error { return WriteTSV(w, []string{"dam"}, nil) }); err != nil {
+		t.Fatal(err)
+	}
+	if err := d.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	d.Close()
+	// The earlier run's pairs.tsv, not written again, is gone.
+	if got := names(t, mdir); got != "allocation.tsv" {
+		t.Errorf("after a forced mating run: %s", got)
+	}
+}

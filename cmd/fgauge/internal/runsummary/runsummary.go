@@ -15,6 +15,7 @@ import (
 	"io"
 	"os"
 
+	"fgauge/internal/numfmt"
 	"fgauge/roh"
 	"fgauge/stats"
 	"fgauge/vcfscan"
@@ -27,16 +28,55 @@ const FileName = "run.json"
 // (alphabetical); optional sections are nil when they do not apply.
 type Run struct {
 	CommandLine []string                 `json:"command_line"`
+	Depth       *Depth                   `json:"depth,omitempty"` // when records carry DP, PL or GL
 	Input       Input                    `json:"input"`
 	Populations *stats.PopulationSummary `json:"populations,omitempty"` // with --populations
 	Records     Records                  `json:"records"`
 	ROH         *roh.Summary             `json:"roh,omitempty"` // without --no-roh
 	Samples     Samples                  `json:"samples"`
+	Sex         *stats.SexSummary        `json:"sex,omitempty"`    // with non-PAR X or Y sites
 	Shards      *Shards                  `json:"shards,omitempty"` // merges only
 	Sites       *stats.SitesSummary      `json:"sites,omitempty"`
 	Version     string                   `json:"version"`
 	WallSeconds float64                  `json:"wall_seconds"`
 	Warnings    map[string]int64         `json:"warnings"` // count by kind
+}
+
+// Depth is the cohort's read depth and what it means for the
+// estimators: below stats.LowDepthThreshold hard-call estimators read
+// heterozygotes seen on one allele as homozygotes and overstate F.
+type Depth struct {
+	// FLikFreqs is --f-lik-freqs (auto, likelihood or estimators).
+	FLikFreqs string `json:"f_lik_freqs"`
+	// HetOneAlleleRate is the expected share of heterozygous calls whose
+	// reads all show one allele at Mean (Poisson depth, no read error).
+	HetOneAlleleRate numfmt.JSONFloat `json:"het_one_allele_rate"`
+	Low              bool             `json:"low"`           // Mean above 0 and below LowThreshold
+	LowThreshold     float64          `json:"low_threshold"` // stats.LowDepthThreshold
+	// Mean is the mean depth per call pooled over samples, from Source:
+	// "dp" (FORMAT DP) or "pl" (implied by the likelihoods).
+	Mean   numfmt.JSONFloat `json:"mean"`
+	Source string           `json:"source"`
+	// RecordsWithLikelihoods counts kept records with PL or GL (0: f_lik
+	// is NA); RecordsNoFrequency those where no sample had informative
+	// likelihoods.
+	RecordsWithLikelihoods int64 `json:"records_with_likelihoods"`
+	RecordsNoFrequency     int64 `json:"records_no_frequency"`
+}
+
+// depthSummary returns the Depth section, nil without DP and likelihoods.
+func depthSummary(t *stats.Totals) *Depth {
+	if t.Lik == nil {
+		return nil
+	}
+	m, src := t.CohortDepth()
+	d := &Depth{FLikFreqs: t.LikFreqs.String(), LowThreshold: stats.LowDepthThreshold,
+		Mean: numfmt.JSONFloat(m), HetOneAlleleRate: numfmt.JSONFloat(stats.HetOneAlleleRate(m)),
+		Low: m > 0 && stats.LowDepth(m), RecordsWithLikelihoods: t.Lik.Records, RecordsNoFrequency: t.Lik.NoFreq}
+	if src != stats.DepthNone {
+		d.Source = src.String()
+	}
+	return d
 }
 
 // Input identifies the file read.
@@ -144,7 +184,9 @@ func Build(stderr io.Writer, f *Facts, totals *stats.Totals, rres *roh.Result) *
 		Input:       Input{Path: f.InputPath, SizeBytes: f.InputSize, Format: f.InputFormat},
 		Records:     Records{Read: f.Read, Kept: f.Kept, Skipped: skipped, MaskedCalls: f.Masked},
 		Samples:     Samples{InFile: len(f.SamplesInFile), Kept: len(f.Samples), Excluded: excluded, HetRateBand: ptr(totals.HetRateBand())},
+		Sex:         totals.SexSummary(),
 		Sites:       totals.Summary(),
+		Depth:       depthSummary(totals),
 		Warnings:    warnings,
 		WallSeconds: f.WallSeconds,
 	}

@@ -44,6 +44,9 @@ func Warnings(totals *stats.Totals, kept int64, rres *roh.Result) []vcfscan.Warn
 		low.Kind = "samples_low_call_rate"
 		ws = append(ws, low)
 	}
+	if d := depthSummary(totals); d != nil && d.Low {
+		ws = append(ws, lowDepthWarning(d))
+	}
 	if rres != nil {
 		if _, src := rres.Covered(); src == "site_span" {
 			ws = append(ws, vcfscan.Warning{Kind: "f_roh_denominator_from_site_span", Count: 1,
@@ -51,4 +54,23 @@ func Warnings(totals *stats.Totals, kept int64, rres *roh.Result) []vcfscan.Warn
 		}
 	}
 	return ws
+}
+
+// lowDepthWarning explains a low cohort depth and points to the
+// estimators that hold up.
+func lowDepthWarning(d *Depth) vcfscan.Warning {
+	what := "read f_lik (from the genotype likelihoods) and f_roh instead"
+	if d.RecordsWithLikelihoods == 0 {
+		what = "the input has no PL/GL, so f_lik is NA: call genotype likelihoods (PL) and read f_lik and f_roh"
+	}
+	return vcfscan.Warning{Kind: "low_depth", Count: 1,
+		Example: fmt.Sprintf("cohort mean depth %s (from %s) is below %g: about %s of heterozygotes show one allele only and are called homozygous, so f_hom and the other hard-call estimators, het_observed, f_site and the HWE tests overstate homozygosity; %s",
+			numfmt.Float(float64(d.Mean)), d.Source, d.LowThreshold, pct(float64(d.HetOneAlleleRate)), what)}
+}
+
+func pct(x float64) string {
+	if x != x {
+		return "an unknown share"
+	}
+	return fmt.Sprintf("%.0f%%", 100*x)
 }

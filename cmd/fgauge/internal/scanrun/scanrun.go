@@ -45,6 +45,11 @@ type Config struct {
 	Stats    StatsSettings
 	ROH      *roh.Config        // nil: no runs of homozygosity
 	Pedigree *pedigree.Pedigree // nil: no f_pedigree column
+	// PedigreeFile names the pedigree in run.json (its sex column gives
+	// the samples' sexes when Sex.List is nil).
+	PedigreeFile string
+	// Sex holds the sex-chromosome options.
+	Sex SexSettings
 
 	// StateOut, when set, makes this scan a shard: OUTDIR gets the site
 	// tables and run.json only, and the mergeable state goes to StateOut.
@@ -88,6 +93,7 @@ type siteChunk struct {
 	sites    *bytes.Buffer
 	popSites *bytes.Buffer
 	freqs    []float64
+	deferred []stats.Deferred // X records whose rows wait for the sexes
 }
 
 // Run scans cfg.Input into cfg.Out: a reader goroutine hands batches to
@@ -113,8 +119,13 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		read.RequireSorted = true
 		read.WantPL = rohCfg.Method == "hmm"
 	}
+	rohPL := read.WantPL // the HMM detector reads the likelihoods
 	if len(read.Regions) > 0 {
 		read.RequireSorted = true
+	}
+	if !cfg.Stats.NoLikelihoods {
+		// f_lik, alt_freq_lik and depth_mean; GT-only records cost nothing.
+		read.WantPL, read.WantDP = true, true
 	}
 	if err := cfg.Stats.check(); err != nil {
 		return nil, err
@@ -152,6 +163,14 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	if err != nil {
 		return nil, err
 	}
+	if scfg.Sex, err = cfg.Sex.sexConfig(cfg.Input, hdr.Samples, samples, hdr.Contigs, cfg.Pedigree, cfg.PedigreeFile); err != nil {
+		return nil, err
+	}
+	var xd *xDeferral
+	if scfg.Sex.DeferX() {
+		xd = newXDeferral(out.Path(".x_calls.tmp"), len(samples))
+		defer xd.close()
+	}
 	var rc *roh.Collector
 	if rohCfg != nil {
 		rohCfg.Threads = cfg.Threads
@@ -170,7 +189,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	}
 	defer sitesFile.Close()
 	sitesZ := vcfscan.NewBGZFWriter(sitesFile, vcfscan.BGZFSitesLevel)
-	if _, err := io.WriteString(sitesZ, stats.SitesHeader()+"\n"); err != nil {
+	if _, err := io.WriteString(sitesZ, stats.SitesHeaderFor(scfg)+"\n"); err != nil {
 		return nil, err
 	}
 	var popZ *vcfscan.BGZFWriter
@@ -233,9 +252,11 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		}
 	})
 	workers := make([]*stats.Worker, cfg.Threads)
+	lik := stats.NewLikShared(len(samples))
 	var wg sync.WaitGroup
 	for i := range workers {
 		w := stats.NewWorker(scfg, contigs.name)
+		w.ShareLikelihoods(lik)
 		workers[i] = w
 		wg.Add(1)
 		g.Go(func() error {
@@ -249,6 +270,9 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 				}
 				c.freqs = make([]float64, len(b.Records))
 				w.ProcessBatch(b, c.sites, c.popSites, c.freqs)
+				if d := w.Deferred(); len(d) > 0 {
+					c.deferred = append([]stats.Deferred(nil), d...)
+				}
 				select {
 				case done <- c:
 				case <-gctx.Done():
@@ -276,7 +300,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 				if rc != nil {
 					contigs.feed(rc)
 				}
-				if err := writeChunk(c, sitesZ, popZ, sink); err != nil {
+				if err := writeChunk(c, sitesZ, popZ, sink, rohPL, xd, contigs.name); err != nil {
 					return err
 				}
 				b := c.batch
@@ -311,6 +335,21 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	if err := sitesZ.Close(); err != nil {
 		return nil, err
 	}
+	totals := workers[0].Totals()
+	for _, w := range workers[1:] {
+		if err := totals.Merge(w.Totals()); err != nil {
+			return nil, err
+		}
+	}
+	totals.Lik = lik.Acc()
+	var xr xRows
+	if xd != nil && len(xd.segs) > 0 {
+		xr.sexes = totals.Sexes().Test
+		if xr.ranges, err = xd.splice(out.Path("sites.tsv.gz"), xr.sexes, scfg.Sex.XColumns, cfg.Threads); err != nil {
+			return nil, err
+		}
+	}
+	xd.close()
 	// Its tabix index, so standard tools slice it by region (none when unsorted or past 2^29).
 	if err := vcfscan.IndexBGZFTable(out.Path("sites.tsv.gz"), vcfscan.TabixSitesColumns); err != nil && !errors.Is(err, vcfscan.ErrLimit) && !errors.Is(err, vcfscan.ErrUnsorted) {
 		return nil, err
@@ -321,12 +360,6 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		}
 	}
 
-	totals := workers[0].Totals()
-	for _, w := range workers[1:] {
-		if err := totals.Merge(w.Totals()); err != nil {
-			return nil, err
-		}
-	}
 	var rres *roh.Result
 	if rc != nil {
 		if rres, err = rc.Finish(); err != nil {
@@ -349,7 +382,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		return nil, err
 	}
 	if sh.on() {
-		if err := sh.writeState(&cfg, &read, rd, &counts, kept, samples, totals, rohCfg, rres, ped, time.Since(start).Seconds()); err != nil {
+		if err := sh.writeState(&cfg, &read, rd, &counts, kept, samples, totals, rohCfg, rres, ped, &xr, time.Since(start).Seconds()); err != nil {
 			return nil, err
 		}
 	}
@@ -423,9 +456,16 @@ func waitOrCancel(ctx context.Context, wait func() error) error {
 	}
 }
 
-// writeChunk writes one batch's site rows and feeds the ROH collector, in input order.
-func writeChunk(c *siteChunk, sitesZ, popZ io.Writer, rc batchSink) error {
-	if _, err := sitesZ.Write(c.sites.Bytes()); err != nil {
+// writeChunk writes one batch's site rows and feeds the ROH collector, in
+// input order; without withPL the collector does not see the likelihoods
+// (read for f_lik, not for the rule-based detector); with xd, X rows
+// waiting for the sexes leave holes (xsplice.go).
+func writeChunk(c *siteChunk, sitesZ *vcfscan.BGZFWriter, popZ io.Writer, rc batchSink, withPL bool, xd *xDeferral, chrom func(int) string) error {
+	if xd != nil {
+		if err := xd.write(sitesZ, c.sites.Bytes(), c.deferred, c.batch, chrom); err != nil {
+			return err
+		}
+	} else if _, err := sitesZ.Write(c.sites.Bytes()); err != nil {
 		return err
 	}
 	if popZ != nil && c.popSites != nil {
@@ -434,7 +474,13 @@ func writeChunk(c *siteChunk, sitesZ, popZ io.Writer, rc batchSink) error {
 		}
 	}
 	if rc != nil {
-		return rc.AddBatch(c.batch, c.freqs)
+		b := c.batch
+		if !withPL && len(b.PL) > 0 {
+			nb := *b
+			nb.PL, nb.HasPL = nil, nil
+			b = &nb
+		}
+		return rc.AddBatch(b, c.freqs)
 	}
 	return nil
 }

@@ -171,7 +171,7 @@ func (f *shardRun) sink(rc *roh.Collector, cfg *roh.Config, samples []string, co
 
 // writeState writes the shard state after the shard's OUTDIR is committed.
 func (f *shardRun) writeState(cfg *Config, read *vcfscan.Options, rd *vcfscan.Reader, counts *vcfscan.Batch, kept int64,
-	samples []string, totals *stats.Totals, rcfg *roh.Config, rres *roh.Result, ped []string, wall float64) error {
+	samples []string, totals *stats.Totals, rcfg *roh.Config, rres *roh.Result, ped []string, xr *xRows, wall float64) error {
 	st, err := f.identity(cfg, read)
 	if err != nil {
 		return err
@@ -211,6 +211,15 @@ func (f *shardRun) writeState(cfg *Config, read *vcfscan.Options, rd *vcfscan.Re
 		st.PopSitesFile = shard.RelTo(f.stateOut, pop)
 		if st.PopSHA256, err = shard.FileSHA256(pop); err != nil {
 			return err
+		}
+	}
+	for _, r := range xr.ranges {
+		st.XRanges = append(st.XRanges, shard.XRange{Start: r.Start, End: r.End})
+	}
+	if xr.ranges != nil {
+		st.XTestSexes = make([]uint8, len(xr.sexes))
+		for i, s := range xr.sexes {
+			st.XTestSexes[i] = uint8(s)
 		}
 	}
 	st.WallSeconds = wall

@@ -10,13 +10,15 @@ import (
 // StatsSettings are the statistics options of a scan, with the population
 // and frequency files already read.
 type StatsSettings struct {
-	HWEMethod        string             // "exact" or "chisq"
-	Populations      *stats.Populations // nil: no populations
-	PopulationsFile  string             // named in messages
-	Panel            *stats.Panel       // nil: no frequency panel
-	InfoKey          string             // INFO key of alternate-allele frequencies ("" : none)
-	MinCallRate      float64            // flag samples below this call rate
-	JackknifeBlockMB float64            // width of the jackknife windows in Mb
+	HWEMethod        string              // "exact" or "chisq"
+	Populations      *stats.Populations  // nil: no populations
+	PopulationsFile  string              // named in messages
+	Panel            *stats.Panel        // nil: no frequency panel
+	InfoKey          string              // INFO key of alternate-allele frequencies ("" : none)
+	MinCallRate      float64             // flag samples below this call rate
+	JackknifeBlockMB float64             // width of the jackknife windows in Mb
+	LikFreqs         stats.LikFreqSource // site frequencies of f_lik
+	NoLikelihoods    bool                // ignore PL/GL and DP
 }
 
 // check validates the settings; the messages name the scan options.
@@ -49,6 +51,8 @@ func (s *StatsSettings) config(samples []string) (*stats.Config, []string, error
 		Freqs:            stats.FreqCohort,
 		JackknifeBlockBP: int64(s.JackknifeBlockMB*1e6 + 0.5),
 		MinCallRate:      s.MinCallRate,
+		LikFreqs:         s.LikFreqs,
+		NoLikelihoods:    s.NoLikelihoods,
 	}
 	var unlisted []string
 	if s.Populations != nil {

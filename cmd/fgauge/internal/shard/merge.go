@@ -8,6 +8,7 @@ import (
 	"math"
 	"os"
 	"sort"
+	"strings"
 	"time"
 
 	"fgauge/cmd/fgauge/internal/badinput"
@@ -15,6 +16,7 @@ import (
 	"fgauge/cmd/fgauge/internal/runsummary"
 	"fgauge/roh"
 	"fgauge/stats"
+	"fgauge/stats/sexcheck"
 	"fgauge/vcfscan"
 )
 
@@ -331,6 +333,9 @@ func Merge(ctx context.Context, cfg MergeConfig) (res *MergeResult, err error) {
 		}
 		out.Close()
 	}()
+	if err := checkXRows(ls, m.totals); err != nil {
+		return nil, err
+	}
 	if err := joinSiteTables(out, "sites.tsv.gz", ls, func(s *State) string { return s.SitesFile }); err != nil {
 		return nil, err
 	}
@@ -428,4 +433,43 @@ func joinSiteTables(out *outdir.Dir, name string, ls []loadedState, file func(*S
 		return err
 	}
 	return dst.Close()
+}
+
+// ErrXSplit is wrapped when shards' X rows were tested with sexes that
+// differ from those the whole run infers.
+var ErrXSplit = errors.New("X rows of a shard were tested with sexes the merged run does not infer")
+
+// checkXRows accepts the shards' non-PAR X rows only when each was tested
+// with the sexes the merged evidence decides (then they equal the rows of
+// one pass). Rows tested with given sexes (--sex for every sample) need
+// no check. A shard state does not keep X calls, so rows tested with
+// other sexes cannot be recomputed here: merge refuses, and the run must
+// keep X and Y in one shard or give --sex for every sample.
+func checkXRows(ls []loadedState, totals *stats.Totals) error {
+	var want []sexcheck.Sex
+	for _, l := range ls {
+		if l.st.XTestSexes == nil {
+			continue
+		}
+		if want == nil {
+			want = totals.Sexes().Test
+		}
+		var differ []string
+		for i, s := range l.st.XTestSexes {
+			if i < len(want) && sexcheck.Sex(s) != want[i] {
+				differ = append(differ, fmt.Sprintf("%s (%s in the shard, %s overall)", totals.Samples[i], sexcheck.Sex(s), want[i]))
+			}
+		}
+		if len(l.st.XTestSexes) != len(want) {
+			return fmt.Errorf("%s: %w: %d X test sexes for %d samples", l.path, ErrCorrupt, len(l.st.XTestSexes), len(want))
+		}
+		if len(differ) > 0 {
+			if len(differ) > 3 {
+				differ = append(differ[:3], fmt.Sprintf("and %d more", len(differ)-3))
+			}
+			return badinput.Wrap(fmt.Errorf("%s: %w: %s; merge cannot recompute X rows: scan non-PAR X and Y in one shard, or give --sex for every sample",
+				l.path, ErrXSplit, strings.Join(differ, ", ")))
+		}
+	}
+	return nil
 }

@@ -110,8 +110,19 @@ type State struct {
 	PopSitesFile string
 	PopSHA256    string
 
+	// XRanges are the compressed ranges of the site table holding non-PAR
+	// X rows tested with sexes decided from this shard's own X and Y
+	// sites, XTestSexes those sexes (sexcheck codes, per sample); nil
+	// when the X rows used given sexes or the shard has no X. Merge
+	// accepts the rows only when the whole run decides the same sexes.
+	XRanges    []XRange
+	XTestSexes []uint8
+
 	WallSeconds float64
 }
+
+// XRange is a compressed byte range [Start, End) of a site table.
+type XRange struct{ Start, End int64 }
 
 // WriteFile writes st atomically (temporary file, then rename).
 func WriteFile(path string, st *State) error {
