@@ -28,6 +28,7 @@
 //     shards and shard ordering; Offset and Chunk are its virtual offsets.
 //   - BGZFWriter writes BGZF (Offset reports virtual offsets); BGZFEOF,
 //     BGZFBlockSize and BGZFRatio serve block splicing and cost estimates.
-//   - TabixWriter and IndexBGZFTable write tabix indexes (biogo/hts/tabix).
+//   - TabixWriter and IndexBGZFTable write tabix indexes (the bytes
+//     biogo/hts/tabix writes, built in linear time; see tabixBuild).
 //   - OpenText opens small text inputs, plain, gzip or BGZF by content.
 package vcfscan

@@ -2,14 +2,13 @@ package vcfscan
 
 import (
 	"bytes"
+	"encoding/binary"
+	"errors"
 	"fmt"
 	"io"
 	"os"
 	"strconv"
-	"strings"
 
-	"github.com/biogo/hts/bgzf/index"
-	"github.com/biogo/hts/tabix"
 	"github.com/klauspost/compress/flate"
 )
 
@@ -38,38 +37,21 @@ var (
 
 // TabixWriter builds the tabix index of a BGZF table from its records,
 // given in file order with the chunk (virtual offsets, see
-// BGZFWriter.Offset) each is stored in, and writes it with
-// biogo/hts/tabix. Records of one chromosome must be contiguous and sorted
-// by start.
+// BGZFWriter.Offset) each is stored in, and writes it. Records of one
+// chromosome must be contiguous and sorted by start. The index is the one
+// biogo/hts/tabix v1.4.5 writes for the same records, byte for byte (see
+// tabixBuild), built in time linear in the records.
 type TabixWriter struct {
-	idx   *tabix.Index
+	idx   *tabixBuild
+	cols  TabixColumns
 	err   error
 	added int
 }
 
 // NewTabixWriter returns an empty index for a table laid out as cols.
 func NewTabixWriter(cols TabixColumns) *TabixWriter {
-	idx := tabix.New()
-	idx.Format = 0 // generic
-	if cols.VCF {
-		idx.Format = 2
-	}
-	idx.ZeroBased = cols.ZeroBased
-	idx.NameColumn, idx.BeginColumn, idx.EndColumn = int32(cols.Seq), int32(cols.Begin), int32(cols.End)
-	idx.MetaChar = rune(cols.Meta)
-	idx.Skip = int32(cols.Skip)
-	return &TabixWriter{idx: idx}
+	return &TabixWriter{idx: newTabixBuild(), cols: cols}
 }
-
-// tabixRecord is what biogo's index takes: 0-based half-open interval.
-type tabixRecord struct {
-	chrom      string
-	start, end int
-}
-
-func (r tabixRecord) RefName() string { return r.chrom }
-func (r tabixRecord) Start() int      { return r.start }
-func (r tabixRecord) End() int        { return r.end }
 
 // Add records that the 0-based half-open interval [beg, end) of chrom is
 // covered by a record stored in chunk c. The first error (records out of
@@ -82,39 +64,32 @@ func (t *TabixWriter) Add(chrom string, beg, end int64, c Chunk) error {
 		t.err = fmt.Errorf("%w: tabix: record %s:%d-%d outside the indexable range 1-%d", ErrLimit, chrom, beg+1, end, tabixMaxPos)
 		return t.err
 	}
-	ids := t.idx.IDs()
-	_, known := ids[chrom]
-	if known && chrom != t.idx.Names()[len(t.idx.Names())-1] {
+	names := t.idx.names
+	_, known := t.idx.ids[chrom]
+	if known && chrom != names[len(names)-1] {
 		t.err = fmt.Errorf("%w: tabix: chromosome %s appears again after %s; the records of a chromosome must be contiguous",
-			ErrUnsorted, chrom, t.idx.Names()[len(t.idx.Names())-1])
+			ErrUnsorted, chrom, names[len(names)-1])
 		return t.err
 	}
-	// biogo/hts v1.4.5 finds a record's last 16 kb window of the linear
-	// index from its exclusive end, one past the last window when the end
-	// falls on a window boundary (and then panics): give it the inclusive
-	// end there. Its bin, computed from end-1, is the same.
+	// As biogo/hts v1.4.5 (whose index this is), a record's last 16 kb
+	// window of the linear index comes from its exclusive end, one past
+	// the last window when the end falls on a window boundary: give it
+	// the inclusive end there. Its bin, computed from end-1, is the same.
 	bEnd := end
 	if end%(1<<14) == 0 {
-		bEnd = end - 1 // for one base, [beg, beg): BinFor still bins it at beg
+		bEnd = end - 1 // for one base, [beg, beg): the bin is still beg's
 	}
-	err := noPanic(func() error {
-		return t.idx.Add(tabixRecord{chrom, int(beg), int(bEnd)}, toBGZFChunk(c), true, true)
-	})
-	if err != nil && strings.Contains(err.Error(), "unexpected alignment length") {
+	err := t.idx.add(chrom, int(beg), int(bEnd), c)
+	if errors.Is(err, errTabixLength) {
 		err = fmt.Errorf("a record crossing a 16 kb window boundary into a window no earlier record reached cannot be indexed by biogo/hts v1.4.5")
-	}
-	if !known {
-		// biogo/hts v1.4.5 appends the name without recording its ID;
-		// record it so that later records of chrom join it.
-		ids[chrom] = len(t.idx.Names()) - 1
 	}
 	if err != nil {
 		t.err = fmt.Errorf("%w: tabix: %s:%d: %v", ErrUnsorted, chrom, beg+1, err)
 	}
-	// biogo keeps one chunk per record until merged; merge touching
-	// chunks now and then so that memory stays small.
+	// Merge touching chunks now and then so that memory stays small (and
+	// the index stays the one biogo/hts builds, which merges here too).
 	if t.added++; t.added%(1<<16) == 0 {
-		t.idx.MergeChunks(index.Adjacent)
+		t.idx.mergeAdjacent()
 	}
 	return t.err
 }
@@ -124,11 +99,11 @@ func (t *TabixWriter) WriteTo(w io.Writer) (int64, error) {
 	if t.err != nil {
 		return 0, t.err
 	}
-	t.idx.MergeChunks(index.Adjacent)
+	t.idx.mergeAdjacent()
 	cw := &countWriter{w: w}
 	bw := NewBGZFWriter(cw, flate.DefaultCompression)
 	bw.SetThreads(1)
-	if err := tabix.WriteTo(bw, t.idx); err != nil {
+	if _, err := bw.Write(t.idx.appendTBI(nil, t.cols)); err != nil {
 		bw.Close()
 		return cw.n, err
 	}
@@ -153,13 +128,17 @@ func (c *countWriter) Write(p []byte) (int, error) {
 // line.
 func IndexBGZFTable(path string, cols TabixColumns) (err error) {
 	idx := NewTabixWriter(cols)
+	chrom := ""
 	if err := scanBGZFLines(path, func(line []byte, n int64, c Chunk) error {
 		if int(n) <= cols.Skip || (cols.Meta != 0 && len(line) > 0 && line[0] == cols.Meta) {
 			return nil
 		}
-		chrom, beg, end, err := tabixInterval(line, cols)
+		chromB, beg, end, err := tabixFields(line, cols)
 		if err != nil {
 			return &ParseError{File: path, Line: n, Offset: int64(c.Begin.Virtual()), Record: -1, Err: err}
+		}
+		if string(chromB) != chrom { // no allocation per line
+			chrom = string(chromB)
 		}
 		if err := idx.Add(chrom, beg, end, c); err != nil {
 			return &ParseError{File: path, Line: n, Offset: int64(c.Begin.Virtual()), Record: -1, Err: err}
@@ -191,6 +170,12 @@ func IndexBGZFTable(path string, cols TabixColumns) (err error) {
 // tabixInterval returns the chromosome and 0-based half-open interval of
 // one table line laid out as cols.
 func tabixInterval(line []byte, cols TabixColumns) (string, int64, int64, error) {
+	chrom, beg, end, err := tabixFields(line, cols)
+	return string(chrom), beg, end, err
+}
+
+// tabixFields is tabixInterval with the chromosome name left in line.
+func tabixFields(line []byte, cols TabixColumns) ([]byte, int64, int64, error) {
 	field := func(k int) ([]byte, bool) {
 		rest := line
 		for i := 1; ; i++ {
@@ -209,6 +194,9 @@ func tabixInterval(line []byte, cols TabixColumns) (string, int64, int64, error)
 		if !ok {
 			return 0, fmt.Errorf("%w: no column %d (%s)", ErrMalformed, k, what)
 		}
+		if v, ok := parsePos(f); ok {
+			return v, nil
+		}
 		v, err := strconv.ParseInt(string(f), 10, 64)
 		if err != nil {
 			return 0, fmt.Errorf("%w: column %d (%s) %q is not a whole number", ErrMalformed, k, what, f)
@@ -217,11 +205,11 @@ func tabixInterval(line []byte, cols TabixColumns) (string, int64, int64, error)
 	}
 	chrom, ok := field(cols.Seq)
 	if !ok || len(chrom) == 0 {
-		return "", 0, 0, fmt.Errorf("%w: no chromosome in column %d", ErrMalformed, cols.Seq)
+		return nil, 0, 0, fmt.Errorf("%w: no chromosome in column %d", ErrMalformed, cols.Seq)
 	}
 	beg, err := num(cols.Begin, "start")
 	if err != nil {
-		return "", 0, 0, err
+		return nil, 0, 0, err
 	}
 	if !cols.ZeroBased {
 		beg--
@@ -234,10 +222,10 @@ func tabixInterval(line []byte, cols TabixColumns) (string, int64, int64, error)
 		}
 	case cols.End > 0:
 		if end, err = num(cols.End, "end"); err != nil {
-			return "", 0, 0, err
+			return nil, 0, 0, err
 		}
 	}
-	return string(chrom), beg, end, nil
+	return chrom, beg, end, nil
 }
 
 // scanBGZFLines calls fn with every line (without its newline) of the
@@ -256,8 +244,9 @@ func scanBGZFLines(path string, fn func(line []byte, n int64, c Chunk) error) er
 		begin   Offset
 		inLine  bool
 		lineNum int64
-		out     bytes.Buffer
-		fr      io.ReadCloser
+		buf     []byte
+		rawBuf  []byte
+		inf     = new(inflater)
 	)
 	head := make([]byte, 18)
 	for {
@@ -271,22 +260,30 @@ func scanBGZFLines(path string, fn func(line []byte, n int64, c Chunk) error) er
 		if !ok || size < 26 {
 			return &ParseError{File: path, Offset: coff << 16, Record: -1, Field: "BGZF block", Err: fmt.Errorf("%w: not a BGZF block header", ErrMalformed)}
 		}
-		raw := make([]byte, size-18)
+		if cap(rawBuf) < size-18 {
+			rawBuf = make([]byte, bgzfMaxBlock)
+		}
+		raw := rawBuf[:size-18]
 		if _, err := io.ReadFull(br, raw); err != nil {
 			return &ParseError{File: path, Offset: coff << 16, Record: -1, Field: "BGZF block", Err: fmt.Errorf("%w: %v", ErrTruncated, err)}
 		}
 		xlen := int(head[10]) | int(head[11])<<8
 		body := raw[xlen-6 : len(raw)-8] // after the extra field, before CRC32 and ISIZE
-		if fr == nil {
-			fr = flate.NewReader(bytes.NewReader(body))
-		} else {
-			fr.(flate.Resetter).Reset(bytes.NewReader(body), nil)
+		isize := int(binary.LittleEndian.Uint32(raw[len(raw)-4:]))
+		if isize > bgzfMaxBlock {
+			return &ParseError{File: path, Offset: coff << 16, Record: -1, Field: "BGZF block", Err: fmt.Errorf("%w: block claims %d inflated bytes, more than a BGZF block holds", ErrMalformed, isize)}
 		}
-		out.Reset()
-		if _, err := out.ReadFrom(fr); err != nil {
+		if cap(buf) < isize {
+			buf = make([]byte, bgzfMaxBlock)
+		}
+		n, _, err := inf.inflate(buf[:isize], body)
+		if err == nil && n != isize {
+			err = fmt.Errorf("block inflates to %d bytes but its ISIZE says %d", n, isize)
+		}
+		if err != nil {
 			return &ParseError{File: path, Offset: coff << 16, Record: -1, Field: "BGZF block", Err: fmt.Errorf("%w: %v", ErrMalformed, err)}
 		}
-		data := out.Bytes()
+		data := buf[:isize]
 		next := coff + int64(size)
 		at := func(i int) Offset {
 			if i >= len(data) {

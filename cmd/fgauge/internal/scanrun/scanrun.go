@@ -234,7 +234,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 		return nil, err
 	}
 	defer sitesFile.Close()
-	sitesZ := vcfscan.NewBGZFWriter(sitesFile, 1)
+	sitesZ := vcfscan.NewBGZFWriter(sitesFile, vcfscan.BGZFSitesLevel)
 	if _, err := io.WriteString(sitesZ, stats.SitesHeaderFor(scfg)+"\n"); err != nil {
 		return nil, err
 	}

@@ -259,7 +259,7 @@ func (x *xDeferral) splice(table string, sexes []sexcheck.Sex, xcols bool, threa
 		written += n
 		pos = sg.offset
 		h := &eofHolder{w: bw}
-		zw := vcfscan.NewBGZFWriter(h, 1)
+		zw := vcfscan.NewBGZFWriter(h, vcfscan.BGZFSitesLevel)
 		for left := sg.n; left > 0; {
 			k := min(left, xRowChunk)
 			left -= k
