@@ -1,6 +1,6 @@
 // Package genmap reads genetic maps (physical position in bp to genetic
 // position in centiMorgans) and interpolates them. It is the one map
-// reader behind every --recombination-map / --genetic-map option: the
+// reader behind every --recombination-map option: the
 // runs-of-homozygosity detection in a scan and the gene-drop simulator
 // read a map file by the same rules and see the same genetic positions.
 //

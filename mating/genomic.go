@@ -82,7 +82,7 @@ type Packer struct {
 	twoP    []float64  // per site kept: 2p
 	fourP2  []float64  // per site kept: 4p^2
 	c       float64    // sum 4p^2
-	het     float64    // sum 2p(1-p)
+	sumHet  float64    // sum 2p(1-p)
 
 	nMissing int64
 	skipped  int64
@@ -123,7 +123,7 @@ func (p *Packer) Sites() int      { return len(p.twoP) }
 func (p *Packer) Skipped() int64  { return p.skipped }
 func (p *Packer) Missing() int64  { return p.nMissing }
 func (p *Packer) Animals() int    { return p.nInd }
-func (p *Packer) SumHet() float64 { return p.het }
+func (p *Packer) SumHet() float64 { return p.sumHet }
 
 // Add packs the records of one batch.
 func (p *Packer) Add(b *vcfscan.Batch) {
@@ -149,7 +149,7 @@ func (p *Packer) addSite(calls []vcfscan.Geno, q float64) {
 	p.twoP = append(p.twoP, tp)
 	p.fourP2 = append(p.fourP2, m)
 	p.c += m
-	p.het += 2 * q * (1 - q)
+	p.sumHet += 2 * q * (1 - q)
 	// Branch-free for called genotypes: masks and weights by code.
 	bit := uint64(1) << p.inWord
 	aMask := [8]uint64{0, bit, bit, 0, 0, 0, 0, 0}
@@ -215,7 +215,7 @@ func (p *Packer) Genomic(ctx context.Context, threads int) (*Matrix, error) {
 	if p.inWord > 0 {
 		p.flush()
 	}
-	if len(p.twoP) == 0 || !(p.het > 0) {
+	if len(p.twoP) == 0 || !(p.sumHet > 0) {
 		return nil, ErrNoSites
 	}
 	if threads <= 0 {
@@ -226,7 +226,7 @@ func (p *Packer) Genomic(ctx context.Context, threads int) (*Matrix, error) {
 	if nS == 0 || nD == 0 {
 		return out, nil
 	}
-	g := &genomicRun{p: p, out: out, nS: nS, scale: 1 / (2 * p.het)} // p.het = sum 2p(1-p); G/2 = S / (2 * p.het)
+	g := &genomicRun{p: p, out: out, nS: nS, scale: 1 / (2 * p.sumHet)} // p.sumHet = sum 2p(1-p); G/2 = S / (2 * p.sumHet)
 	g.prepare()
 	nTasks := (nD + damBlock - 1) / damBlock
 	var next atomic.Int64

@@ -164,7 +164,7 @@ func ExampleXTally() {
 	x.AddCalls(sexes, calls, maleHet)
 	r := x.Row(stats.NewXHWECache(0))
 	fmt.Println(r.Female, r.MaleRef, r.MaleAlt, r.MaleHet, maleHet)
-	fmt.Printf("alt_freq=%.3f p=%.4f\n", r.AltFreq, r.HWE.P)
+	fmt.Printf("alt_freq=%.3f p=%.4f\n", r.AltFreq, r.Equilibrium.P)
 	// Output:
 	// [1 1 1] 1 1 1 [0 0 0 0 0 1]
 	// alt_freq=0.500 p=1.0000

@@ -205,7 +205,7 @@ const FLikMinFreq = 2e-7
 // whether cached or not. Use one FLikSite per goroutine; the zero value is
 // ready to use (call Set for each site).
 type FLikSite struct {
-	hwe     [3]float64
+	hweProb [3]float64
 	ibd     [3]float64
 	ok      bool
 	gen     uint32
@@ -244,7 +244,7 @@ func (s *FLikSite) Set(p float64) bool {
 		return false
 	}
 	q := 1 - p
-	s.hwe = [3]float64{q * q, 2 * p * q, p * p}
+	s.hweProb = [3]float64{q * q, 2 * p * q, p * p}
 	s.ibd = [3]float64{q, 0, p}
 	return true
 }
@@ -262,7 +262,7 @@ func (s *FLikSite) Ratio(pl0, pl1, pl2 uint16) (r float64, ok bool) {
 	if !ok {
 		return 0, false
 	}
-	a := s.hwe[0]*l[0] + s.hwe[1]*l[1] + s.hwe[2]*l[2]
+	a := s.hweProb[0]*l[0] + s.hweProb[1]*l[1] + s.hweProb[2]*l[2]
 	b := s.ibd[0]*l[0] + s.ibd[2]*l[2]
 	return b / a, true
 }

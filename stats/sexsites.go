@@ -255,10 +255,10 @@ func AppendXRow(b, chrom []byte, rec *vcfscan.Record, calls []vcfscan.Geno, sexe
 	b = appendFloat(b, ho)
 	b = appendFloat(b, he)
 	b = appendFloat(b, fsite)
-	b = appendFloat(b, row.HWE.P)
-	b = appendFloat(b, row.HWE.MidP)
-	b = appendFloat(b, row.HWE.Deficit)
-	b = appendFloat(b, row.HWE.Excess)
+	b = appendFloat(b, row.Equilibrium.P)
+	b = appendFloat(b, row.Equilibrium.MidP)
+	b = appendFloat(b, row.Equilibrium.Deficit)
+	b = appendFloat(b, row.Equilibrium.Excess)
 	b = appendFloat(b, nan) // alt_freq_lik: sex-chromosome rows stay out of the likelihood statistics
 	if xcols {
 		b = appendInts(b, t.MaleRef, t.MaleAlt, t.MaleHet, t.UnknownSex)

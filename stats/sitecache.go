@@ -22,7 +22,7 @@ type siteKey [5]int64
 type siteInfo struct {
 	ho, he, fsite float64
 	fsiteFixed    Sum128
-	hwe           HWEResult
+	hweRes        HWEResult
 	pBin, chiBin  int32
 	rowOff        int32 // the float columns of the row: rows[rowOff:rowEnd]
 	rowEnd        int32
@@ -68,12 +68,12 @@ func (w *Worker) site(n0, n1, n2, haploid int64, nSel int) *siteInfo {
 	if ok {
 		return si
 	}
-	si.ho, si.he, si.fsite, si.hwe = siteStats(n0, n1, n2, w.cache)
+	si.ho, si.he, si.fsite, si.hweRes = siteStats(n0, n1, n2, w.cache)
 	if !math.IsNaN(si.fsite) {
 		si.fsiteFixed = fixed(si.fsite)
 	}
-	if si.hwe.Computed {
-		si.pBin, si.chiBin = hweBins(&si.hwe)
+	if si.hweRes.Computed {
+		si.pBin, si.chiBin = hweBins(&si.hweRes)
 	}
 	nCalled := n0 + n1 + n2
 	p := nan
@@ -82,7 +82,7 @@ func (w *Worker) site(n0, n1, n2, haploid int64, nSel int) *siteInfo {
 	}
 	c := w.sites
 	off := len(c.rows)
-	c.rows = appendSiteFloats(c.rows, nCalled, haploid, nSel, p, si.ho, si.he, si.fsite, &si.hwe)
+	c.rows = appendSiteFloats(c.rows, nCalled, haploid, nSel, p, si.ho, si.he, si.fsite, &si.hweRes)
 	si.rowOff, si.rowEnd = int32(off), int32(len(c.rows))
 	si.tabBase = 255
 	return si

@@ -226,8 +226,8 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, lf SiteFreq, 
 	// likelihoods, He and so f_site are taken at the likelihood frequency
 	// (not a function of the counts, so not cached).
 	si := w.site(n0, n1, n2, cnt[vcfscan.HaploidRef]+cnt[vcfscan.HaploidAlt], len(calls))
-	if si.hwe.Computed {
-		t.HWETally.addBinned(&si.hwe, si.pBin, si.chiBin)
+	if si.hweRes.Computed {
+		t.HWETally.addBinned(&si.hweRes, si.pBin, si.chiBin)
 	}
 	he, fsite, fsiteFixed := si.he, si.fsite, si.fsiteFixed
 	if lf.Samples > 0 {
@@ -526,7 +526,7 @@ func (w *Worker) siteRow(sites *bytes.Buffer, rec *vcfscan.Record, cnt *[6]int64
 	b = append(b, '\t')
 	b = strconv.AppendInt(b, haploid, 10)
 	if lf.Samples > 0 {
-		b = appendSiteFloats(b, cnt[vcfscan.HomRef]+cnt[vcfscan.Heterozygous]+cnt[vcfscan.HomAlt], haploid, nSel, p, si.ho, he, fsite, &si.hwe)
+		b = appendSiteFloats(b, cnt[vcfscan.HomRef]+cnt[vcfscan.Heterozygous]+cnt[vcfscan.HomAlt], haploid, nSel, p, si.ho, he, fsite, &si.hweRes)
 	} else {
 		b = append(b, w.sites.rows[si.rowOff:si.rowEnd]...)
 	}

@@ -87,7 +87,7 @@ type XRow struct {
 	UnknownSex       int64
 	FemaleHaploid    int64
 	AltFreq          float64
-	HWE              HWEResult
+	Equilibrium      HWEResult
 }
 
 // Row computes the row values, testing through cache (nil: no cache).
@@ -99,9 +99,9 @@ func (t *XTally) Row(cache *XHWECache) XRow {
 		r.AltFreq = float64(t.Female[1]+2*t.Female[2]+t.MaleAlt) / float64(chrom)
 	}
 	if cache != nil {
-		r.HWE = cache.Test(t)
+		r.Equilibrium = cache.Test(t)
 	} else {
-		r.HWE = t.Test()
+		r.Equilibrium = t.Test()
 	}
 	return r
 }

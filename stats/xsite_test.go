@@ -26,10 +26,10 @@ func TestXTallyAdd(t *testing.T) {
 	}
 	r := x.Row(NewXHWECache(4))
 	// 1 1 1 females, 2 2 males: alt = (1 + 2 + 2) / (6 + 4)
-	if r.AltFreq != 0.5 || !r.HWE.Computed || r.MaleHet != 1 {
+	if r.AltFreq != 0.5 || !r.Equilibrium.Computed || r.MaleHet != 1 {
 		t.Fatalf("%+v", r)
 	}
-	if a, b := r.HWE, HWEExactX(1, 1, 1, 2, 2); a.P != b.P || a.MidP != b.MidP || a.Deficit != b.Deficit || a.Excess != b.Excess {
+	if a, b := r.Equilibrium, HWEExactX(1, 1, 1, 2, 2); a.P != b.P || a.MidP != b.MidP || a.Deficit != b.Deficit || a.Excess != b.Excess {
 		t.Fatalf("cached %+v, direct %+v", a, b)
 	}
 	x.Reset()
@@ -86,7 +86,7 @@ func TestXTestMixedSexCohort(t *testing.T) {
 		if x.MaleHet != 0 || x.MaleRef+x.MaleAlt != nM {
 			t.Fatalf("male counts %+v", x)
 		}
-		if x.Row(cache).HWE.P < 0.05 {
+		if x.Row(cache).Equilibrium.P < 0.05 {
 			xReject++
 		}
 	}

@@ -2,12 +2,9 @@ package main
 
 import (
 	"flag"
-	"fmt"
-	"math"
-	"strconv"
-	"strings"
 
 	"fgauge/cmd/fgauge/internal/scanrun"
+	"fgauge/internal/numfmt"
 )
 
 // memoryFlags are the memory options of scan and merge.
@@ -29,50 +26,15 @@ func addMemoryFlags(fs *flag.FlagSet) *memoryFlags {
 // T suffix (powers of 1024, optionally followed by B or iB).
 type sizeFlag int64
 
-func (s *sizeFlag) String() string { return formatSize(int64(*s)) }
+func (s *sizeFlag) String() string { return numfmt.FormatSize(int64(*s)) }
 
 func (s *sizeFlag) Set(v string) error {
-	n, err := parseSize(v)
+	n, err := numfmt.ParseSize(v)
 	if err != nil {
 		return err
 	}
 	*s = sizeFlag(n)
 	return nil
-}
-
-// parseSize reads "512M", "1G", "1.5G", "200000000" or "64KiB".
-func parseSize(v string) (int64, error) {
-	t := strings.TrimSpace(v)
-	u := strings.ToUpper(t)
-	u = strings.TrimSuffix(strings.TrimSuffix(u, "B"), "I")
-	mult := 1.0
-	if u != "" {
-		if i := strings.IndexByte("KMGT", u[len(u)-1]); i >= 0 {
-			mult = math.Pow(1024, float64(i+1))
-			u = u[:len(u)-1]
-		}
-	}
-	x, err := strconv.ParseFloat(strings.TrimSpace(u), 64)
-	if err != nil || !(x > 0) || math.IsInf(x, 0) || x*mult >= math.MaxInt64 {
-		return 0, fmt.Errorf("%q is not a size: want a positive number of bytes, optionally with K, M, G or T (e.g. 512M, 1G)", v)
-	}
-	n := int64(x * mult)
-	if n < 1 {
-		return 0, fmt.Errorf("%q is less than one byte", v)
-	}
-	return n, nil
-}
-
-// formatSize writes n the way parseSize reads it, with the largest exact
-// unit.
-func formatSize(n int64) string {
-	for i, u := range []string{"T", "G", "M", "K"} {
-		m := int64(1) << (10 * (4 - i))
-		if n >= m && n%m == 0 {
-			return strconv.FormatInt(n/m, 10) + u
-		}
-	}
-	return strconv.FormatInt(n, 10)
 }
 
 // memoryHelp is appended to the help of scan and merge.

@@ -7,11 +7,9 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"sort"
 	"strconv"
 	"strings"
 
-	"fgauge/internal/numfmt"
 	"fgauge/stats/pedigree"
 	"fgauge/vcfscan"
 )
@@ -73,7 +71,7 @@ func runPedigree(ctx context.Context, env *runEnv, args []string) error {
 	if err := ctx.Err(); err != nil {
 		return err
 	}
-	if err := writeFileOrStdout(env.stdout, *out, func(w io.Writer) error { return writeInbreeding(w, ped, f) }); err != nil {
+	if err := writeFileOrStdout(env.stdout, *out, func(w io.Writer) error { return pedigree.WriteInbreeding(w, ped, f) }); err != nil {
 		return err
 	}
 	if *pairsIn == "" {
@@ -136,40 +134,6 @@ func pedigreeInputError(err error) error {
 	// ParseError prints "file:line: field: err"; put the detail after the sentinel.
 	return &vcfscan.ParseError{File: pe.File, Line: int64(pe.Line), Offset: -1, Record: -1,
 		Err: fmt.Errorf("%w: %s", pe.Err, field)}
-}
-
-// writeInbreeding writes id sire dam f_pedigree in input order, with
-// parent-only founders (no input line) first.
-func writeInbreeding(w io.Writer, ped *pedigree.Pedigree, f []float64) error {
-	order := make([]int, ped.Len())
-	for i := range order {
-		order[i] = i
-	}
-	sort.SliceStable(order, func(a, b int) bool { return ped.Line(order[a]) < ped.Line(order[b]) })
-	bw := bufio.NewWriterSize(w, 1<<16)
-	bw.WriteString("id\tsire\tdam\tf_pedigree\n")
-	var b []byte
-	for _, i := range order {
-		b = append(b[:0], ped.ID(i)...)
-		b = append(b, '\t')
-		b = appendParent(b, ped, ped.Sire(i))
-		b = append(b, '\t')
-		b = appendParent(b, ped, ped.Dam(i))
-		b = append(b, '\t')
-		b = strconv.AppendFloat(b, f[i], 'g', -1, 64)
-		b = append(b, '\n')
-		if _, err := bw.Write(b); err != nil {
-			return err
-		}
-	}
-	return bw.Flush()
-}
-
-func appendParent(b []byte, ped *pedigree.Pedigree, j int) []byte {
-	if j < 0 {
-		return append(b, numfmt.NA...)
-	}
-	return append(b, ped.ID(j)...)
 }
 
 // writeFileOrStdout runs fn on path, or on stdout when path is "" or "-".

@@ -8,6 +8,7 @@ import (
 
 	"fgauge/cmd/fgauge/internal/plan"
 	"fgauge/cmd/fgauge/internal/scanrun"
+	"fgauge/internal/numfmt"
 )
 
 const planHelp = `Splits an indexed input (.tbi or .csi next to it) into shards of roughly
@@ -77,7 +78,7 @@ func runPlan(ctx context.Context, env *runEnv, args []string) error {
 		if !hasVal && i+1 < len(scanArgs) {
 			val = scanArgs[i+1]
 		}
-		if n, err := parseSize(val); err == nil {
+		if n, err := numfmt.ParseSize(val); err == nil {
 			cfg.MemoryBudget = n
 		}
 	}

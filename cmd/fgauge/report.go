@@ -1,14 +1,13 @@
 package main
 
 import (
-	"bufio"
 	"context"
 	"errors"
 	"fmt"
 	"os"
-	"strings"
 
 	"fgauge/cmd/fgauge/htmlreport"
+	"fgauge/vcfscan"
 )
 
 const reportHelp = `Writes OUTDIR/report.html, one self-contained page (no scripts, nothing
@@ -64,23 +63,9 @@ func runReport(ctx context.Context, env *runEnv, args []string) error {
 // readNameList reads one sample name per line; blank lines and lines
 // starting with '#' are ignored (a '#' inside a name is kept).
 func readNameList(path string) ([]string, error) {
-	f, err := os.Open(path)
+	names, err := vcfscan.ReadNameList(path, true)
 	if err != nil {
 		return nil, usagef("report: --highlight: %v", err)
 	}
-	defer f.Close()
-	var out []string
-	sc := bufio.NewScanner(f)
-	line := 0
-	for sc.Scan() {
-		line++
-		s := strings.TrimSpace(sc.Text())
-		if s != "" && !strings.HasPrefix(s, "#") {
-			out = append(out, s)
-		}
-	}
-	if err := sc.Err(); err != nil {
-		return nil, fmt.Errorf("%s:%d: %w", path, line+1, err)
-	}
-	return out, nil
+	return names, nil
 }

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bufio"
 	"context"
 	"errors"
 	"flag"
@@ -237,22 +236,9 @@ func (o *scanOptions) loadSampleLists() error {
 // readSampleList reads one name per line (first whitespace-separated field),
 // skipping blank lines and lines starting with '#'.
 func readSampleList(path string) ([]string, error) {
-	f, err := vcfscan.OpenText(path)
+	names, err := vcfscan.ReadNameList(path, false)
 	if err != nil {
 		return nil, badinput.Wrap(err)
-	}
-	defer f.Close()
-	var names []string
-	sc := bufio.NewScanner(f)
-	for sc.Scan() {
-		fields := strings.Fields(sc.Text())
-		if len(fields) == 0 || strings.HasPrefix(fields[0], "#") {
-			continue
-		}
-		names = append(names, fields[0])
-	}
-	if err := sc.Err(); err != nil {
-		return nil, fmt.Errorf("%s: %w", path, err)
 	}
 	return names, nil
 }

@@ -4,9 +4,6 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"io"
-	"os"
-	"path/filepath"
 	"sort"
 	"strings"
 
@@ -193,12 +190,12 @@ func runSimulate(ctx context.Context, env *runEnv, args []string) error {
 	if *herdCands {
 		pairs = append(pairs, res.HerdPairs()...)
 	}
-	paths, err := writeSimulation(*outDir, res)
+	paths, err := genedrop.WriteFiles(*outDir, res)
 	if err != nil {
 		return err
 	}
 	if *pairsFile != "" || *herdCands {
-		more, err := writeSimulatedPairs(*outDir, res, pairs, *herdCands)
+		more, err := genedrop.WritePairFiles(*outDir, res, pairs, *herdCands)
 		if err != nil {
 			return err
 		}
@@ -215,44 +212,6 @@ func runSimulate(ctx context.Context, env *runEnv, args []string) error {
 	return nil
 }
 
-// writeSimulation writes the VCF (unless the run has no sites), the truth
-// tables and the pedigree into dir and returns the paths written.
-func writeSimulation(dir string, res *genedrop.Result) ([]string, error) {
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return nil, err
-	}
-	var paths []string
-	if !res.Config.NoSites {
-		p := filepath.Join(dir, "simulated.vcf.gz")
-		if err := genedrop.WriteVCFBGZF(p, res); err != nil {
-			return nil, fmt.Errorf("writing %s: %w", p, err)
-		}
-		paths = append(paths, p)
-		if res.Config.Depth > 0 {
-			p := filepath.Join(dir, "truth_genotypes.vcf.gz")
-			if err := genedrop.WriteTruthVCFBGZF(p, res); err != nil {
-				return nil, fmt.Errorf("writing %s: %w", p, err)
-			}
-			paths = append(paths, p)
-		}
-	}
-	for _, t := range []struct {
-		name string
-		fn   func(io.Writer, *genedrop.Result) error
-	}{
-		{"truth_samples.tsv", genedrop.WriteSamplesTruth},
-		{"truth_segments.tsv", genedrop.WriteSegmentsTruth},
-		{"pedigree.tsv", genedrop.WritePedigree},
-	} {
-		p := filepath.Join(dir, t.name)
-		if err := writeFileOrStdout(nil, p, func(w io.Writer) error { return t.fn(w, res) }); err != nil {
-			return nil, fmt.Errorf("writing %s: %w", p, err)
-		}
-		paths = append(paths, p)
-	}
-	return paths, nil
-}
-
 // readSimulatedPairs reads a pairs file against the simulated pedigree;
 // bad lines are input errors naming file and line.
 func readSimulatedPairs(res *genedrop.Result, path string) ([][2]int, error) {
@@ -266,45 +225,4 @@ func readSimulatedPairs(res *genedrop.Result, path string) ([][2]int, error) {
 		return nil, pedigreeInputError(err)
 	}
 	return pairs, nil
-}
-
-// writeSimulatedPairs writes truth_pairs.tsv and, with candidates, the
-// closed herds' candidate lists, and returns the paths written.
-func writeSimulatedPairs(dir string, res *genedrop.Result, pairs [][2]int, candidates bool) ([]string, error) {
-	truth, err := res.Pairs(pairs)
-	if err != nil {
-		return nil, err
-	}
-	p := filepath.Join(dir, "truth_pairs.tsv")
-	if err := writeFileOrStdout(nil, p, func(w io.Writer) error { return genedrop.WritePairsTruth(w, res, truth) }); err != nil {
-		return nil, fmt.Errorf("writing %s: %w", p, err)
-	}
-	paths := []string{p}
-	if !candidates {
-		return paths, nil
-	}
-	var sires, dams []int
-	for rep := 1; rep <= res.Config.Replicates; rep++ {
-		s, d := res.HerdCandidates(rep)
-		sires, dams = append(sires, s...), append(dams, d...)
-	}
-	for _, l := range []struct {
-		name string
-		ids  []int
-	}{{"candidate_sires.txt", sires}, {"candidate_dams.txt", dams}} {
-		p := filepath.Join(dir, l.name)
-		err := writeFileOrStdout(nil, p, func(w io.Writer) error {
-			for _, i := range l.ids {
-				if _, err := fmt.Fprintln(w, res.Samples[i].ID); err != nil {
-					return err
-				}
-			}
-			return nil
-		})
-		if err != nil {
-			return nil, fmt.Errorf("writing %s: %w", p, err)
-		}
-		paths = append(paths, p)
-	}
-	return paths, nil
 }

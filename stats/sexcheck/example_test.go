@@ -40,7 +40,7 @@ func ExampleList_ForSamples() {
 }
 
 func ExampleFromPedigree() {
-	p, _ := pedigree.Read(strings.NewReader("id\tsire\tdam\tsex\nbuck_02\t0\t0\tM\nnanny_07\t0\t0\tF\nkid_11\tbuck_02\tnanny_07\t.\n"), "coop.ped")
+	p, _ := pedigree.Read(strings.NewReader("id\tsire\tdam\tsex\nbuck_02\t0\t0\tM\nnanny_07\t0\t0\tF\nkid_11\tbuck_02\tnanny_07\t.\n"), "coop_herd_book.tsv")
 	sx, present := sexcheck.FromPedigree(p, []string{"kid_11", "nanny_07", "buck_02"})
 	fmt.Println(sx, present)
 	// Output: [unknown female male] true

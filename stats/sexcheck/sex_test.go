@@ -71,7 +71,7 @@ func TestForSamples(t *testing.T) {
 }
 
 func TestFromPedigree(t *testing.T) {
-	p, err := pedigree.Read(strings.NewReader("id\tsire\tdam\tsex\nbuck_1\t0\t0\tM\nnanny_1\t0\t0\tF\nkid_1\tbuck_1\tnanny_1\t0\n"), "herd.ped")
+	p, err := pedigree.Read(strings.NewReader("id\tsire\tdam\tsex\nbuck_1\t0\t0\tM\nnanny_1\t0\t0\tF\nkid_1\tbuck_1\tnanny_1\t0\n"), "herd_book.tsv")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -79,7 +79,7 @@ func TestFromPedigree(t *testing.T) {
 	if !ok || sx[0] != Unknown || sx[1] != Female || sx[2] != Unknown || sx[3] != Male {
 		t.Fatalf("%v %v", sx, ok)
 	}
-	p2, _ := pedigree.Read(strings.NewReader("kid_1\tbuck_1\tnanny_1\n"), "nosex.ped")
+	p2, _ := pedigree.Read(strings.NewReader("kid_1\tbuck_1\tnanny_1\n"), "herd_book_no_sex.tsv")
 	if _, ok := FromPedigree(p2, []string{"kid_1"}); ok {
 		t.Fatal("pedigree without a sex column reported as having one")
 	}
