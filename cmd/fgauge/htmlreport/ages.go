@@ -2,14 +2,13 @@ package htmlreport
 
 import (
 	"fmt"
+	"image/color"
 	"math"
 	"sort"
 	"strconv"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
-	"gonum.org/v1/plot/vg"
-	"gonum.org/v1/plot/vg/draw"
 
 	"fgauge/roh"
 )
@@ -144,33 +143,14 @@ func (c *cohort) figAges() (figure, error) {
 		names = append(names, clip(c.names[rows[lo].i], 18))
 	}
 	p := newPlot("", "samples, lowest to highest autozygosity (up to "+strconv.Itoa(bands[len(bands)-1].G)+" generations)", "share of genome autozygous")
-	w := vg.Length(float64(plotW-2*vg.Centimeter) / float64(nb) * 0.85)
-	var prev *plotter.BarChart
 	labels := make([]string, len(bands))
 	for k, b := range bands {
 		labels[k] = b.Label
-		bc, err := plotter.NewBarChart(vals[k], w)
-		if err != nil {
-			return f, err
-		}
-		bc.Color = bandColor(len(bands)-1-k, len(bands))
-		bc.LineStyle.Width = 0
-		if prev != nil {
-			bc.StackOn(prev)
-		}
-		p.Add(bc)
-		prev = bc
+	}
+	if err := stackSampleBars(p, vals, names, group, func(k int) color.Color { return bandColor(len(bands)-1-k, len(bands)) }); err != nil {
+		return f, err
 	}
 	legendAges(p, labels)
-	p.Legend.Left = true
-	if nb <= maxNamedTicks && group == 1 {
-		p.NominalX(names...)
-		p.X.Tick.Label.Rotation = math.Pi / 3
-		p.X.Tick.Label.XAlign = draw.XRight
-		p.X.Tick.Label.YAlign = draw.YCenter
-	} else {
-		p.X.Tick.Marker = plot.ConstantTicks(nil)
-	}
 	f.Points, f.Total = nb, len(rows)
 	if group > 1 {
 		f.Note = fmt.Sprintf("%d samples shown as %d bars: each bar is the mean of %d consecutive samples in order of total autozygosity.", len(rows), nb, group)

@@ -132,31 +132,10 @@ func (c *cohort) figClasses() (figure, error) {
 		names = append(names, clip(c.names[order[lo]], 18))
 	}
 	p := newPlot("", "samples, lowest to highest F_ROH", "F_ROH")
-	w := vg.Length(float64(plotW-2*vg.Centimeter) / float64(nb) * 0.85)
-	var prev *plotter.BarChart
-	for k := range labels {
-		bc, err := plotter.NewBarChart(vals[k], w)
-		if err != nil {
-			return f, err
-		}
-		bc.Color = bandColor(k, len(labels))
-		bc.LineStyle.Width = 0
-		if prev != nil {
-			bc.StackOn(prev)
-		}
-		p.Add(bc)
-		prev = bc
+	if err := stackSampleBars(p, vals, names, group, func(k int) color.Color { return bandColor(k, len(labels)) }); err != nil {
+		return f, err
 	}
 	legendBands(p, labels)
-	p.Legend.Left = true
-	if nb <= maxNamedTicks && group == 1 {
-		p.NominalX(names...)
-		p.X.Tick.Label.Rotation = math.Pi / 3
-		p.X.Tick.Label.XAlign = draw.XRight
-		p.X.Tick.Label.YAlign = draw.YCenter
-	} else {
-		p.X.Tick.Marker = plot.ConstantTicks(nil)
-	}
 	f.Points, f.Total = nb, len(order)
 	if group > 1 {
 		f.Note = fmt.Sprintf("%d samples shown as %d bars: each bar is the mean of %d consecutive samples in F_ROH order.", len(order), nb, group)
@@ -585,4 +564,37 @@ func (c *cohort) figQuality() (figure, error) {
 	var err error
 	f.SVG, err = renderPlot(p, plotW, plotH)
 	return f, err
+}
+
+// stackSampleBars draws vals[0], vals[1], ... as bars stacked per sample
+// (one bar per entry of names), coloured by colorOf, with the legend on
+// the left and the sample names as ticks when there are few enough bars
+// of single samples (group 1).
+func stackSampleBars(p *plot.Plot, vals []plotter.Values, names []string, group int, colorOf func(k int) color.Color) error {
+	nb := len(names)
+	w := vg.Length(float64(plotW-2*vg.Centimeter) / float64(nb) * 0.85)
+	var prev *plotter.BarChart
+	for k := range vals {
+		bc, err := plotter.NewBarChart(vals[k], w)
+		if err != nil {
+			return err
+		}
+		bc.Color = colorOf(k)
+		bc.LineStyle.Width = 0
+		if prev != nil {
+			bc.StackOn(prev)
+		}
+		p.Add(bc)
+		prev = bc
+	}
+	p.Legend.Left = true
+	if nb <= maxNamedTicks && group == 1 {
+		p.NominalX(names...)
+		p.X.Tick.Label.Rotation = math.Pi / 3
+		p.X.Tick.Label.XAlign = draw.XRight
+		p.X.Tick.Label.YAlign = draw.YCenter
+	} else {
+		p.X.Tick.Marker = plot.ConstantTicks(nil)
+	}
+	return nil
 }
