@@ -41,6 +41,7 @@ type tabixBin struct {
 	bin    uint32
 	chunks []Chunk
 	maxEnd uint64 // the largest chunk end: records in file order start there
+	slow   bool   // a record out of file order came: merge only at the end
 }
 
 const tabixTileWidth = 1 << 14
@@ -114,10 +115,21 @@ func (x *tabixBuild) add(chrom string, beg, end int, c Chunk) error {
 		b := &ref.bins[i]
 		if cb := c.Begin.Virtual(); b.maxEnd <= cb {
 			// No chunk ends past c's begin (the case of records in file
-			// order): append without looking.
-			b.chunks = append(b.chunks, c)
+			// order): append without looking, or, when the last chunk
+			// reaches c's begin, let it absorb c now as mergeAdjacent
+			// would at the end (the chunks stay sorted by begin, so the
+			// result is the same), which keeps the index O(bins) in
+			// memory instead of one chunk per record.
+			if k := len(b.chunks) - 1; k >= 0 && !b.slow && b.chunks[k].End.Virtual() >= cb {
+				if c.End.Virtual() > b.chunks[k].End.Virtual() {
+					b.chunks[k].End = c.End
+				}
+			} else {
+				b.chunks = append(b.chunks, c)
+			}
 			b.maxEnd = max(b.maxEnd, c.End.Virtual())
 		} else {
+			b.slow = true
 			for j := range b.chunks {
 				if b.chunks[j].End.Virtual() > cb {
 					b.chunks[j].End = c.End
