@@ -501,6 +501,10 @@ type BGZFWriter struct {
 	closed  bool
 	pending int          // blocks submitted since the last wait for the writer
 	written atomic.Int64 // compressed bytes written to w
+
+	li     *lineIndex     // the table's index, built as it is written (IndexLines)
+	blkMu  sync.Mutex     // guards blkLog
+	blkLog []bgzfBlockLen // blocks written since lineIndex last looked (IndexLines)
 }
 
 // bgzfWJob is one block on its way through the writer. A job with
@@ -621,6 +625,11 @@ func (bw *BGZFWriter) writeLoop() {
 			if err != nil {
 				bw.setErr(err)
 			}
+			if bw.li != nil {
+				bw.blkMu.Lock()
+				bw.blkLog = append(bw.blkLog, bgzfBlockLen{int64(len(j.in)), int64(n)})
+				bw.blkMu.Unlock()
+			}
 		}
 		j.in = j.in[:0]
 		bw.free <- j
@@ -647,6 +656,12 @@ func (bw *BGZFWriter) Write(p []byte) (int, error) {
 	}
 	if !bw.started {
 		bw.start()
+	}
+	if li := bw.li; li != nil {
+		li.feed(p)
+		if len(li.pend) >= 1<<14 {
+			li.resolve(bw)
+		}
 	}
 	n := 0
 	for len(p) > 0 {

@@ -126,7 +126,7 @@ func (c *countWriter) Write(p []byte) (int, error) {
 // tabix index to path+".tbi" (through a temporary file renamed into
 // place, so a failed run leaves no index). Errors name the file and the
 // line.
-func IndexBGZFTable(path string, cols TabixColumns) (err error) {
+func IndexBGZFTable(path string, cols TabixColumns) error {
 	idx := NewTabixWriter(cols)
 	chrom := ""
 	if err := scanBGZFLines(path, func(line []byte, n int64, c Chunk) error {
@@ -147,24 +147,7 @@ func IndexBGZFTable(path string, cols TabixColumns) (err error) {
 	}); err != nil {
 		return err
 	}
-	tmp := path + ".tbi.tmp"
-	f, err := os.Create(tmp)
-	if err != nil {
-		return err
-	}
-	defer func() {
-		if err != nil {
-			os.Remove(tmp)
-		}
-	}()
-	if _, err = idx.WriteTo(f); err != nil {
-		f.Close()
-		return err
-	}
-	if err = f.Close(); err != nil {
-		return err
-	}
-	return os.Rename(tmp, path+".tbi")
+	return writeTBIFile(path+".tbi", idx)
 }
 
 // tabixInterval returns the chromosome and 0-based half-open interval of

@@ -235,6 +235,7 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	}
 	defer sitesFile.Close()
 	sitesZ := vcfscan.NewBGZFWriter(sitesFile, vcfscan.BGZFSitesLevel)
+	sitesZ.IndexLines(vcfscan.TabixSitesColumns)
 	if _, err := io.WriteString(sitesZ, stats.SitesHeaderFor(scfg)+"\n"); err != nil {
 		return nil, err
 	}
@@ -390,15 +391,19 @@ func Run(ctx context.Context, cfg Config) (res *Result, err error) {
 	}
 	totals.Lik = lik.Acc()
 	var xr xRows
+	// Its tabix index, so standard tools slice it by region (none when
+	// unsorted or past 2^29): built while it was written, or, when the
+	// X rows were spliced in afterwards, by reading it back.
+	indexSites := func() error { return sitesZ.WriteIndex(out.Path("sites.tsv.gz")) }
 	if xd != nil && len(xd.segs) > 0 {
 		xr.sexes = totals.Sexes().Test
 		if xr.ranges, err = xd.splice(out.Path("sites.tsv.gz"), xr.sexes, scfg.Sex.XColumns, cfg.Threads); err != nil {
 			return nil, err
 		}
+		indexSites = func() error { return vcfscan.IndexBGZFTable(out.Path("sites.tsv.gz"), vcfscan.TabixSitesColumns) }
 	}
 	xd.close()
-	// Its tabix index, so standard tools slice it by region (none when unsorted or past 2^29).
-	if err := vcfscan.IndexBGZFTable(out.Path("sites.tsv.gz"), vcfscan.TabixSitesColumns); err != nil && !errors.Is(err, vcfscan.ErrLimit) && !errors.Is(err, vcfscan.ErrUnsorted) {
+	if err := indexSites(); err != nil && !errors.Is(err, vcfscan.ErrLimit) && !errors.Is(err, vcfscan.ErrUnsorted) {
 		return nil, err
 	}
 	if popZ != nil {
