@@ -28,46 +28,100 @@ type siteInfo struct {
 	rowEnd        int32
 	tabBase       vcfscan.Geno // base genotype of tab; 255 when tab is not filled
 	tab           siteTab
+	hweHits       int64 // sites with this test not yet in the totals (siteCache.flushHWE)
+	idx           int32 // the entry's number in the cache
 }
 
 // siteCache memoises siteInfo by siteKey for one worker. It is bounded:
 // when full it is emptied (entries are pure functions of the key, so
-// output does not depend on the cache's state).
+// output does not depend on the cache's state). The look-up is an
+// open-addressing table of entry numbers (linear probing, at most half
+// full), cheaper than a Go map for this one fixed key type.
 type siteCache struct {
-	idx   map[siteKey]int32
+	slots []int32 // entry number + 1; 0 is an empty slot
+	keys  []siteKey
 	infos []siteInfo
 	rows  []byte
 	max   int
+
+	// hweOpen lists the entries whose hweHits are not yet in the totals.
+	hweOpen []int32
 }
 
 func newSiteCache(max int) *siteCache {
-	return &siteCache{idx: make(map[siteKey]int32), max: max}
+	n := 1
+	for n < 2*max {
+		n *= 2
+	}
+	return &siteCache{slots: make([]int32, n), max: max}
+}
+
+func (k *siteKey) hash() uint64 {
+	x := uint64(k[0])*0x9e3779b97f4a7c15 + uint64(k[1])*0xc2b2ae3d27d4eb4f +
+		uint64(k[2])*0x165667b19e3779f9 + uint64(k[3])*0x27d4eb2f165667c5 + uint64(k[4])*0x85ebca77c2b2ae63
+	x ^= x >> 31
+	x *= 0xd6e8feb86659fd93
+	return x ^ x>>32
 }
 
 // get returns the entry for k and whether it was already there; a new
-// entry is zeroed and must be filled by the caller.
-func (c *siteCache) get(k siteKey) (*siteInfo, bool) {
-	if i, ok := c.idx[k]; ok {
-		return &c.infos[i], true
+// entry is zeroed and must be filled by the caller. Before the cache is
+// emptied, the HWE tests its entries counted are added to hwe.
+func (c *siteCache) get(k siteKey, hwe *HWESummary) (*siteInfo, bool) {
+	mask := uint64(len(c.slots) - 1)
+	h := k.hash() & mask
+	for {
+		i := c.slots[h]
+		if i == 0 {
+			break
+		}
+		if c.keys[i-1] == k {
+			return &c.infos[i-1], true
+		}
+		h = (h + 1) & mask
 	}
 	if len(c.infos) >= c.max {
-		clear(c.idx)
+		c.flushHWE(hwe)
+		clear(c.slots)
+		c.keys = c.keys[:0]
 		c.infos = c.infos[:0]
 		c.rows = c.rows[:0]
+		h = k.hash() & mask
 	}
-	c.idx[k] = int32(len(c.infos))
+	c.slots[h] = int32(len(c.infos) + 1)
+	c.keys = append(c.keys, k)
 	c.infos = append(c.infos, siteInfo{})
 	return &c.infos[len(c.infos)-1], false
+}
+
+// flushHWE adds the HWE tests counted in the entries since the last flush
+// to h (the same sums as adding each site's test in turn).
+func (c *siteCache) flushHWE(h *HWESummary) {
+	for _, i := range c.hweOpen {
+		si := &c.infos[i]
+		h.addBinnedN(&si.hweRes, si.pBin, si.chiBin, si.hweHits)
+		si.hweHits = 0
+	}
+	c.hweOpen = c.hweOpen[:0]
+}
+
+// countHWE counts one more site whose test is si's.
+func (c *siteCache) countHWE(si *siteInfo) {
+	if si.hweHits == 0 {
+		c.hweOpen = append(c.hweOpen, int32(si.idx))
+	}
+	si.hweHits++
 }
 
 // site returns the cached derived values of a site with diploid counts
 // n0, n1, n2 and haploid haploid calls among nSel selected samples,
 // computing them on a miss.
 func (w *Worker) site(n0, n1, n2, haploid int64, nSel int) *siteInfo {
-	si, ok := w.sites.get(siteKey{n0, n1, n2, haploid, int64(nSel)})
+	si, ok := w.sites.get(siteKey{n0, n1, n2, haploid, int64(nSel)}, &w.t.HWETally)
 	if ok {
 		return si
 	}
+	si.idx = int32(len(w.sites.infos) - 1)
 	si.ho, si.he, si.fsite, si.hweRes = siteStats(n0, n1, n2, w.cache)
 	if !math.IsNaN(si.fsite) {
 		si.fsiteFixed = fixed(si.fsite)

@@ -102,21 +102,24 @@ func hweBins(r *HWEResult) (pb, cb int32) {
 }
 
 // addBinned is add with the bins of r already computed by hweBins.
-func (h *HWESummary) addBinned(r *HWEResult, pb, cb int32) {
-	h.Tested++
+func (h *HWESummary) addBinned(r *HWEResult, pb, cb int32) { h.addBinnedN(r, pb, cb, 1) }
+
+// addBinnedN is addBinned n times.
+func (h *HWESummary) addBinnedN(r *HWEResult, pb, cb int32, n int64) {
+	h.Tested += n
 	p := r.P
 	if p < 1e-3 {
-		h.Below[0]++
+		h.Below[0] += n
 	}
 	if p < 1e-6 {
-		h.Below[1]++
+		h.Below[1] += n
 	}
 	if p < 1e-10 {
-		h.Below[2]++
+		h.Below[2] += n
 	}
-	h.PHist[pb]++
+	h.PHist[pb] += n
 	if !math.IsNaN(r.ChiSq) {
-		h.ChiHist[cb]++
+		h.ChiHist[cb] += n
 	}
 }
 

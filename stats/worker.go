@@ -146,11 +146,15 @@ func NewWorker(cfg *Config, contigName func(id int) string) *Worker {
 // worker's own unless ShareLikelihoods was called: then the caller puts
 // the shared state in the merged totals.
 func (w *Worker) Totals() *Totals {
+	w.flushHWE()
 	if w.lik.private {
 		w.t.Lik = w.lik.shared.Acc()
 	}
 	return w.t
 }
+
+// flushHWE adds the HWE tests counted in the site cache to the totals.
+func (w *Worker) flushHWE() { w.sites.flushHWE(&w.t.HWETally) }
 
 // ProcessBatch computes the statistics of every record of b in order. For
 // each record it appends its sites.tsv row to sites and its
@@ -227,7 +231,7 @@ func (w *Worker) record(rec *vcfscan.Record, calls []vcfscan.Geno, lf SiteFreq, 
 	// (not a function of the counts, so not cached).
 	si := w.site(n0, n1, n2, cnt[vcfscan.HaploidRef]+cnt[vcfscan.HaploidAlt], len(calls))
 	if si.hweRes.Computed {
-		t.HWETally.addBinned(&si.hweRes, si.pBin, si.chiBin)
+		w.sites.countHWE(si)
 	}
 	he, fsite, fsiteFixed := si.he, si.fsite, si.fsiteFixed
 	if lf.Samples > 0 {
