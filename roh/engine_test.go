@@ -2,6 +2,7 @@ package roh
 
 import (
 	"bytes"
+	"context"
 	"errors"
 	"math"
 	"math/rand/v2"
@@ -278,6 +279,15 @@ func TestJoinSpilledMatchesWhole(t *testing.T) {
 		}
 		if g, w := runsText(got), runsText(want); g != w {
 			t.Errorf("%s pl %v: joined pieces files differ from one pass:\n%s", tc.method, tc.pl, firstDiff(g, w))
+		}
+		// An interrupt (a cancelled context) stops the join with its error.
+		ctx, cancel := context.WithCancel(context.Background())
+		cancel()
+		if _, _, err := JoinAndDetectPiecesStats(ctx, &small, sampleNames(ns), refs[:]); !errors.Is(err, context.Canceled) {
+			t.Errorf("%s pl %v: a cancelled join gives %v", tc.method, tc.pl, err)
+		}
+		if left, _ := os.ReadDir(small.TempDir); len(left) > 0 {
+			t.Errorf("a cancelled join left %d files in the temporary folder", len(left))
 		}
 	}
 }

@@ -2,6 +2,7 @@ package roh
 
 import (
 	"bytes"
+	"context"
 	"encoding/binary"
 	"encoding/gob"
 	"errors"
@@ -297,13 +298,15 @@ type PieceRef struct {
 // wanted) are read window by window and fed to a Collector, so memory
 // stays within cfg.MemoryBudget whatever their size.
 func JoinAndDetectPieces(cfg *Config, samples []string, chroms [][]PieceRef) (*Result, error) {
-	r, _, err := JoinAndDetectPiecesStats(cfg, samples, chroms)
+	r, _, err := JoinAndDetectPiecesStats(context.Background(), cfg, samples, chroms)
 	return r, err
 }
 
 // JoinAndDetectPiecesStats is JoinAndDetectPieces that also reports how
-// detection used its memory budget (Collector.MemoryStats).
-func JoinAndDetectPiecesStats(cfg *Config, samples []string, chroms [][]PieceRef) (*Result, MemoryStats, error) {
+// detection used its memory budget (Collector.MemoryStats). Cancelling
+// ctx stops reading the pieces and the detection still running; it then
+// returns ctx's error.
+func JoinAndDetectPiecesStats(ctx context.Context, cfg *Config, samples []string, chroms [][]PieceRef) (*Result, MemoryStats, error) {
 	contigs := make([]vcfscan.Contig, len(chroms))
 	for i, refs := range chroms {
 		if len(refs) == 0 {
@@ -332,10 +335,16 @@ func JoinAndDetectPiecesStats(cfg *Config, samples []string, chroms [][]PieceRef
 	for i := range contigs {
 		col.autoOf[i] = 1
 	}
+	stop := context.AfterFunc(ctx, col.Cancel)
+	defer stop()
 	var f pieceFeeder
 	for i, refs := range chroms {
 		for _, ref := range refs {
-			if err := f.feed(col, i, ref); err != nil {
+			err := ctx.Err()
+			if err == nil {
+				err = f.feed(col, i, ref)
+			}
+			if err != nil {
 				ms := col.MemoryStats()
 				col.Close()
 				return nil, ms, err
@@ -343,6 +352,9 @@ func JoinAndDetectPiecesStats(cfg *Config, samples []string, chroms [][]PieceRef
 		}
 	}
 	r, err := col.Finish()
+	if ctx.Err() != nil {
+		return nil, col.MemoryStats(), ctx.Err()
+	}
 	return r, col.MemoryStats(), err
 }
 

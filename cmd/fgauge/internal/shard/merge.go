@@ -164,7 +164,7 @@ type merged struct {
 }
 
 // combine merges the accumulators of ordered states.
-func combine(ls []loadedState, cfg *MergeConfig, mem *runsummary.Memory) (*merged, error) {
+func combine(ctx context.Context, ls []loadedState, cfg *MergeConfig, mem *runsummary.Memory) (*merged, error) {
 	// loadStates has already folded every state's sums into the first.
 	m := &merged{first: ls[0].st, totals: ls[0].st.Totals}
 	warn := map[string]*vcfscan.Warning{}
@@ -215,7 +215,7 @@ func combine(ls []loadedState, cfg *MergeConfig, mem *runsummary.Memory) (*merge
 	if ls[0].st.ROH == nil {
 		return m, nil
 	}
-	rres, err := combineROH(ls, cfg, mem)
+	rres, err := combineROH(ctx, ls, cfg, mem)
 	if err != nil {
 		return nil, err
 	}
@@ -226,7 +226,7 @@ func combine(ls []loadedState, cfg *MergeConfig, mem *runsummary.Memory) (*merge
 // combineROH gathers the runs of whole chromosomes and detects the
 // chromosomes split across shards on their joined data, read window by
 // window from the shards' pieces files within the memory budget.
-func combineROH(ls []loadedState, cfg *MergeConfig, mem *runsummary.Memory) (*roh.Result, error) {
+func combineROH(ctx context.Context, ls []loadedState, cfg *MergeConfig, mem *runsummary.Memory) (*roh.Result, error) {
 	f := ls[0].st
 	r := &roh.Result{Method: f.ROH.Method, Samples: f.ROH.Samples, Classes: f.ROH.Classes,
 		GenotypeError: f.ROH.GenotypeError, CMPerMB: f.ROH.CMPerMB, Fit: f.ROH.Fit, Excluded: map[string]int64{},
@@ -267,7 +267,7 @@ func combineROH(ls []loadedState, cfg *MergeConfig, mem *runsummary.Memory) (*ro
 		for i, n := range pieceOrder {
 			groups[i] = pieces[n]
 		}
-		joined, ms, err := roh.JoinAndDetectPiecesStats(&rc, r.Samples, groups)
+		joined, ms, err := roh.JoinAndDetectPiecesStats(ctx, &rc, r.Samples, groups)
 		mem.PeakHeldBytes, mem.InFlightBytes, mem.SpilledBytes = ms.PeakHeld, ms.InFlight, ms.SpilledBytes
 		if err != nil {
 			if errors.Is(err, roh.ErrPieces) {
@@ -366,7 +366,7 @@ func Merge(ctx context.Context, cfg MergeConfig) (res *MergeResult, err error) {
 			return nil, err
 		}
 	}
-	m, err := combine(ls, &cfg, mem)
+	m, err := combine(ctx, ls, &cfg, mem)
 	if err != nil {
 		return nil, err
 	}
