@@ -272,6 +272,13 @@ func (r *Result) SampleStats() []SampleStats {
 // SampleTable returns the columns appended to samples.tsv and one row per
 // sample in sample order.
 func (r *Result) SampleTable() (header []string, rows [][]string) {
+	header, part := r.SampleRows()
+	return header, part(0, len(r.Samples))
+}
+
+// SampleRows is SampleTable in parts: rows(lo, hi) formats the rows of
+// samples lo to hi-1.
+func (r *Result) SampleRows() (header []string, rows func(lo, hi int) [][]string) {
 	header = columnNames("samples.tsv")
 	for _, mb := range r.Classes {
 		header = append(header, ClassColumn(mb))
@@ -283,17 +290,22 @@ func (r *Result) SampleTable() (header []string, rows [][]string) {
 		}
 		within = r.FWithin()
 	}
-	for s, st := range r.SampleStats() {
-		row := []string{strconv.Itoa(st.NRuns), strconv.FormatInt(st.TotalBP, 10), fmtF(st.FROH)}
-		for _, v := range st.ByClass {
-			row = append(row, fmtF(v))
+	stats := r.SampleStats()
+	return header, func(lo, hi int) [][]string {
+		rows := make([][]string, 0, hi-lo)
+		for s := lo; s < hi; s++ {
+			st := &stats[s]
+			row := []string{strconv.Itoa(st.NRuns), strconv.FormatInt(st.TotalBP, 10), fmtF(st.FROH)}
+			for _, v := range st.ByClass {
+				row = append(row, fmtF(v))
+			}
+			for _, v := range within {
+				row = append(row, fmtF(v[s]))
+			}
+			rows = append(rows, row)
 		}
-		for _, v := range within {
-			row = append(row, fmtF(v[s]))
-		}
-		rows = append(rows, row)
+		return rows
 	}
-	return header, rows
 }
 
 // Summary is the "roh" object of run.json: the detector and its settings,

@@ -491,6 +491,20 @@ func (t *Totals) CallRate(i int) float64 { return t.estimates(i).callRate }
 // one row per selected sample, in order. The population column is present
 // only with populations ("NA" for unlisted samples).
 func (t *Totals) SampleTable() (header []string, rows [][]string) {
+	header, v := t.sampleTableHeader()
+	return header, t.sampleRows(v)(0, len(t.PerSample))
+}
+
+// SampleRows is SampleTable in parts: rows(lo, hi) formats the rows of
+// samples lo to hi-1, so that a writer holds one part of a large cohort's
+// table at a time.
+func (t *Totals) SampleRows() (header []string, rows func(lo, hi int) [][]string) {
+	h, v := t.sampleTableHeader()
+	return h, t.sampleRows(v)
+}
+
+// sampleTableHeader is SampleTable's header (and the estimates it needs).
+func (t *Totals) sampleTableHeader() ([]string, *sampleView) {
 	var skip []string
 	if t.PopOf == nil {
 		skip = append(skip, "population")
@@ -502,8 +516,22 @@ func (t *Totals) SampleTable() (header []string, rows [][]string) {
 	case t.Sex.Given == nil:
 		skip = append(skip, "sex_given")
 	}
-	header = strings.Split(headerLine(FileSamples, skip...), "\t")
-	for i := range t.PerSample {
+	return strings.Split(headerLine(FileSamples, skip...), "\t"), v
+}
+
+func (t *Totals) sampleRows(v *sampleView) func(lo, hi int) [][]string {
+	return func(lo, hi int) [][]string {
+		rows := make([][]string, 0, hi-lo)
+		for i := lo; i < hi; i++ {
+			rows = append(rows, t.sampleRow(v, i))
+		}
+		return rows
+	}
+}
+
+// sampleRow formats sample i's samples.tsv row.
+func (t *Totals) sampleRow(v *sampleView, i int) []string {
+	{
 		a := &t.PerSample[i]
 		e := &v.est[i]
 		row := []string{t.Samples[i]}
@@ -524,9 +552,8 @@ func (t *Totals) SampleTable() (header []string, rows [][]string) {
 			row = append(row, t.sexColumns(v.sex, i)...)
 		}
 		row = append(row, v.flags[i].String())
-		rows = append(rows, row)
+		return row
 	}
-	return header, rows
 }
 
 // freqGroups returns each sample's frequency group and the empty group

@@ -11,23 +11,51 @@ import (
 	"fgauge/stats"
 )
 
+// sampleRowsPart is how many samples' rows WriteTables formats at a time.
+const sampleRowsPart = 4096
+
 // WriteTables writes samples.tsv, runs.tsv and the population tables.
 func WriteTables(out *Dir, totals *stats.Totals, rres *roh.Result, ped []string) error {
-	header, rows := totals.SampleTable()
+	// The table is formatted a part of the cohort at a time, so that a
+	// large cohort's rows (about 1 kB of text a sample) are never all held.
+	header, part := totals.SampleRows()
+	var part2 func(lo, hi int) [][]string
 	if rres != nil {
-		h2, r2 := rres.SampleTable()
+		var h2 []string
+		h2, part2 = rres.SampleRows()
 		header = append(header, h2...)
-		for i := range rows {
-			rows[i] = append(rows[i], r2[i]...)
-		}
 	}
 	if ped != nil {
 		header = append(header, PedigreeColumn.Name)
-		for i := range rows {
-			rows[i] = append(rows[i], ped[i])
-		}
 	}
-	if err := WriteFile(out, "samples.tsv", func(w io.Writer) error { return WriteTSV(w, header, rows) }); err != nil {
+	n := len(totals.PerSample)
+	err := WriteFile(out, "samples.tsv", func(w io.Writer) error {
+		bw := bufio.NewWriter(w)
+		bw.WriteString(strings.Join(header, "\t"))
+		bw.WriteByte('\n')
+		for lo := 0; lo < n; lo += sampleRowsPart {
+			hi := min(lo+sampleRowsPart, n)
+			rows := part(lo, hi)
+			var r2 [][]string
+			if part2 != nil {
+				r2 = part2(lo, hi)
+			}
+			for i, r := range rows {
+				bw.WriteString(strings.Join(r, "\t"))
+				if r2 != nil {
+					bw.WriteByte('\t')
+					bw.WriteString(strings.Join(r2[i], "\t"))
+				}
+				if ped != nil {
+					bw.WriteByte('\t')
+					bw.WriteString(ped[lo+i])
+				}
+				bw.WriteByte('\n')
+			}
+		}
+		return bw.Flush()
+	})
+	if err != nil {
 		return err
 	}
 	if rres != nil {
