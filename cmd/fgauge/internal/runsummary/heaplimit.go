@@ -19,7 +19,7 @@ const (
 	// (200,000 samples: about 250 MB live in a heap profile) stays under
 	// 1 GiB of RSS with the default budget instead of letting the heap
 	// grow to budget + 4 KiB per sample of garbage before collecting.
-	heapCap = 800 << 20
+	heapCap = 640 << 20
 )
 
 // SetHeapLimit sets the Go runtime's soft memory limit
@@ -27,7 +27,7 @@ const (
 // scan or merge of that many samples and threads holds, so that the
 // garbage collector reclaims windows of sites that went to temporary disk
 // before the heap doubles (the runtime's default); the part above the
-// budget is at most heapCap (800 MiB). It leaves a limit
+// budget is at most heapCap (640 MiB). It leaves a limit
 // given in the GOMEMLIMIT environment variable alone. It returns the
 // limit in force, or -1 when none was set here.
 func SetHeapLimit(budget int64, samples, threads int) int64 {
