@@ -73,7 +73,8 @@ func (a *ageChrom) forwardWindow9(g geometry, w *window, s int, sm *ageSample, s
 			fIn, fLo = true, i
 			p0, p1, p2, p3, p4, p5, p6, p7, p8 = r[0]*eA, r[1]*eA, r[2]*eA, r[3]*eA, r[4]*eA, r[5]*eA, r[6]*eA, r[7]*eA, r[8]*eN
 			if keep {
-				*(*[m9]float64)(alpha[m9*lt:]) = [m9]float64{p0, p1, p2, p3, p4, p5, p6, p7, p8}
+				al := (*[m9]float64)(alpha[m9*lt:])
+				al[0], al[1], al[2], al[3], al[4], al[5], al[6], al[7], al[8] = p0, p1, p2, p3, p4, p5, p6, p7, p8
 				sd[lt] = 0
 				flag[lt] = 3
 			}
@@ -91,7 +92,8 @@ func (a *ageChrom) forwardWindow9(g geometry, w *window, s int, sm *ageSample, s
 		p7 = eA * (row[7]*p7 + r[7]*draw)
 		p8 = eN * (row[8]*p8 + r[8]*draw)
 		if keep {
-			*(*[m9]float64)(alpha[m9*lt:]) = [m9]float64{p0, p1, p2, p3, p4, p5, p6, p7, p8}
+			al := (*[m9]float64)(alpha[m9*lt:])
+			al[0], al[1], al[2], al[3], al[4], al[5], al[6], al[7], al[8] = p0, p1, p2, p3, p4, p5, p6, p7, p8
 			sd[lt] = draw
 			flag[lt] = 1
 		}
