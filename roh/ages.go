@@ -60,13 +60,12 @@ import (
 // samples x 5,000 sites, CPU time, 2 cores at load 16-28): one
 // forward-backward pass of the 8+1 classes is 4.2x the two-state
 // detector's one-lane passes measured in the same run (about 84 against
-// 20 ns per genotype); the whole-chromosome fit took 6.9 rounds on
-// average (6.0 since the tolerance is 1e-3 instead of 2e-4), about 570 ns
-// per genotype, some 30x the two-state detector.
+// 20 ns per genotype); the whole-chromosome fit takes 6.9 rounds on
+// average, about 570 ns per genotype, some 30x the two-state detector.
 // That is far beyond the budget of the full scan, so the scan should fit
 // in windows: FitWindows over the two-state runs widened by AgeWindows
 // (1 cM), costing about 900 ns per genotype inside the windows (10.5
-// rounds; 9.7 at tolerance 1e-3) and nothing outside. Windows hold 1.7% of the sites of
+// rounds) and nothing outside. Windows hold 1.7% of the sites of
 // unrelated array-density animals and 11-20% of those of full-sib to
 // selfed offspring (simulated), so about 15 ns per genotype of an outbred
 // cohort (as much again as the two-state detector) and 100-180 ns in a
@@ -130,19 +129,17 @@ type AgeConfig struct {
 
 // DefaultAgeConfig returns the log2 grid of 8 autozygous classes (see
 // AgeConfig.Rates), genotype error 0.001 (as the two-state detector), 20
-// EM rounds at most with tolerance 1e-3, a prior count of 0.5 draws per
+// EM rounds at most with tolerance 2e-4, a prior count of 0.5 draws per
 // class, and runs split at 1 Mb gaps. The starting shares, the round
-// limit, the tolerance and the prior count are our choices (the prior
-// count brought r(f_within_8g, planted recent F) from 0.989 to 0.993 in
-// TestAgesPlantedRecovery; tolerance 1e-3 instead of 2e-4 takes 8.2
-// instead of 11.6 rounds on average over the simulation tests, with the
-// same recent-class figures to 1e-4 and ancient ones within 1e-3).
+// limit and the prior count are our choices (the prior count brought
+// r(f_within_8g, planted recent F) from 0.989 to 0.993 in
+// TestAgesPlantedRecovery).
 func DefaultAgeConfig() *AgeConfig {
 	r := make([]float64, len(AgeGenerations))
 	for i, g := range AgeGenerations {
 		r[i] = 2 * float64(g)
 	}
-	return &AgeConfig{Rates: r, GenotypeError: 0.001, Iterations: 20, Tolerance: 1e-3, PriorCount: 0.5, MaxGapBP: 1_000_000}
+	return &AgeConfig{Rates: r, GenotypeError: 0.001, Iterations: 20, Tolerance: 2e-4, PriorCount: 0.5, MaxGapBP: 1_000_000}
 }
 
 // maxAgeStates bounds K+1 so that a path fits in a byte and scratch
