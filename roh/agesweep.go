@@ -278,6 +278,10 @@ func ageCkLen(m int) int { return m + 3 }
 // stores them.
 func (a *ageChrom) forwardWindow(g geometry, w *window, s int, sm *ageSample, sc *ageScratch, keep bool) {
 	m := a.m
+	if m == m9 {
+		a.forwardWindow9(g, w, s, sm, sc, keep)
+		return
+	}
 	last := m - 1
 	ck := w.ageCk[s*ageCkLen(m) : (s+1)*ageCkLen(m)]
 	if keep {
@@ -346,31 +350,18 @@ func (a *ageChrom) forwardWindow(g geometry, w *window, s int, sm *ageSample, sc
 			}
 			continue
 		}
+		row := vu[2*m*lt : 2*m*(lt+1) : 2*m*(lt+1)]
+		stay, leave := row[:m:m], row[m:2*m:2*m]
 		var draw float64
-		if m == m9 {
-			// the default grid: constant bounds, same operations
-			row := (*[2 * m9]float64)(vu[2*m9*lt:])
-			p9, r9 := (*[m9]float64)(p), (*[m9]float64)(rho)
-			for k := 0; k < m9; k++ {
-				draw += row[m9+k] * p9[k]
+		for k, v := range p {
+			draw += leave[k] * v
+		}
+		for l := range p {
+			e := eA
+			if l == last {
+				e = eN
 			}
-			for l := 0; l < m9-1; l++ {
-				p9[l] = eA * (row[l]*p9[l] + r9[l]*draw)
-			}
-			p9[m9-1] = eN * (row[m9-1]*p9[m9-1] + r9[m9-1]*draw)
-		} else {
-			row := vu[2*m*lt : 2*m*(lt+1) : 2*m*(lt+1)]
-			stay, leave := row[:m:m], row[m:2*m:2*m]
-			for k, v := range p {
-				draw += leave[k] * v
-			}
-			for l := range p {
-				e := eA
-				if l == last {
-					e = eN
-				}
-				p[l] = e * (stay[l]*p[l] + rho[l]*draw)
-			}
+			p[l] = e * (stay[l]*p[l] + rho[l]*draw)
 		}
 		if keep {
 			copy(sc.alpha[m*lt:m*lt+m], p)
@@ -395,6 +386,10 @@ func (a *ageChrom) forwardWindow(g geometry, w *window, s int, sm *ageSample, sc
 // lengths, expected draws, and run sums.
 func (a *ageChrom) backwardWindow(g geometry, w *window, s int, sm *ageSample, sc *ageScratch) {
 	m := a.m
+	if m == m9 {
+		a.backwardWindow9(w, sm, sc)
+		return
+	}
 	last := m - 1
 	rho := sm.rho[:m:m]
 	bt := sm.bt[:m:m]
@@ -446,69 +441,33 @@ func (a *ageChrom) backwardWindow(g geometry, w *window, s int, sm *ageSample, s
 		}
 		sd := sc.sd[lt]
 		eA, eN := sc.em[2*lt], sc.em[2*lt+1]
-		if m == m9 {
-			// the default grid: constant bounds, same operations
-			row := (*[2 * m9]float64)(vu[2*m9*lt:])
-			b9, c9, r9, rr9 := (*[m9]float64)(bt), (*[m9]float64)(cur), (*[m9]float64)(rho), (*[m9]float64)(rr[:m9])
-			su, co := (*[m9]float64)(sm.sums[:m9]), (*[m9]float64)(sm.counts[:m9])
-			var wsum, z float64
-			for l := 0; l < m9; l++ {
-				e := eA
-				if l == m9-1 {
-					e = eN
-				}
-				gg := c9[l] * b9[l]
-				bl := e * b9[l]
-				pb := r9[l] * bl
-				wsum += pb
-				rr9[l] = pb * sd
-				z += gg
-				c9[l] = gg
-				b9[l] = row[l] * bl
+		row := vu[2*m*lt : 2*m*(lt+1) : 2*m*(lt+1)]
+		stay, leave := row[:m:m], row[m:2*m:2*m]
+		var wsum, z float64
+		for l := range bt {
+			e := eA
+			if l == last {
+				e = eN
 			}
-			inv := 1 / z
-			sp := span[lt] * inv
-			for l := 0; l < m9; l++ {
-				gg := c9[l]
-				co[l] += rr9[l] * inv
-				su[l] += gg * sp
-				b9[l] += row[m9+l] * wsum
+			gg := cur[l] * bt[l]
+			bl := e * bt[l]
+			pb := rho[l] * bl
+			wsum += pb
+			rr[l] = pb * sd
+			z += gg
+			cur[l] = gg
+			bt[l] = stay[l] * bl
+		}
+		inv := 1 / z
+		sp := span[lt] * inv
+		for l := range bt {
+			gg := cur[l]
+			sm.counts[l] += rr[l] * inv
+			sm.sums[l] += gg * sp
+			if run != nil && l < last {
+				run.sum[l] += gg * inv
 			}
-			if run != nil {
-				rs := (*[m9]float64)(run.sum[:m9])
-				for l := 0; l < m9-1; l++ {
-					rs[l] += c9[l] * inv
-				}
-			}
-		} else {
-			row := vu[2*m*lt : 2*m*(lt+1) : 2*m*(lt+1)]
-			stay, leave := row[:m:m], row[m:2*m:2*m]
-			var wsum, z float64
-			for l := range bt {
-				e := eA
-				if l == last {
-					e = eN
-				}
-				gg := cur[l] * bt[l]
-				bl := e * bt[l]
-				pb := rho[l] * bl
-				wsum += pb
-				rr[l] = pb * sd
-				z += gg
-				cur[l] = gg
-				bt[l] = stay[l] * bl
-			}
-			inv := 1 / z
-			sp := span[lt] * inv
-			for l := range bt {
-				gg := cur[l]
-				sm.counts[l] += rr[l] * inv
-				sm.sums[l] += gg * sp
-				if run != nil && l < last {
-					run.sum[l] += gg * inv
-				}
-				bt[l] += leave[l] * wsum
-			}
+			bt[l] += leave[l] * wsum
 		}
 		if (sm.bHi-i)%rescaleEvery == 0 {
 			zz := 0.0
