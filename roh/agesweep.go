@@ -46,12 +46,14 @@ type ageSample struct {
 	rounds int
 	inSpan float64 // span inside the age windows (first round)
 
-	rho, prev, x0 [maxAgeStates]float64
-	sums, counts  [maxAgeStates]float64
+	// m numbers each, carved from one array per chromosome (setup), so
+	// that a sample costs what its classes need, not maxAgeStates.
+	rho, prev, x0 []float64
+	sums, counts  []float64
 	phase         int
 
 	// forward carry
-	fp    [maxAgeStates]float64
+	fp    []float64
 	fIn   bool
 	fLo   int
 	fIv   int
@@ -60,7 +62,7 @@ type ageSample struct {
 	bHi   int
 	bIv   int
 	bRun  int
-	bt    [maxAgeStates]float64
+	bt    []float64
 	first bool // first round: accumulate inSpan
 	whole bool // fitted on the whole chromosome (its windows covered AgeWholeShare or more)
 }
@@ -70,7 +72,7 @@ type ageSample struct {
 type ageRunRef struct {
 	start, end int64
 	n          int
-	sum        [maxAgeStates]float64
+	sum        []float64 // m-1 numbers (the autozygous classes), carved from one array per sample
 }
 
 // ageTable is the per-site table of one window for the age chain.
@@ -167,15 +169,23 @@ func (a *ageChrom) setup(perSample [][]Run, marginCM float64, whole bool) {
 	a.smp = make([]ageSample, len(perSample))
 	start := a.cfg.StartMixing()
 	a.prior = a.cfg.PriorCount
+	m := a.m
+	vals := make([]float64, 7*m*len(perSample))
 	for s, runs := range perSample {
 		sm := &a.smp[s]
-		copy(sm.rho[:], start)
+		v := vals[7*m*s : 7*m*(s+1) : 7*m*(s+1)]
+		sm.rho, sm.prev, sm.x0 = v[0:m:m], v[m:2*m:2*m], v[2*m:3*m:3*m]
+		sm.sums, sm.counts = v[3*m:4*m:4*m], v[4*m:5*m:5*m]
+		sm.fp, sm.bt = v[5*m:6*m:6*m], v[6*m:7*m:7*m]
+		copy(sm.rho, start)
 		sm.first = true
 		if whole {
 			sm.iv = [][2]float64{{math.Inf(-1), math.Inf(1)}}
 		}
-		for _, r := range runs {
-			sm.runs = append(sm.runs, ageRunRef{start: r.Start, end: r.End})
+		rs := make([]float64, (m-1)*len(runs))
+		sm.runs = make([]ageRunRef, 0, len(runs))
+		for j, r := range runs {
+			sm.runs = append(sm.runs, ageRunRef{start: r.Start, end: r.End, sum: rs[(m-1)*j : (m-1)*(j+1) : (m-1)*(j+1)]})
 			if !whole {
 				lo, hi := r.StartCM-marginCM, r.EndCM+marginCM
 				if k := len(sm.iv); k > 0 && lo <= sm.iv[k-1][1] {
@@ -484,11 +494,12 @@ func (a *ageChrom) backwardWindow(g geometry, w *window, s int, sm *ageSample, s
 
 // startRound resets sample sm's per-round sums and carried state.
 func (a *ageChrom) startRound(sm *ageSample) {
-	sm.sums, sm.counts = [maxAgeStates]float64{}, [maxAgeStates]float64{}
+	clear(sm.sums)
+	clear(sm.counts)
 	sm.fIn, sm.fIv, sm.fLo = false, 0, 0
 	sm.bIn, sm.bIv, sm.bRun = false, len(sm.iv)-1, len(sm.runs)-1
 	for j := range sm.runs {
-		sm.runs[j].sum = [maxAgeStates]float64{}
+		clear(sm.runs[j].sum)
 		sm.runs[j].n = 0
 	}
 }
@@ -525,7 +536,8 @@ func (a *ageChrom) endRound(sm *ageSample, it int) bool {
 		prior *= sm.inSpan / a.all
 	}
 	var next [maxAgeStates]float64
-	counts := sm.counts
+	var counts [maxAgeStates]float64
+	copy(counts[:], sm.counts)
 	tot = 0.0
 	for l := range counts[:m] {
 		counts[l] += prior
@@ -575,9 +587,9 @@ func (a *ageChrom) endRound(sm *ageSample, it int) bool {
 // everything outside its age windows counting as non-autozygous.
 func (a *ageChrom) classBP(sm *ageSample, dst []int64) {
 	m := a.m
-	sums := sm.sums
-	if len(sm.iv) == 0 {
-		sums = [maxAgeStates]float64{}
+	var sums [maxAgeStates]float64
+	if len(sm.iv) > 0 {
+		copy(sums[:], sm.sums)
 	}
 	if !a.whole && !sm.whole {
 		sums[m-1] += max(a.all-sm.inSpan, 0)

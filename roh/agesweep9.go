@@ -192,7 +192,7 @@ func (a *ageChrom) backwardWindow9(w *window, sm *ageSample, sc *ageScratch) {
 		su[7] += g7 * sp
 		su[8] += g8 * sp
 		if run != nil {
-			rs := (*[m9]float64)(run.sum[:m9])
+			rs := (*[m9 - 1]float64)(run.sum[:m9-1])
 			rs[0] += g0 * inv
 			rs[1] += g1 * inv
 			rs[2] += g2 * inv
