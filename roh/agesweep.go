@@ -282,6 +282,33 @@ func (a *ageChrom) emPair(g geometry, w *window, s, lt int) (float64, float64) {
 // flag, window start, interval index.
 func ageCkLen(m int) int { return m + 3 }
 
+// checkpoint restores sample s's forward state at window w's first site
+// from w.ageCk and sizes the scratch for the window (keep), or saves the
+// state there (the forward sweep).
+func (a *ageChrom) checkpoint(w *window, s int, sm *ageSample, sc *ageScratch, keep bool) {
+	m := a.m
+	ck := w.ageCk[s*ageCkLen(m) : (s+1)*ageCkLen(m)]
+	if keep {
+		copy(sm.fp[:m], ck[:m])
+		sm.fIn = ck[m] != 0
+		sm.fLo = int(ck[m+1])
+		sm.fIv = int(ck[m+2])
+		n := w.n
+		sc.alpha = grow(sc.alpha, m*n)
+		sc.sd = grow(sc.sd, n)
+		sc.flag = grow(sc.flag, n)
+		sc.em = grow(sc.em, 2*n)
+		return
+	}
+	copy(ck[:m], sm.fp[:m])
+	ck[m] = 0
+	if sm.fIn {
+		ck[m] = 1
+	}
+	ck[m+1] = float64(sm.fLo)
+	ck[m+2] = float64(sm.fIv)
+}
+
 // forwardWindow runs sample s's forward recursion over window w, from its
 // carried state, saving that state first into w.ageCk. With keep, the
 // values of every site go to sc (alpha, sd, flag), as AgeWorker.forward
@@ -293,27 +320,7 @@ func (a *ageChrom) forwardWindow(g geometry, w *window, s int, sm *ageSample, sc
 		return
 	}
 	last := m - 1
-	ck := w.ageCk[s*ageCkLen(m) : (s+1)*ageCkLen(m)]
-	if keep {
-		// restore the state saved by the forward sweep
-		copy(sm.fp[:m], ck[:m])
-		sm.fIn = ck[m] != 0
-		sm.fLo = int(ck[m+1])
-		sm.fIv = int(ck[m+2])
-		n := w.n
-		sc.alpha = grow(sc.alpha, m*n)
-		sc.sd = grow(sc.sd, n)
-		sc.flag = grow(sc.flag, n)
-		sc.em = grow(sc.em, 2*n)
-	} else {
-		copy(ck[:m], sm.fp[:m])
-		ck[m] = 0
-		if sm.fIn {
-			ck[m] = 1
-		}
-		ck[m+1] = float64(sm.fLo)
-		ck[m+2] = float64(sm.fIv)
-	}
+	a.checkpoint(w, s, sm, sc, keep)
 	rho := sm.rho[:m:m]
 	p := sm.fp[:m:m]
 	vu := a.tab.vu

@@ -10,27 +10,8 @@ package roh
 // (TestAgeSweepsMatchWorker).
 
 func (a *ageChrom) forwardWindow9(g geometry, w *window, s int, sm *ageSample, sc *ageScratch, keep bool) {
-	ck := (*[m9 + 3]float64)(w.ageCk[s*(m9+3):])
+	a.checkpoint(w, s, sm, sc, keep)
 	n := w.n
-	if keep {
-		// restore the state saved by the forward sweep
-		copy(sm.fp[:m9], ck[:m9])
-		sm.fIn = ck[m9] != 0
-		sm.fLo = int(ck[m9+1])
-		sm.fIv = int(ck[m9+2])
-		sc.alpha = grow(sc.alpha, m9*n)
-		sc.sd = grow(sc.sd, n)
-		sc.flag = grow(sc.flag, n)
-		sc.em = grow(sc.em, 2*n)
-	} else {
-		copy(ck[:m9], sm.fp[:m9])
-		ck[m9] = 0
-		if sm.fIn {
-			ck[m9] = 1
-		}
-		ck[m9+1] = float64(sm.fLo)
-		ck[m9+2] = float64(sm.fIv)
-	}
 	r := (*[m9]float64)(sm.rho[:m9])
 	p0, p1, p2, p3, p4, p5, p6, p7, p8 := sm.fp[0], sm.fp[1], sm.fp[2], sm.fp[3], sm.fp[4], sm.fp[5], sm.fp[6], sm.fp[7], sm.fp[8]
 	vu := a.tab.vu[:2*m9*n]
