@@ -390,6 +390,10 @@ func Merge(ctx context.Context, cfg MergeConfig) (res *MergeResult, err error) {
 	if err := joinSiteTables(out, "sites.tsv.gz", ls, func(s *State) string { return s.SitesFile }); err != nil {
 		return nil, err
 	}
+	// Its tabix index, as a single scan writes (none when unsorted or past 2^29).
+	if err := vcfscan.IndexBGZFTable(out.Path("sites.tsv.gz"), vcfscan.TabixSitesColumns); err != nil && !errors.Is(err, vcfscan.ErrLimit) && !errors.Is(err, vcfscan.ErrUnsorted) {
+		return nil, err
+	}
 	if m.totals.HasPopulations() {
 		if err := joinSiteTables(out, "sites_by_population.tsv.gz", ls, func(s *State) string { return s.PopSitesFile }); err != nil {
 			return nil, err
