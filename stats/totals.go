@@ -491,8 +491,8 @@ func (t *Totals) CallRate(i int) float64 { return t.estimates(i).callRate }
 // one row per selected sample, in order. The population column is present
 // only with populations ("NA" for unlisted samples).
 func (t *Totals) SampleTable() (header []string, rows [][]string) {
-	header, v := t.sampleTableHeader()
-	return header, t.sampleRows(v)(0, len(t.PerSample))
+	header, part := t.SampleRows()
+	return header, part(0, len(t.PerSample))
 }
 
 // SampleRows is SampleTable in parts: rows(lo, hi) formats the rows of
@@ -531,29 +531,27 @@ func (t *Totals) sampleRows(v *sampleView) func(lo, hi int) [][]string {
 
 // sampleRow formats sample i's samples.tsv row.
 func (t *Totals) sampleRow(v *sampleView, i int) []string {
-	{
-		a := &t.PerSample[i]
-		e := &v.est[i]
-		row := []string{t.Samples[i]}
-		if t.PopOf != nil {
-			pop := numfmt.NA
-			if p := t.PopOf[i]; p >= 0 {
-				pop = t.PopNames[p]
-			}
-			row = append(row, pop)
+	a := &t.PerSample[i]
+	e := &v.est[i]
+	row := []string{t.Samples[i]}
+	if t.PopOf != nil {
+		pop := numfmt.NA
+		if p := t.PopOf[i]; p >= 0 {
+			pop = t.PopNames[p]
 		}
-		row = append(row, itoa(e.called), itoa(a.Counts[0]), itoa(a.Counts[1]), itoa(a.Counts[2]),
-			itoa(a.Counts[3]), itoa(a.Counts[4]+a.Counts[5]),
-			ftoa(e.callRate), ftoa(e.hetRate),
-			ftoa(e.fHom), ftoa(e.fGRM), ftoa(e.fExcess), ftoa(e.fUniting), ftoa(e.fVanRad),
-			itoa(e.informative), ftoa(e.homShare), ftoa(e.homShareHWE))
-		row = t.appendLikColumns(row, i)
-		if v.sex != nil {
-			row = append(row, t.sexColumns(v.sex, i)...)
-		}
-		row = append(row, v.flags[i].String())
-		return row
+		row = append(row, pop)
 	}
+	row = append(row, itoa(e.called), itoa(a.Counts[0]), itoa(a.Counts[1]), itoa(a.Counts[2]),
+		itoa(a.Counts[3]), itoa(a.Counts[4]+a.Counts[5]),
+		ftoa(e.callRate), ftoa(e.hetRate),
+		ftoa(e.fHom), ftoa(e.fGRM), ftoa(e.fExcess), ftoa(e.fUniting), ftoa(e.fVanRad),
+		itoa(e.informative), ftoa(e.homShare), ftoa(e.homShareHWE))
+	row = t.appendLikColumns(row, i)
+	if v.sex != nil {
+		row = append(row, t.sexColumns(v.sex, i)...)
+	}
+	row = append(row, v.flags[i].String())
+	return row
 }
 
 // freqGroups returns each sample's frequency group and the empty group
