@@ -65,7 +65,7 @@ func (k *siteKey) hash() uint64 {
 }
 
 // get returns the entry for k and whether it was already there; a new
-// entry is zeroed and must be filled by the caller. Before the cache is
+// entry is zeroed (but for its number) and must be filled by the caller. Before the cache is
 // emptied, the HWE tests its entries counted are added to hwe.
 func (c *siteCache) get(k siteKey, hwe *HWESummary) (*siteInfo, bool) {
 	mask := uint64(len(c.slots) - 1)
@@ -90,7 +90,7 @@ func (c *siteCache) get(k siteKey, hwe *HWESummary) (*siteInfo, bool) {
 	}
 	c.slots[h] = int32(len(c.infos) + 1)
 	c.keys = append(c.keys, k)
-	c.infos = append(c.infos, siteInfo{})
+	c.infos = append(c.infos, siteInfo{idx: int32(len(c.infos))})
 	return &c.infos[len(c.infos)-1], false
 }
 
@@ -121,7 +121,6 @@ func (w *Worker) site(n0, n1, n2, haploid int64, nSel int) *siteInfo {
 	if ok {
 		return si
 	}
-	si.idx = int32(len(w.sites.infos) - 1)
 	si.ho, si.he, si.fsite, si.hweRes = siteStats(n0, n1, n2, w.cache)
 	if !math.IsNaN(si.fsite) {
 		si.fsiteFixed = fixed(si.fsite)
