@@ -584,7 +584,9 @@ func TestCompareOutputDirs(t *testing.T) {
 	assertSameOutputs(t, a, b)
 }
 
-// from the tabix index, so the joined site table follows the file.
+// TestShardOrderWithoutContigLines: without ##contig lines the shards
+// take the chromosome order from the tabix index, so the joined site
+// table follows the file.
 func TestShardOrderWithoutContigLines(t *testing.T) {
 	dir := t.TempDir()
 	input := "../../testdata/shard/no_contig_lines.vcf.gz"
