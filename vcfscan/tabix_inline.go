@@ -115,10 +115,11 @@ func (li *lineIndex) resolve(bw *BGZFWriter) {
 	li.blocks = append(li.blocks, bw.blkLog...)
 	bw.blkLog = bw.blkLog[:0]
 	bw.blkMu.Unlock()
+	written := li.writtenU() // the cursor's moves below leave it unchanged
 	k := 0
 	for ; k < len(li.pend) && li.err == nil; k++ {
 		pl := li.pend[k]
-		if pl.u1 > li.writtenU() {
+		if pl.u1 > written {
 			break
 		}
 		b, _ := li.at(pl.u0)
