@@ -187,7 +187,7 @@ func (c *Chrom) PosAt(cm float64, fallback float64) float64 {
 	switch {
 	case cm <= c.CM[0]:
 		return lineAt(0, 1)
-	case cm >= c.CM[n-1]:
+	case cm > c.CM[n-1]:
 		if c.CM[n-1] == c.CM[n-2] {
 			return float64(c.Pos[n-1])
 		}

@@ -84,6 +84,23 @@ func TestReadFileGzip(t *testing.T) {
 	}
 }
 
+// TestPosAtFlatEnd: where the map is flat from an inner point to the last
+// one, the cM of that flat stretch maps back to its first point (the
+// smallest position reaching it). Found by FuzzRead.
+func TestPosAtFlatEnd(t *testing.T) {
+	m, err := Read(strings.NewReader("1 1 0\n1 7 5\n1 11 5\n"), "flat.map")
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := m.Chroms[Key("1")]
+	if got := c.PosAt(5, 1); got != 7 {
+		t.Errorf("PosAt(5) = %g, want 7", got)
+	}
+	if got := c.PosAt(6, 1); got != 11 {
+		t.Errorf("PosAt(6) = %g, want 11 (past the flat end)", got)
+	}
+}
+
 // FuzzRead: the reader never panics; what it accepts is sorted, and the
 // interpolation does not decrease and PosAt inverts At at the points.
 func FuzzRead(f *testing.F) {
@@ -91,6 +108,7 @@ func FuzzRead(f *testing.F) {
 	f.Add("# c\nchr2 5 0\nchr2 9 0\n")
 	f.Add("1 1 1\n1 1 1\n")
 	f.Add("\xef\xbb\xbf1\t10\t0\n1\t20\t5\n")
+	f.Add("1 1 0\n1 7 5\n1 11 5\n") // flat at the end: PosAt(5) is 7, not 11
 	f.Fuzz(func(t *testing.T, in string) {
 		m, err := Read(strings.NewReader(in), "fuzz.map")
 		if err != nil {
