@@ -60,7 +60,7 @@ const memoryHelp = `Memory:
   thread + 4 KiB per sample, at most the budget + 640 MiB (GOMEMLIMIT,
   when set, wins). Measured peak RSS at 2 threads with the default
   budget: 226 MB for 100 samples x 4 million sites on one chromosome,
-  341 MB for 10,000 samples x 200,000 sites, 760 MB for 200,000
+  312 MB for 10,000 samples x 200,000 sites, 760 MB for 200,000
   samples x 1,000 sites and 995 MB for 500,000 samples x 300 sites. Larger
   cohorts need more: windows hold at least 128 sites and per-sample data
   grow with N (about 2 GB at a million samples).
