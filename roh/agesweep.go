@@ -342,9 +342,7 @@ func (a *ageChrom) forwardWindow(g geometry, w *window, s int, sm *ageSample, sc
 		i := w.t0 + lt
 		var eA, eN float64
 		if w.nPL == 0 {
-			c := uint8(gw[lt>>5]>>(uint(lt&31)*2)) & 3
-			row := rows[8*lt : 8*lt+8 : 8*lt+8]
-			eA, eN = float64(row[c]), float64(row[4+c])
+			eA, eN = codeEmission(gw, rows, lt)
 		} else {
 			eA, eN = a.emPair(g, w, s, lt)
 		}

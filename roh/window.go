@@ -134,6 +134,15 @@ func (g geometry) code(w *window, s, lt int) uint8 {
 	return uint8(w.geno[s*g.ww+lt>>5]>>(uint(lt&31)*2)) & 3
 }
 
+// codeEmission is the pair of emissions (autozygous, not) of window site lt
+// for the genotype code in gw, one sample's packed calls of the window
+// (w.geno[s*g.ww:(s+1)*g.ww]), from rows, the window's emissionRow table.
+func codeEmission(gw []uint64, rows []float32, lt int) (float64, float64) {
+	c := uint8(gw[lt>>5]>>(uint(lt&31)*2)) & 3
+	row := rows[8*lt : 8*lt+8 : 8*lt+8]
+	return float64(row[c]), float64(row[4+c])
+}
+
 // isA tells whether window site lt is autozygous on sample s's path
 // (after sweep 2).
 func (g geometry) isA(w *window, s, lt int) bool {
